@@ -1,0 +1,27 @@
+package analysis
+
+import (
+	"testing"
+
+	"pcqc/internal/synth"
+)
+
+// Decomposition alone (preprocessing excluded), for the sizes in the
+// foundation issue: tall 20,000 × 50 and wide 100 × 20,000.
+func benchmarkDecompose(b *testing.B, n, p int) {
+	x, _ := synth.LowRank(synth.RNG(1, 1), n, p, []float64{3, 2, 1.5}, 1)
+	pp, err := FitPreprocessing(x, TransformNone, ScaleUnit)
+	if err != nil {
+		b.Fatal(err)
+	}
+	z := pp.Apply(nil, x)
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := Decompose(z); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkDecomposeTall20000x50(b *testing.B) { benchmarkDecompose(b, 20000, 50) }
+func BenchmarkDecomposeWide100x20000(b *testing.B) { benchmarkDecompose(b, 100, 20000) }

@@ -1,0 +1,640 @@
+package analysis
+
+import (
+	"bufio"
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+	"unsafe"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// MissingPolicy says what to do with missing cells in the variables.
+type MissingPolicy string
+
+const (
+	// MissingFail stops at the first missing cell and names it.
+	MissingFail MissingPolicy = "fail"
+	// MissingDrop removes every row that has a missing cell.
+	MissingDrop MissingPolicy = "drop"
+	// MissingMean replaces a missing cell by the mean of its column's
+	// transformed values, so that after centring it sits exactly at zero and
+	// pulls no component towards itself.
+	MissingMean MissingPolicy = "mean"
+)
+
+// ReadOptions selects and validates the part of a table that is analysed.
+type ReadOptions struct {
+	// Delimiter is the field separator; 0 detects it from the header line
+	// (tab, semicolon or comma).
+	Delimiter byte
+	// IDColumn names the sample-id column. Empty means: the first column if
+	// it is not numeric, otherwise the 1-based data-row numbers.
+	IDColumn string
+	// GroupColumn names a label column (used to colour plots; never a variable).
+	GroupColumn string
+	// Columns, when not empty, lists the variables to analyse.
+	Columns []string
+	// Drop lists columns to leave out.
+	Drop []string
+	// Missing is the policy for missing cells; empty means MissingFail.
+	Missing MissingPolicy
+	// Transform is applied to every variable cell as it is read, so that a
+	// value outside the transform's domain is reported with its position.
+	Transform Transform
+}
+
+// DroppedVariable is a column that was a candidate variable but is not used.
+type DroppedVariable struct {
+	Name   string `json:"name"`
+	Reason string `json:"reason"`
+}
+
+// Table is a validated data table: n samples (rows) by p variables, with the
+// transform already applied, plus everything needed to say where each number
+// came from.
+type Table struct {
+	File      string // file name as given by the user
+	SHA256    string // of the bytes read
+	Delimiter byte
+
+	IDColumn    string   // "" when ids are row numbers
+	IDs         []string // one per row used
+	GroupColumn string   // "" when there is none
+	Groups      []string // one per row used, nil without a group column
+
+	Variables []string   // names of the variables used, in file order
+	X         *mat.Dense // n × p, transformed values
+	Lines     []int      // 1-based line in the file of each row used
+
+	RowsRead     int // data rows in the file
+	RowsDropped  int // removed for missing values
+	MissingCells int // missing cells among the candidate variables
+	ImputedCells int // missing cells replaced by column means
+
+	DroppedVariables []DroppedVariable
+	Transform        Transform
+	Missing          MissingPolicy
+}
+
+// Rows returns the number of samples used.
+func (t *Table) Rows() int { r, _ := t.X.Dims(); return r }
+
+// missingTokens are the spellings read as a missing cell, compared without
+// regard to case. "NaN" in any case is also missing (strconv reads it as NaN).
+var missingTokens = []string{"", "na", "n/a", "#n/a", "nan", "null"}
+
+func isMissingToken(b []byte) bool {
+	if len(b) > 4 {
+		return false
+	}
+	for _, t := range missingTokens {
+		if len(t) == len(b) && strings.EqualFold(t, unsafeString(b)) {
+			return true
+		}
+	}
+	return false
+}
+
+// unsafeString views b as a string without copying. The result must not be
+// kept beyond the life of b's contents.
+func unsafeString(b []byte) string {
+	if len(b) == 0 {
+		return ""
+	}
+	return unsafe.String(&b[0], len(b))
+}
+
+type cellKind int
+
+const (
+	cellNumber cellKind = iota
+	cellMissing
+	cellInfinite
+	cellText
+)
+
+// parseCell reads one variable cell.
+func parseCell(b []byte) (float64, cellKind) {
+	b = bytes.TrimSpace(b)
+	if isMissingToken(b) {
+		return 0, cellMissing
+	}
+	v, err := strconv.ParseFloat(unsafeString(b), 64)
+	if err != nil {
+		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange && math.IsInf(v, 0) {
+			return v, cellInfinite
+		}
+		return 0, cellText
+	}
+	if math.IsNaN(v) {
+		return 0, cellMissing
+	}
+	if math.IsInf(v, 0) {
+		return v, cellInfinite
+	}
+	return v, cellNumber
+}
+
+// ReadTable reads and validates the table in the named file.
+func ReadTable(path string, opt ReadOptions) (*Table, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+	}
+	defer f.Close()
+	if st, err := f.Stat(); err == nil && st.IsDir() {
+		return nil, &InputError{File: path, Reason: "is a directory, not a data table"}
+	}
+	return ReadTableFrom(path, f, opt)
+}
+
+func unwrapPathError(err error) string {
+	if pe, ok := err.(*os.PathError); ok {
+		return pe.Err.Error()
+	}
+	return err.Error()
+}
+
+// classifyRows is how many leading data rows are inspected to decide which
+// columns are numeric before the rest of the file is streamed.
+const classifyRows = 100
+
+// ReadTableFrom reads and validates a table from r; name is used in messages.
+func ReadTableFrom(name string, r io.Reader, opt ReadOptions) (*Table, error) {
+	if opt.Missing == "" {
+		opt.Missing = MissingFail
+	}
+	if opt.Transform == "" {
+		opt.Transform = TransformNone
+	}
+	fail := func(line, col int, colName, text, reason string) error {
+		return &InputError{File: name, Line: line, Column: col, Name: colName, Text: text, Reason: reason}
+	}
+
+	hash := sha256.New()
+	br := bufio.NewReaderSize(io.TeeReader(r, hash), 1<<20)
+	if head, _ := br.Peek(3); len(head) >= 2 {
+		switch {
+		case head[0] == 0xFF && head[1] == 0xFE, head[0] == 0xFE && head[1] == 0xFF:
+			return nil, fail(1, 0, "", "", "the file is UTF-16 encoded; save it as UTF-8 (CSV UTF-8) and try again")
+		case len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF:
+			br.Discard(3)
+		}
+	}
+
+	delim := opt.Delimiter
+	if delim == 0 {
+		peek, _ := br.Peek(br.Size())
+		if i := bytes.IndexByte(peek, '\n'); i >= 0 {
+			peek = peek[:i]
+		}
+		delim = detectDelimiter(peek)
+		if delim == 0 {
+			delim = ','
+		}
+	}
+
+	rr := newRecordReader(br, delim)
+	header, err := rr.read()
+	if err == io.EOF {
+		return nil, fail(0, 0, "", "", "empty file: a header row and at least 3 data rows are needed")
+	}
+	if err != nil {
+		return nil, readError(name, rr, err)
+	}
+	names := make([]string, len(header))
+	seen := make(map[string]int, len(header))
+	for j, h := range header {
+		n := strings.TrimSpace(string(h))
+		if n == "" {
+			n = fmt.Sprintf("column_%d", j+1)
+		}
+		if k, dup := seen[n]; dup {
+			return nil, fail(rr.recLine, j+1, "", n, fmt.Sprintf("duplicate column name (also column %d):", k+1))
+		}
+		seen[n] = j
+		names[j] = n
+	}
+	headerLine := rr.recLine
+	if len(names) < 2 {
+		return nil, fail(headerLine, 0, "", "", fmt.Sprintf("the header has a single column; fields are separated by %s here (use --delim if that is wrong)", delimName(delim)))
+	}
+
+	lookup := func(flag, col string) (int, error) {
+		j, ok := seen[col]
+		if !ok {
+			return -1, fail(headerLine, 0, "", col, fmt.Sprintf("unknown column in %s (the columns are %s):", flag, listNames(names, 12)))
+		}
+		return j, nil
+	}
+	idCol, groupCol := -1, -1
+	if opt.IDColumn != "" {
+		if idCol, err = lookup("--id", opt.IDColumn); err != nil {
+			return nil, err
+		}
+	}
+	if opt.GroupColumn != "" {
+		if groupCol, err = lookup("--group", opt.GroupColumn); err != nil {
+			return nil, err
+		}
+	}
+	chosen := make([]bool, len(names))
+	for _, c := range opt.Columns {
+		j, err := lookup("--columns", c)
+		if err != nil {
+			return nil, err
+		}
+		chosen[j] = true
+	}
+	dropped := make([]bool, len(names))
+	for _, c := range opt.Drop {
+		j, err := lookup("--drop", c)
+		if err != nil {
+			return nil, err
+		}
+		dropped[j] = true
+	}
+	if idCol >= 0 && idCol == groupCol {
+		return nil, fail(headerLine, idCol+1, names[idCol], "", "the same column cannot be both --id and --group")
+	}
+	for j := range names {
+		if chosen[j] && (j == idCol || j == groupCol) {
+			return nil, fail(headerLine, j+1, names[j], "", "a column in --columns cannot also be --id or --group")
+		}
+	}
+
+	// Read the first rows to learn which columns are numeric.
+	var sample [][]string
+	var sampleLines []int
+	for len(sample) < classifyRows {
+		rec, err := rr.read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, readError(name, rr, err)
+		}
+		if err := checkWidth(name, rr.recLine, rec, names); err != nil {
+			return nil, err
+		}
+		row := make([]string, len(rec))
+		for j, c := range rec {
+			row[j] = string(c)
+		}
+		sample = append(sample, row)
+		sampleLines = append(sampleLines, rr.recLine)
+	}
+	if len(sample) == 0 {
+		return nil, fail(headerLine, 0, "", "", "the file has a header but no data rows")
+	}
+	firstText := func(j int) (int, string) {
+		for i, row := range sample {
+			b := []byte(row[j])
+			if _, kind := parseCell(b); kind == cellText {
+				return i, row[j]
+			}
+		}
+		return -1, ""
+	}
+	explicitVars := len(opt.Columns) > 0
+	if opt.IDColumn == "" && groupCol != 0 && !chosen[0] && !dropped[0] {
+		if i, _ := firstText(0); i >= 0 {
+			idCol = 0
+		}
+	}
+
+	var varCols []int
+	for j := range names {
+		if j == idCol || j == groupCol || dropped[j] {
+			continue
+		}
+		if explicitVars && !chosen[j] {
+			continue
+		}
+		varCols = append(varCols, j)
+	}
+	var textCols []string
+	firstBad, firstBadRow := -1, -1
+	firstBadText := ""
+	for _, j := range varCols {
+		if i, txt := firstText(j); i >= 0 {
+			textCols = append(textCols, names[j])
+			if firstBad < 0 {
+				firstBad, firstBadRow, firstBadText = j, i, txt
+			}
+		}
+	}
+	if len(textCols) > 0 {
+		reason := "column is not numeric; leave it out"
+		if len(textCols) > 1 {
+			reason = fmt.Sprintf("columns %s are not numeric; leave them out", listNames(textCols, 12))
+		}
+		dropHint := strings.Join(textCols, ",")
+		if len(textCols) > 12 {
+			dropHint = "<those columns>"
+		}
+		reason += fmt.Sprintf(" with --drop %s, or name a label column with --id or --group; first such cell:", dropHint)
+		return nil, fail(sampleLines[firstBadRow], firstBad+1, names[firstBad], firstBadText, reason)
+	}
+
+	p := len(varCols)
+	tr := opt.Transform
+	var (
+		values     []float64
+		ids        []string
+		groups     []string
+		lines      []int
+		colMissing = make([]int, p)
+		rowMissing []bool
+		nMissing   int
+	)
+	rowNumber := 0
+	addRow := func(line int, cell func(j int) []byte) error {
+		rowNumber++
+		for k, j := range varCols {
+			raw := cell(j)
+			v, kind := parseCell(raw)
+			switch kind {
+			case cellText:
+				return fail(line, j+1, names[j], string(raw), "cannot read as a number:")
+			case cellInfinite:
+				return fail(line, j+1, names[j], string(raw), "infinite value; pcqc needs finite numbers:")
+			case cellMissing:
+				if opt.Missing == MissingFail {
+					return fail(line, j+1, names[j], string(raw), "missing value (use --missing drop or --missing mean to handle missing cells):")
+				}
+				nMissing++
+				colMissing[k]++
+				for len(rowMissing) < rowNumber {
+					rowMissing = append(rowMissing, false)
+				}
+				rowMissing[rowNumber-1] = true
+				v = math.NaN()
+			default:
+				tv, ok := tr.apply(v)
+				if !ok {
+					return fail(line, j+1, names[j], string(raw), fmt.Sprintf("value outside the domain of --transform %s (%s):", tr, tr.domain()))
+				}
+				v = tv
+			}
+			values = append(values, v)
+		}
+		if idCol >= 0 {
+			ids = append(ids, strings.TrimSpace(string(cell(idCol))))
+		} else {
+			ids = append(ids, strconv.Itoa(rowNumber))
+		}
+		if groupCol >= 0 {
+			groups = append(groups, strings.TrimSpace(string(cell(groupCol))))
+		}
+		lines = append(lines, line)
+		return nil
+	}
+	for i, row := range sample {
+		if err := addRow(sampleLines[i], func(j int) []byte { return []byte(row[j]) }); err != nil {
+			return nil, err
+		}
+	}
+	for {
+		rec, err := rr.read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, readError(name, rr, err)
+		}
+		if err := checkWidth(name, rr.recLine, rec, names); err != nil {
+			return nil, err
+		}
+		if err := addRow(rr.recLine, func(j int) []byte { return rec[j] }); err != nil {
+			return nil, err
+		}
+	}
+	if _, err := io.Copy(io.Discard, br); err != nil {
+		return nil, fail(0, 0, "", "", "read error: "+err.Error())
+	}
+	rowsRead := rowNumber
+
+	t := &Table{
+		File:         name,
+		SHA256:       hex.EncodeToString(hash.Sum(nil)),
+		Delimiter:    delim,
+		GroupColumn:  opt.GroupColumn,
+		MissingCells: nMissing,
+		RowsRead:     rowsRead,
+		Transform:    tr,
+		Missing:      opt.Missing,
+	}
+	if idCol >= 0 {
+		t.IDColumn = names[idCol]
+	}
+
+	// Missing values: drop rows or impute column means.
+	if nMissing > 0 {
+		switch opt.Missing {
+		case MissingDrop:
+			keep := 0
+			for i := 0; i < rowsRead; i++ {
+				if i < len(rowMissing) && rowMissing[i] {
+					continue
+				}
+				copy(values[keep*p:(keep+1)*p], values[i*p:(i+1)*p])
+				ids[keep] = ids[i]
+				if groups != nil {
+					groups[keep] = groups[i]
+				}
+				lines[keep] = lines[i]
+				keep++
+			}
+			t.RowsDropped = rowsRead - keep
+			values, ids, lines = values[:keep*p], ids[:keep], lines[:keep]
+			if groups != nil {
+				groups = groups[:keep]
+			}
+		case MissingMean:
+			n := rowsRead
+			for k := 0; k < p; k++ {
+				if colMissing[k] == 0 {
+					continue
+				}
+				sum, cnt := 0.0, 0
+				for i := 0; i < n; i++ {
+					if v := values[i*p+k]; !math.IsNaN(v) {
+						sum += v
+						cnt++
+					}
+				}
+				if cnt == 0 {
+					return nil, fail(0, varCols[k]+1, names[varCols[k]], "", "every value of this column is missing; drop it with --drop:")
+				}
+				mean := sum / float64(cnt)
+				for i := 0; i < n; i++ {
+					if math.IsNaN(values[i*p+k]) {
+						values[i*p+k] = mean
+						t.ImputedCells++
+					}
+				}
+			}
+		}
+	}
+	n := len(ids)
+	if n < 3 {
+		reason := fmt.Sprintf("fewer than 3 usable rows (%d read", rowsRead)
+		if t.RowsDropped > 0 {
+			reason += fmt.Sprintf(", %d dropped for missing values", t.RowsDropped)
+		}
+		return nil, fail(0, 0, "", "", reason+"); a PCA needs at least 3 samples")
+	}
+
+	// Constant columns carry no component and cannot be unit-scaled.
+	keepCols := make([]int, 0, p)
+	for k := 0; k < p; k++ {
+		if lo, hi, ok := columnRange(values, n, p, k); ok && isConstant(lo, hi) {
+			t.DroppedVariables = append(t.DroppedVariables, DroppedVariable{
+				Name:   names[varCols[k]],
+				Reason: fmt.Sprintf("constant: every value is %s", strconv.FormatFloat(lo, 'g', -1, 64)),
+			})
+			continue
+		}
+		keepCols = append(keepCols, k)
+	}
+	for j := range names {
+		if dropped[j] {
+			t.DroppedVariables = append(t.DroppedVariables, DroppedVariable{Name: names[j], Reason: "left out with --drop"})
+		}
+	}
+	if len(keepCols) < 2 {
+		reason := fmt.Sprintf("fewer than 2 variables to analyse (%d candidate", p)
+		if p != 1 {
+			reason += "s"
+		}
+		if c := p - len(keepCols); c > 0 {
+			reason += fmt.Sprintf(", %d of them constant", c)
+		}
+		return nil, fail(headerLine, 0, "", "", reason+")")
+	}
+	if len(keepCols) < p {
+		q := len(keepCols)
+		for i := 0; i < n; i++ {
+			for c, k := range keepCols {
+				values[i*q+c] = values[i*p+k]
+			}
+		}
+		values = values[:n*q]
+	}
+	t.Variables = make([]string, len(keepCols))
+	for c, k := range keepCols {
+		t.Variables[c] = names[varCols[k]]
+	}
+	t.X = mat.NewDense(n, len(keepCols), slices.Clip(values))
+	t.IDs, t.Groups, t.Lines = ids, groups, lines
+	return t, nil
+}
+
+// columnRange returns the smallest and largest value of column k of the
+// row-major n×p values.
+func columnRange(values []float64, n, p, k int) (lo, hi float64, ok bool) {
+	if n == 0 {
+		return 0, 0, false
+	}
+	lo, hi = values[k], values[k]
+	for i := 1; i < n; i++ {
+		v := values[i*p+k]
+		lo = math.Min(lo, v)
+		hi = math.Max(hi, v)
+	}
+	return lo, hi, true
+}
+
+// isConstant reports whether a column whose values span [lo, hi] has no
+// variation beyond rounding: the spread is within a few ulps of the values'
+// magnitude, which covers values that differ only in their last digit after a
+// transform.
+func isConstant(lo, hi float64) bool {
+	scale := math.Max(math.Abs(lo), math.Abs(hi))
+	return hi-lo <= 4*epsilon*scale
+}
+
+// epsilon is the float64 machine epsilon (2⁻⁵²).
+const epsilon = 0x1p-52
+
+func checkWidth(name string, line int, rec [][]byte, names []string) error {
+	if len(rec) == len(names) {
+		return nil
+	}
+	if len(rec) > len(names) {
+		return &InputError{File: name, Line: line, Column: len(names) + 1, Text: string(rec[len(names)]),
+			Reason: fmt.Sprintf("ragged row: %d fields but the header has %d; first extra field:", len(rec), len(names))}
+	}
+	return &InputError{File: name, Line: line, Column: len(rec) + 1, Name: names[len(rec)],
+		Reason: fmt.Sprintf("ragged row: %d fields but the header has %d", len(rec), len(names))}
+}
+
+func readError(name string, rr *recordReader, err error) error {
+	if err == errUnterminatedQuote {
+		return &InputError{File: name, Line: rr.recLine, Reason: err.Error()}
+	}
+	return &InputError{File: name, Line: rr.line, Reason: "read error: " + err.Error()}
+}
+
+// listNames joins names for a message, naming at most max of them.
+func listNames(names []string, max int) string {
+	if len(names) <= max {
+		return strings.Join(names, ", ")
+	}
+	return fmt.Sprintf("%s and %d more", strings.Join(names[:max], ", "), len(names)-max)
+}
+
+func delimName(d byte) string {
+	switch d {
+	case '\t':
+		return "tabs"
+	case ';':
+		return "semicolons"
+	case ',':
+		return "commas"
+	}
+	return strconv.QuoteRune(rune(d))
+}
+
+// StemName returns the file name without directory and extension, used for
+// default output folders and titles.
+func StemName(path string) string {
+	base := filepath.Base(path)
+	return strings.TrimSuffix(base, filepath.Ext(base))
+}
+
+// TableFromMatrix wraps an in-memory matrix as a table (no file behind it):
+// variables are named v1…vp and ids are row numbers unless given. It is for
+// data generated in memory; files go through ReadTable.
+func TableFromMatrix(name string, x *mat.Dense, variables, ids []string) *Table {
+	n, p := x.Dims()
+	if variables == nil {
+		variables = make([]string, p)
+		for j := range variables {
+			variables[j] = "v" + strconv.Itoa(j+1)
+		}
+	}
+	if ids == nil {
+		ids = make([]string, n)
+		for i := range ids {
+			ids[i] = strconv.Itoa(i + 1)
+		}
+	}
+	lines := make([]int, n)
+	for i := range lines {
+		lines[i] = i + 2
+	}
+	return &Table{File: name, X: x, Variables: variables, IDs: ids, Lines: lines,
+		RowsRead: n, Transform: TransformNone, Missing: MissingFail}
+}

@@ -1,0 +1,126 @@
+package checks
+
+import (
+	"fmt"
+
+	"pcqc/analysis"
+)
+
+// Status is the outcome of a check.
+type Status string
+
+const (
+	Pass Status = "pass"
+	Warn Status = "warn"
+	Fail Status = "fail"
+	Skip Status = "skip" // the check does not apply; the message says why
+)
+
+// severity orders statuses for the verdict: skip < pass < warn < fail.
+func (s Status) severity() int {
+	switch s {
+	case Pass:
+		return 1
+	case Warn:
+		return 2
+	case Fail:
+		return 3
+	}
+	return 0
+}
+
+// AtLeast reports whether s is at least as severe as level.
+func (s Status) AtLeast(level Status) bool { return s.severity() >= level.severity() }
+
+// Symbol is a plain-text mark for the status, so that a report never relies
+// on colour alone.
+func (s Status) Symbol() string {
+	switch s {
+	case Pass:
+		return "✓"
+	case Warn:
+		return "!"
+	case Fail:
+		return "✗"
+	}
+	return "–"
+}
+
+// Result is the outcome of one check, as written to summary.json and the
+// report. Value and Limit are numbers where the check measures one number,
+// and text otherwise.
+type Result struct {
+	ID      string `json:"id"`
+	Title   string `json:"title"`
+	Status  Status `json:"status"`
+	Value   any    `json:"value"`
+	Limit   any    `json:"limit"`
+	Message string `json:"message"`
+	Source  string `json:"source"`
+}
+
+// Input is everything the checks may read.
+type Input struct {
+	Run *analysis.Result
+}
+
+// Check is one entry of the registry.
+type Check struct {
+	ID    string
+	Title string
+	// Source of the threshold: a publication, or "common practice".
+	Source string
+	judge  func(in Input) Result
+}
+
+// Run evaluates the check, filling in its identity.
+func (c Check) Run(in Input) Result {
+	r := c.judge(in)
+	r.ID, r.Title, r.Source = c.ID, c.Title, c.Source
+	if r.Status == "" {
+		panic(fmt.Sprintf("check %s returned no status", c.ID))
+	}
+	return r
+}
+
+// Registry lists every check in report order.
+var Registry = []Check{
+	centering,
+	orthonormalLoadings,
+	uncorrelatedScores,
+	varianceMatch,
+}
+
+// RunAll evaluates every registered check.
+func RunAll(in Input) []Result {
+	out := make([]Result, 0, len(Registry))
+	for _, c := range Registry {
+		out = append(out, c.Run(in))
+	}
+	return out
+}
+
+// Verdict is the worst status among the results (skips do not count); pass
+// when there are none.
+func Verdict(results []Result) Status {
+	v := Pass
+	for _, r := range results {
+		if r.Status.severity() > v.severity() {
+			v = r.Status
+		}
+	}
+	return v
+}
+
+// Reached reports whether any result is at least as severe as level.
+func Reached(results []Result, level Status) bool {
+	for _, r := range results {
+		if r.Status != Skip && r.Status.AtLeast(level) {
+			return true
+		}
+	}
+	return false
+}
+
+// sci formats a small measured quantity for messages.
+func sci(x float64) string { return fmt.Sprintf("%.2g", x) }

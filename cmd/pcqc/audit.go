@@ -1,0 +1,66 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+
+	"pcqc/analysis"
+	"pcqc/checks"
+	"pcqc/report"
+)
+
+// auditJob is one audit to run and write: a table already read and
+// validated, the options, and extra files to place in the output folder.
+type auditJob struct {
+	flags   *auditFlags
+	read    analysis.ReadOptions
+	table   *analysis.Table
+	command []string
+	extra   map[string][]byte // file name → content, written beside the tables
+}
+
+// runAudit analyses the table, judges it and writes every output into the
+// output folder, which appears complete or not at all.
+func runAudit(job auditJob, stdout io.Writer) (int, error) {
+	opt, err := job.flags.analysisOptions()
+	if err != nil {
+		return 0, err
+	}
+	res, err := analysis.Analyze(job.table, opt)
+	if err != nil {
+		return 0, err
+	}
+	results := checks.RunAll(checks.Input{Run: res})
+	meta := report.Meta{
+		Version: Version,
+		Command: job.command,
+		Options: job.flags.effective(job.read, job.table),
+	}
+
+	out, err := report.Begin(job.flags.out, job.flags.force)
+	if err != nil {
+		return 0, usagef("%v", err)
+	}
+	write := func() error {
+		for name, content := range job.extra {
+			if err := os.WriteFile(out.Path(name), content, 0o644); err != nil {
+				return err
+			}
+		}
+		if err := report.WriteTables(out.Dir(), res, results, meta); err != nil {
+			return err
+		}
+		return out.Commit()
+	}
+	if err := write(); err != nil {
+		out.Abort()
+		return 0, &outputError{err}
+	}
+
+	verdict := checks.Verdict(results)
+	fmt.Fprintf(stdout, "pcqc: %d samples × %d variables, %d component%s retained (%s); verdict %s\n",
+		job.table.Rows(), len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
+	fmt.Fprintf(stdout, "pcqc: wrote %s\n", out.Target())
+	return exitOK, nil
+}

@@ -1,0 +1,172 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func runPCQC(t *testing.T, args ...string) (status int, stdout, stderr string) {
+	t.Helper()
+	var o, e bytes.Buffer
+	status = mainWithArgs(args, &o, &e)
+	return status, o.String(), e.String()
+}
+
+func readCSV(t *testing.T, path string) [][]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return rows
+}
+
+func TestDemoWritesAllOutputs(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "demo")
+	status, stdout, stderr := runPCQC(t, "demo", "--out", out)
+	if status != exitOK {
+		t.Fatalf("status %d: %s", status, stderr)
+	}
+	if !strings.Contains(stdout, "invented") {
+		t.Errorf("demo does not say its data are invented: %q", stdout)
+	}
+	for _, name := range []string{"demo-data.csv", "variance.csv", "loadings.csv", "scores.csv", "summary.json"} {
+		if st, err := os.Stat(filepath.Join(out, name)); err != nil || st.Size() == 0 {
+			t.Errorf("%s missing or empty: %v", name, err)
+		}
+	}
+	variance := readCSV(t, filepath.Join(out, "variance.csv"))
+	if strings.Join(variance[0], ",") != "component,eigenvalue,percent,cumulative_percent" || len(variance) != 14 {
+		t.Errorf("variance.csv: header %v, %d rows (want 13 components)", variance[0], len(variance)-1)
+	}
+	scores := readCSV(t, filepath.Join(out, "scores.csv"))
+	if scores[0][0] != "sample_id" || len(scores) != 241 || scores[1][0] != "ST01-2024-01" {
+		t.Errorf("scores.csv: header %v, %d rows, first id %q", scores[0], len(scores)-1, scores[1][0])
+	}
+	loadings := readCSV(t, filepath.Join(out, "loadings.csv"))
+	if loadings[0][0] != "variable" || len(loadings) != 14 || len(loadings[0]) != len(scores[0]) {
+		t.Errorf("loadings.csv: header %v, %d rows", loadings[0], len(loadings)-1)
+	}
+	var summary map[string]any
+	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
+	if err := json.Unmarshal(b, &summary); err != nil {
+		t.Fatal(err)
+	}
+	for _, key := range []string{"tool", "input", "options", "components", "checks", "verdict"} {
+		if _, ok := summary[key]; !ok {
+			t.Errorf("summary.json lacks %q", key)
+		}
+	}
+	input := summary["input"].(map[string]any)
+	if input["group_column"] != "station" || input["id_column"] != "sample_id" || len(input["sha256"].(string)) != 64 {
+		t.Errorf("summary input: %v", input)
+	}
+	for _, c := range summary["checks"].([]any) {
+		m := c.(map[string]any)
+		for _, key := range []string{"id", "title", "status", "value", "limit", "message"} {
+			if _, ok := m[key]; !ok {
+				t.Errorf("check %v lacks %q", m["id"], key)
+			}
+		}
+	}
+}
+
+func TestOutputFolderRules(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join("..", "..", "testdata", "datasets", "usarrests.csv")
+	out := filepath.Join(dir, "result")
+	if status, _, stderr := runPCQC(t, "run", data, "--out", out); status != exitOK {
+		t.Fatalf("first run: %d %s", status, stderr)
+	}
+	// A second run into the same, now non-empty folder is refused.
+	status, _, stderr := runPCQC(t, "run", data, "--out", out, "--scale", "none")
+	if status != exitUsage || !strings.Contains(stderr, "--force") {
+		t.Errorf("occupied folder: status %d, %q", status, stderr)
+	}
+	// With --force it is replaced; the new options show in summary.json.
+	if status, _, stderr := runPCQC(t, "run", "--force", data, "--out", out, "--scale", "none"); status != exitOK {
+		t.Fatalf("--force: %d %s", status, stderr)
+	}
+	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
+	if !strings.Contains(string(b), `"scale": "none"`) {
+		t.Errorf("folder not replaced: %s", b)
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("stray files beside the output: %v", entries)
+	}
+}
+
+func TestDefaultOutputFolderIsBesideTheWorkingDirectory(t *testing.T) {
+	data, _ := filepath.Abs(filepath.Join("..", "..", "testdata", "datasets", "iris.csv"))
+	dir := t.TempDir()
+	wd, _ := os.Getwd()
+	os.Chdir(dir)
+	defer os.Chdir(wd)
+	if status, _, stderr := runPCQC(t, "run", data, "--group", "species"); status != exitOK {
+		t.Fatalf("%d %s", status, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "iris-pcqc", "scores.csv")); err != nil {
+		t.Errorf("default output folder: %v", err)
+	}
+	scores := readCSV(t, filepath.Join(dir, "iris-pcqc", "scores.csv"))
+	if scores[0][0] != "row" || scores[1][0] != "1" {
+		t.Errorf("iris has no id column, so ids are row numbers: %v %v", scores[0], scores[1])
+	}
+}
+
+func TestUsageErrors(t *testing.T) {
+	data := filepath.Join("..", "..", "testdata", "datasets", "usarrests.csv")
+	out := filepath.Join(t.TempDir(), "o")
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{}, "Usage"},
+		{[]string{"frobnicate"}, "unknown command"},
+		{[]string{"run"}, "expects one data file"},
+		{[]string{"run", data, data}, "expects one data file"},
+		{[]string{"run", data, "--scale", "auto", "--out", out}, "invalid --scale"},
+		{[]string{"run", data, "--components", "zero", "--out", out}, "invalid --components"},
+		{[]string{"run", data, "--components", "9", "--out", out}, "more components than the data have"},
+		{[]string{"run", data, "--nonsense", "--out", out}, "flag provided but not defined"},
+		{[]string{"run", "no-such-file.csv", "--out", out}, "no-such-file.csv: cannot open"},
+		{[]string{"help", "nothing"}, "unknown command"},
+	}
+	for _, c := range cases {
+		status, _, stderr := runPCQC(t, c.args...)
+		if status != exitUsage || !strings.Contains(stderr, c.want) {
+			t.Errorf("%v: status %d, stderr %q (want %q)", c.args, status, stderr, c.want)
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%v: output folder created", c.args)
+		}
+	}
+}
+
+func TestHelpAndVersion(t *testing.T) {
+	status, stdout, _ := runPCQC(t, "version")
+	if status != exitOK || stdout != "pcqc "+Version+"\n" {
+		t.Errorf("version: %d %q", status, stdout)
+	}
+	for _, c := range commands {
+		status, stdout, _ := runPCQC(t, "help", c.name)
+		if status != exitOK || !strings.Contains(stdout, "usage: pcqc "+c.name) {
+			t.Errorf("help %s: %d %q", c.name, status, stdout)
+		}
+	}
+	status, stdout, _ = runPCQC(t, "run", "-h")
+	if status != exitOK || !strings.Contains(stdout, "--scale") {
+		t.Errorf("run -h: %d %q", status, stdout)
+	}
+}

@@ -1,0 +1,212 @@
+package main
+
+import (
+	"errors"
+	"flag"
+	"io"
+	"slices"
+	"strings"
+
+	"pcqc/analysis"
+	"pcqc/report"
+)
+
+// auditFlags are the flags shared by every subcommand that audits data (run
+// and demo), so that they mean the same everywhere.
+type auditFlags struct {
+	out        string
+	force      bool
+	id         string
+	group      string
+	columns    string
+	drop       string
+	missing    string
+	delim      string
+	transform  string
+	scale      string
+	components string
+
+	set map[string]bool // flags given on the command line
+}
+
+func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
+	fs.StringVar(&f.out, "out", defaultOut, "")
+	fs.BoolVar(&f.force, "force", false, "")
+	fs.StringVar(&f.id, "id", "", "")
+	fs.StringVar(&f.group, "group", "", "")
+	fs.StringVar(&f.columns, "columns", "", "")
+	fs.StringVar(&f.drop, "drop", "", "")
+	fs.StringVar(&f.missing, "missing", string(analysis.MissingFail), "")
+	fs.StringVar(&f.delim, "delim", "auto", "")
+	fs.StringVar(&f.transform, "transform", string(analysis.TransformNone), "")
+	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
+	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
+}
+
+// auditFlagHelp documents the shared flags, for `pcqc help run`.
+const auditFlagHelp = `Input:
+  --id COL            sample-id column (default: the first column if it is not
+                      numeric, otherwise the 1-based data-row numbers)
+  --group COL         label column used to colour plots; never a variable
+  --columns a,b,c     analyse only these variables
+  --drop a,b          leave these columns out
+  --missing POLICY    fail | drop | mean (default fail). fail stops at the first
+                      missing cell; drop removes rows with a missing cell; mean
+                      replaces a missing cell by its column's mean (after the
+                      transform), so it sits at zero after centring
+                      Missing cells are empty, NA, N/A, #N/A, NaN or null.
+  --delim D           auto | , | ; | tab (default auto: detected from the header)
+
+Preprocessing (centring is always done):
+  --transform T       none | log | log10 | log1p (default none)
+  --scale S           unit | pareto | range | none (default unit: divide by the
+                      sample standard deviation, n−1)
+
+Components:
+  --components RULE   N | variance:F (default variance:0.8, the fewest
+                      components reaching 80 % of the variance)
+
+Output:
+  --out DIR           output folder
+  --force             replace an existing, non-empty output folder
+`
+
+// splitList reads a comma-separated flag value.
+func splitList(s string) []string {
+	var out []string
+	for _, p := range strings.Split(s, ",") {
+		if p = strings.TrimSpace(p); p != "" {
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+func oneOf[T ~string](flagName, value string, allowed []T) (T, error) {
+	for _, a := range allowed {
+		if string(a) == value {
+			return a, nil
+		}
+	}
+	names := make([]string, len(allowed))
+	for i, a := range allowed {
+		names[i] = string(a)
+	}
+	return "", usagef("invalid --%s %q: use one of %s", flagName, value, strings.Join(names, ", "))
+}
+
+func (f *auditFlags) readOptions() (analysis.ReadOptions, error) {
+	var opt analysis.ReadOptions
+	var err error
+	switch f.delim {
+	case "auto", "":
+	case ",", "comma":
+		opt.Delimiter = ','
+	case ";", "semicolon":
+		opt.Delimiter = ';'
+	case "tab", "\\t", "\t":
+		opt.Delimiter = '\t'
+	default:
+		return opt, usagef("invalid --delim %q: use auto, ',', ';' or tab", f.delim)
+	}
+	opt.IDColumn, opt.GroupColumn = f.id, f.group
+	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
+	if opt.Missing, err = oneOf("missing", f.missing, []analysis.MissingPolicy{analysis.MissingFail, analysis.MissingDrop, analysis.MissingMean}); err != nil {
+		return opt, err
+	}
+	if opt.Transform, err = oneOf("transform", f.transform, analysis.Transforms); err != nil {
+		return opt, err
+	}
+	return opt, nil
+}
+
+func (f *auditFlags) analysisOptions() (analysis.Options, error) {
+	var opt analysis.Options
+	var err error
+	if opt.Scaling, err = oneOf("scale", f.scale, analysis.Scalings); err != nil {
+		return opt, err
+	}
+	if opt.Components, err = analysis.ParseComponentRule(f.components); err != nil {
+		return opt, usagef("%v", err)
+	}
+	return opt, nil
+}
+
+// effective lists every option with the value in force, defaults included,
+// in the order of the help text. read is the input options actually used
+// (the demo sets its own id and group columns).
+func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) report.Options {
+	list := func(s []string) []string {
+		if s == nil {
+			return []string{}
+		}
+		return s
+	}
+	delim := "auto"
+	if f.delim != "auto" && f.delim != "" {
+		delim = f.delim
+	}
+	return report.Options{
+		{Name: "id", Value: t.IDColumn},
+		{Name: "group", Value: t.GroupColumn},
+		{Name: "columns", Value: list(read.Columns)},
+		{Name: "drop", Value: list(read.Drop)},
+		{Name: "missing", Value: string(read.Missing)},
+		{Name: "delim", Value: delim},
+		{Name: "delim_used", Value: string(t.Delimiter)},
+		{Name: "transform", Value: string(read.Transform)},
+		{Name: "scale", Value: f.scale},
+		{Name: "center", Value: true},
+		{Name: "components", Value: f.components},
+		{Name: "out", Value: f.out},
+		{Name: "force", Value: f.force},
+	}
+}
+
+// parseArgs parses flags that may appear before, between or after the
+// positional arguments (`pcqc run data.csv --scale none`), the way users
+// type them. Everything after "--" is positional.
+func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
+	fs.SetOutput(io.Discard)
+	var rest []string
+	if i := slices.Index(args, "--"); i >= 0 {
+		args, rest = args[:i], args[i+1:]
+	}
+	var positional []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if errors.Is(err, flag.ErrHelp) {
+				return nil, err
+			}
+			return nil, usagef("%v", err)
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			break
+		}
+		positional = append(positional, args[0])
+		args = args[1:]
+	}
+	return append(positional, rest...), nil
+}
+
+// markSet records which flags were given explicitly.
+func markSet(fs *flag.FlagSet) map[string]bool {
+	set := map[string]bool{}
+	fs.Visit(func(fl *flag.Flag) { set[fl.Name] = true })
+	return set
+}
+
+func requireArgs(cmd string, args []string, n int, what string) error {
+	if len(args) != n {
+		return usagef("expects %s (got %d argument%s); see 'pcqc help %s'", what, len(args), plural(len(args)), cmd)
+	}
+	return nil
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}

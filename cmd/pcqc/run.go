@@ -1,0 +1,81 @@
+package main
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+
+	"pcqc/analysis"
+	"pcqc/report"
+)
+
+var runCommand = &command{
+	name:    "run",
+	summary: "audit the PCA of a data table and write the evidence",
+	usage:   "pcqc run DATA [flags]",
+	help: `Run reads DATA (CSV, TSV or semicolon-separated, with a header row),
+preprocesses it (optional transform, centring, scaling), computes the PCA by
+singular value decomposition, checks the result, and writes the output folder
+(default: <DATA name>-pcqc in the current folder).
+
+The output folder is written complete or not at all: files are written to a
+temporary folder beside it and renamed into place. An existing non-empty
+output folder is refused unless --force is given.
+
+Exit status: 0 success, 2 usage or input error (nothing is written),
+3 the outputs could not be written.
+
+` + auditFlagHelp,
+	run: runRun,
+}
+
+func runRun(args []string, stdout, stderr io.Writer) (int, error) {
+	fs := flag.NewFlagSet("run", flag.ContinueOnError)
+	var f auditFlags
+	f.register(fs, "")
+	pos, err := parseArgs(fs, args)
+	if errors.Is(err, flag.ErrHelp) {
+		printCommandHelp(stdout, lookupCommand("run"))
+		return exitOK, nil
+	}
+	if err != nil {
+		return 0, err
+	}
+	if err := requireArgs("run", pos, 1, "one data file"); err != nil {
+		return 0, err
+	}
+	f.set = markSet(fs)
+	data := pos[0]
+	if f.out == "" {
+		f.out = analysis.StemName(data) + "-pcqc"
+	}
+	read, err := f.readOptions()
+	if err != nil {
+		return 0, err
+	}
+	if _, err := f.analysisOptions(); err != nil {
+		return 0, err
+	}
+	// Refuse an occupied output folder before any work is done.
+	if err := report.CheckTarget(f.out, f.force); err != nil {
+		return 0, usagef("%v", err)
+	}
+	if _, err := os.Stat(data); err != nil {
+		return 0, &analysis.InputError{File: data, Reason: "cannot open: " + pathReason(err)}
+	}
+	t, err := analysis.ReadTable(data, read)
+	if err != nil {
+		return 0, err
+	}
+	return runAudit(auditJob{flags: &f, read: read, table: t, command: append([]string{"pcqc", "run"}, args...)}, stdout)
+}
+
+func pathReason(err error) string {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return fmt.Sprint(err)
+}

@@ -1,0 +1,157 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+
+	"pcqc/analysis"
+	"pcqc/checks"
+)
+
+// Meta describes the run itself: the tool and how it was invoked.
+type Meta struct {
+	Version string
+	Command []string // the command line, for the Reproduce section
+	Options Options  // every effective option, defaults included
+}
+
+// Option is one effective option and its value.
+type Option struct {
+	Name  string
+	Value any
+}
+
+// Options keeps the options in the order they are documented; it is written
+// to JSON as an object in that order.
+type Options []Option
+
+// MarshalJSON writes the options as one JSON object, keys in order.
+func (o Options) MarshalJSON() ([]byte, error) {
+	var b bytes.Buffer
+	b.WriteByte('{')
+	for i, opt := range o {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		k, err := json.Marshal(opt.Name)
+		if err != nil {
+			return nil, err
+		}
+		v, err := json.Marshal(opt.Value)
+		if err != nil {
+			return nil, err
+		}
+		b.Write(k)
+		b.WriteByte(':')
+		b.Write(v)
+	}
+	b.WriteByte('}')
+	return b.Bytes(), nil
+}
+
+// Summary is the content of summary.json.
+type Summary struct {
+	Tool       ToolInfo        `json:"tool"`
+	Input      InputInfo       `json:"input"`
+	Options    Options         `json:"options"`
+	Components ComponentsInfo  `json:"components"`
+	Checks     []checks.Result `json:"checks"`
+	Verdict    checks.Status   `json:"verdict"`
+}
+
+type ToolInfo struct {
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+type InputInfo struct {
+	File             string                     `json:"file"`
+	SHA256           string                     `json:"sha256"`
+	Rows             int                        `json:"rows"`
+	RowsRead         int                        `json:"rows_read"`
+	RowsDropped      int                        `json:"rows_dropped"`
+	MissingCells     int                        `json:"missing_cells"`
+	ImputedCells     int                        `json:"imputed_cells"`
+	Variables        []string                   `json:"variables"`
+	VariablesDropped []analysis.DroppedVariable `json:"variables_dropped"`
+	IDColumn         *string                    `json:"id_column"`
+	GroupColumn      *string                    `json:"group_column"`
+}
+
+type ComponentsInfo struct {
+	Retained    int       `json:"retained"`
+	Rule        string    `json:"rule"`
+	Method      string    `json:"method"`
+	Eigenvalues []float64 `json:"eigenvalues"`
+	Percent     []float64 `json:"percent"`
+}
+
+func optional(s string) *string {
+	if s == "" {
+		return nil
+	}
+	return &s
+}
+
+// BuildSummary assembles summary.json's content.
+func BuildSummary(res *analysis.Result, results []checks.Result, meta Meta) Summary {
+	t := res.Table
+	dropped := t.DroppedVariables
+	if dropped == nil {
+		dropped = []analysis.DroppedVariable{}
+	}
+	return Summary{
+		Tool: ToolInfo{Name: "pcqc", Version: meta.Version},
+		Input: InputInfo{
+			File:             t.File,
+			SHA256:           t.SHA256,
+			Rows:             t.Rows(),
+			RowsRead:         t.RowsRead,
+			RowsDropped:      t.RowsDropped,
+			MissingCells:     t.MissingCells,
+			ImputedCells:     t.ImputedCells,
+			Variables:        t.Variables,
+			VariablesDropped: dropped,
+			IDColumn:         optional(t.IDColumn),
+			GroupColumn:      optional(t.GroupColumn),
+		},
+		Options: meta.Options,
+		Components: ComponentsInfo{
+			Retained:    res.Retained,
+			Rule:        res.Rule.String(),
+			Method:      res.Decomp.Method,
+			Eigenvalues: res.Decomp.Eigenvalues,
+			Percent:     Percentages(res.Decomp.Eigenvalues),
+		},
+		Checks:  results,
+		Verdict: checks.Verdict(results),
+	}
+}
+
+func writeJSON(path string, v any) error {
+	b, err := json.MarshalIndent(v, "", "  ")
+	if err != nil {
+		return err
+	}
+	return os.WriteFile(path, append(b, '\n'), 0o644)
+}
+
+// WriteTables writes the machine-readable outputs of an audit into dir.
+func WriteTables(dir string, res *analysis.Result, results []checks.Result, meta Meta) error {
+	join := func(name string) string { return dir + string(os.PathSeparator) + name }
+	files := []struct {
+		name string
+		rows [][]string
+	}{
+		{"variance.csv", VarianceRows(res)},
+		{"loadings.csv", LoadingsRows(res)},
+		{"scores.csv", ScoresRows(res.Table, res.Scores)},
+	}
+	for _, f := range files {
+		if err := writeCSV(join(f.name), f.rows); err != nil {
+			return err
+		}
+	}
+	return writeJSON(join("summary.json"), BuildSummary(res, results, meta))
+}
