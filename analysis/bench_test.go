@@ -23,5 +23,5 @@ func benchmarkDecompose(b *testing.B, n, p int) {
 	}
 }
 
-func BenchmarkDecomposeTall20000x50(b *testing.B) { benchmarkDecompose(b, 20000, 50) }
+func BenchmarkDecomposeTall20000x50(b *testing.B)  { benchmarkDecompose(b, 20000, 50) }
 func BenchmarkDecomposeWide100x20000(b *testing.B) { benchmarkDecompose(b, 100, 20000) }
