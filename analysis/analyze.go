@@ -8,31 +8,49 @@ import (
 
 // Options are the analysis choices made after the table is read.
 type Options struct {
-	Scaling    Scaling
-	Components ComponentRule
+	Scaling      Scaling
+	Components   ComponentRule
+	Permutations int    // parallel analysis; 0 turns it off
+	Seed         uint64 // for every random stream
+	Threads      int    // ≤ 0: all cores
+	Progress     Progress
 }
+
+// Defaults for Options.
+const (
+	DefaultPermutations = 200
+	DefaultSeed         = 1
+)
 
 // Result is a complete analysis of one table: what was done to the data, the
 // decomposition, the retained components and their scores, and the measured
-// properties of the result.
+// properties and diagnostics of the result.
 type Result struct {
 	Table      *Table
+	Options    Options
 	Prep       Preprocessing
 	Z          *mat.Dense // n × p preprocessed matrix
 	Decomp     *Decomposition
 	Rule       ComponentRule
-	Retained   int        // k
-	Scores     *mat.Dense // n × k
-	Properties Properties
+	Counts     ComponentCounts
+	Retained   int // k ≥ 1
+	// NoStructure is set when the rule in force found no component that
+	// stands out (count 0); one component is then kept for reference.
+	NoStructure bool
+	Scores      *mat.Dense // n × k
+	Properties  Properties
+	Samples     SampleStats
+	Adequacy    Adequacy
+	Separation  []Separation
 }
 
-// Analyze preprocesses the table and computes its PCA. The table's matrix is
-// not modified.
+// Analyze preprocesses the table and computes its PCA and diagnostics. The
+// table's matrix is not modified.
 func Analyze(t *Table, opt Options) (*Result, error) {
 	if opt.Scaling == "" {
 		opt.Scaling = ScaleUnit
 	}
-	if opt.Components == (ComponentRule{}) {
+	if opt.Components.Kind == "" {
 		opt.Components = DefaultComponentRule
 	}
 	pp, err := FitPreprocessing(t.X, t.Transform, opt.Scaling)
@@ -44,13 +62,33 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", t.File, err)
 	}
-	k, err := opt.Components.Count(d.Eigenvalues)
+	n, _ := z.Dims()
+	m := d.Components()
+	r := &Result{Table: t, Options: opt, Prep: pp, Z: z, Decomp: d, Rule: opt.Components}
+
+	if (opt.Components.Kind == RuleParallel) && opt.Permutations <= 0 {
+		return nil, fmt.Errorf("--components %s needs permutations (--permutations > 0)", opt.Components)
+	}
+	pa := ParallelAnalysis(z, d.Eigenvalues, opt.Permutations, opt.Seed, opt.Threads, opt.Progress)
+	share := DefaultVarianceShare
+	if opt.Components.Kind == RuleVariance {
+		share = opt.Components.Variance
+	}
+	r.Counts = CountComponents(d.Eigenvalues, opt.Scaling, share, pa)
+	k, err := opt.Components.Choose(m, r.Counts)
 	if err != nil {
 		return nil, err
 	}
-	r := &Result{Table: t, Prep: pp, Z: z, Decomp: d, Rule: opt.Components, Retained: k}
+	if k == 0 {
+		k, r.NoStructure = 1, true
+	}
+	r.Retained = k
 	r.Scores = d.Scores(z, k)
-	r.Properties = MeasureProperties(z, d.Loadings.Slice(0, d.Vars, 0, k), r.Scores, d.Eigenvalues)
+	v := r.RetainedLoadings()
+	r.Properties = MeasureProperties(z, v, r.Scores, d.Eigenvalues)
+	r.Samples = ComputeSampleStats(z, v, r.Scores, d.Eigenvalues)
+	r.Adequacy = MeasureAdequacy(t.X, z)
+	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
 	return r, nil
 }
 

@@ -47,7 +47,7 @@ func TestReconstructionWithAllComponents(t *testing.T) {
 			for seed := uint64(1); seed <= 3; seed++ {
 				name := fmt.Sprintf("%s/%s/seed%d", sh.name, sc, seed)
 				tab := randomTable(seed, sh.n, sh.p, sh.rank)
-				res, err := Analyze(tab, Options{Scaling: sc, Components: ComponentRule{Fixed: min(sh.n-1, sh.p)}})
+				res, err := Analyze(tab, Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: min(sh.n-1, sh.p)}})
 				if err != nil {
 					t.Fatalf("%s: %v", name, err)
 				}
@@ -70,7 +70,7 @@ func TestReconstructionWithAllComponents(t *testing.T) {
 func TestEigenvaluesEqualScoreVariances(t *testing.T) {
 	for _, sh := range propertyShapes {
 		tab := randomTable(7, sh.n, sh.p, sh.rank)
-		res, err := Analyze(tab, Options{Scaling: ScaleUnit})
+		res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleVariance, Variance: 0.8}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -85,7 +85,7 @@ func TestEigenvaluesEqualScoreVariances(t *testing.T) {
 
 func TestSignConvention(t *testing.T) {
 	tab := randomTable(3, 50, 6, 6)
-	res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Fixed: 5}})
+	res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 5}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -117,7 +117,7 @@ func TestTallAndWideRoutesAgree(t *testing.T) {
 	// direct SVD: compare both routes against gonum's SVD of the full matrix.
 	for _, sh := range []struct{ n, p int }{{60, 8}, {8, 60}} {
 		tab := randomTable(11, sh.n, sh.p, min(sh.n, sh.p))
-		res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Fixed: 1}})
+		res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}})
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -63,7 +63,7 @@ func TestReferenceDatasets(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			res, err := Analyze(tab, Options{Scaling: tc.scaling, Components: ComponentRule{Fixed: 4}})
+			res, err := Analyze(tab, Options{Scaling: tc.scaling, Components: ComponentRule{Kind: RuleFixed, Fixed: 4}})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -105,7 +105,7 @@ func TestReferencePropertiesHold(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, err := Analyze(tab, Options{Scaling: tc.scaling, Components: ComponentRule{Fixed: 4}})
+		res, err := Analyze(tab, Options{Scaling: tc.scaling, Components: ComponentRule{Kind: RuleFixed, Fixed: 4}})
 		if err != nil {
 			t.Fatal(err)
 		}

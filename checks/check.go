@@ -85,10 +85,28 @@ func (c Check) Run(in Input) Result {
 
 // Registry lists every check in report order.
 var Registry = []Check{
+	// The data: do they suit a PCA?
+	missingValues,
+	constantVariables,
+	duplicateRows,
+	sampleSize,
+	scaling,
+	skewness,
+	sphericity,
+	samplingAdequacy,
+	// The decomposition: is it correct?
 	centering,
 	orthonormalLoadings,
 	uncorrelatedScores,
 	varianceMatch,
+	// The components: how many, and are they distinct?
+	componentCount,
+	eigenvalueSeparation,
+	// The samples: outliers and influence.
+	outliersT2,
+	outliersQ,
+	leverage,
+	dominance,
 }
 
 // RunAll evaluates every registered check.
@@ -121,6 +139,3 @@ func Reached(results []Result, level Status) bool {
 	}
 	return false
 }
-
-// sci formats a small measured quantity for messages.
-func sci(x float64) string { return fmt.Sprintf("%.2g", x) }

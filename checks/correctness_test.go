@@ -49,8 +49,8 @@ func TestCorrectnessChecksPassOnRandomData(t *testing.T) {
 					x = synth.Gaussian(rng, sh.n, sh.p)
 				}
 				synth.Stretch(rng, x)
-				for _, rule := range []analysis.ComponentRule{analysis.DefaultComponentRule, {Fixed: min(sh.n-1, sh.p)}} {
-					res, err := analysis.Analyze(analysis.TableFromMatrix(name, x, nil, nil), analysis.Options{Scaling: sc, Components: rule})
+				for _, rule := range []analysis.ComponentRule{{Kind: analysis.RuleVariance, Variance: 0.8}, {Kind: analysis.RuleParallel}, {Kind: analysis.RuleFixed, Fixed: min(sh.n-1, sh.p)}} {
+					res, err := analysis.Analyze(analysis.TableFromMatrix(name, x, nil, nil), analysis.Options{Scaling: sc, Components: rule, Permutations: 20})
 					if err != nil {
 						t.Fatalf("%s: %v", name, err)
 					}
@@ -70,7 +70,7 @@ func TestCorrectnessChecksPassOnRandomData(t *testing.T) {
 func TestCorrectnessChecksFailWhenBroken(t *testing.T) {
 	rng := synth.RNG(5, 3)
 	x, _ := synth.LowRank(rng, 200, 8, []float64{3, 2}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Fixed: 3}})
+	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 3}})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -22,3 +22,47 @@ const (
 )
 
 const sourceFactOfTrade = "fact of the trade (exact in theory); rounding allowance: common practice"
+
+// Data adequacy.
+const (
+	// MissingShareLimit: dropping more than 5 % of the rows, or imputing
+	// more than 5 % of the cells with means, changes the covariance
+	// structure enough to mention (common practice).
+	MissingShareLimit = 0.05
+	// MinSamplesPerVariable: n ≥ 5p (common practice; e.g. Gorsuch 1983,
+	// Factor Analysis, 2nd ed., recommends at least five subjects per
+	// variable).
+	MinSamplesPerVariable = 5
+	// VarianceRatioLimit: without scaling, a variable whose variance exceeds
+	// another's by more than 100× dominates the first component (common
+	// practice).
+	VarianceRatioLimit = 100
+	// SkewnessLimit: |skewness| > 2 marks substantial non-normality (West,
+	// Finch & Curran 1995, in Hoyle (ed.) Structural Equation Modeling,
+	// Sage, pp. 56–75).
+	SkewnessLimit = 2
+	// SphericityAlpha: Bartlett's test at the 5 % level (Bartlett 1951).
+	SphericityAlpha = 0.05
+	// KMOWarn and KMOFail: Kaiser (1974) calls values in the 0.60s mediocre,
+	// the 0.50s miserable and below 0.50 unacceptable.
+	KMOWarn = 0.6
+	KMOFail = 0.5
+)
+
+// Samples.
+const (
+	// DominanceLimit: one sample holding more than a quarter of a
+	// component's variance defines that component by itself (common
+	// practice).
+	DominanceLimit = 0.25
+	// ListedSamples is how many sample ids a message names before it
+	// counts the rest.
+	ListedSamples = 20
+)
+
+// Components.
+const (
+	// RuleSpreadLimit: the count rules may differ by one component before
+	// their disagreement is flagged (common practice).
+	RuleSpreadLimit = 1
+)

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/json"
+	"math"
 	"os"
 
 	"pcqc/analysis"
@@ -56,6 +57,7 @@ type Summary struct {
 	Input      InputInfo       `json:"input"`
 	Options    Options         `json:"options"`
 	Components ComponentsInfo  `json:"components"`
+	Limits     LimitsInfo      `json:"limits"`
 	Checks     []checks.Result `json:"checks"`
 	Verdict    checks.Status   `json:"verdict"`
 }
@@ -80,11 +82,42 @@ type InputInfo struct {
 }
 
 type ComponentsInfo struct {
-	Retained    int       `json:"retained"`
-	Rule        string    `json:"rule"`
-	Method      string    `json:"method"`
-	Eigenvalues []float64 `json:"eigenvalues"`
-	Percent     []float64 `json:"percent"`
+	Retained           int                  `json:"retained"`
+	Rule               string               `json:"rule"`
+	NoStructure        bool                 `json:"no_structure"`
+	Method             string               `json:"method"`
+	Eigenvalues        []float64            `json:"eigenvalues"`
+	Percent            []float64            `json:"percent"`
+	Counts             []analysis.RuleCount `json:"counts"`
+	Permutations       int                  `json:"permutations"`
+	PermutationP95     []float64            `json:"permutation_p95"`
+	BrokenStickPercent []float64            `json:"broken_stick_percent"`
+}
+
+// LimitsInfo holds the control limits; null where a limit is undefined.
+type LimitsInfo struct {
+	T2_95    *float64 `json:"t2_95"`
+	T2_99    *float64 `json:"t2_99"`
+	Q95      *float64 `json:"q_95"`
+	Q99      *float64 `json:"q_99"`
+	QMethod  string   `json:"q_method"`
+	Leverage float64  `json:"leverage"`
+}
+
+// finite returns x, or nil when x is not a finite number (JSON has no NaN).
+func finite(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	return &x
+}
+
+func scaled(x []float64, f float64) []float64 {
+	out := make([]float64, len(x))
+	for i, v := range x {
+		out[i] = f * v
+	}
+	return out
 }
 
 func optional(s string) *string {
@@ -97,6 +130,7 @@ func optional(s string) *string {
 // BuildSummary assembles summary.json's content.
 func BuildSummary(res *analysis.Result, results []checks.Result, meta Meta) Summary {
 	t := res.Table
+	lim := res.Samples.Limits
 	dropped := t.DroppedVariables
 	if dropped == nil {
 		dropped = []analysis.DroppedVariable{}
@@ -118,11 +152,24 @@ func BuildSummary(res *analysis.Result, results []checks.Result, meta Meta) Summ
 		},
 		Options: meta.Options,
 		Components: ComponentsInfo{
-			Retained:    res.Retained,
-			Rule:        res.Rule.String(),
-			Method:      res.Decomp.Method,
-			Eigenvalues: res.Decomp.Eigenvalues,
-			Percent:     Percentages(res.Decomp.Eigenvalues),
+			Retained:           res.Retained,
+			Rule:               res.Rule.String(),
+			NoStructure:        res.NoStructure,
+			Method:             res.Decomp.Method,
+			Eigenvalues:        res.Decomp.Eigenvalues,
+			Percent:            Percentages(res.Decomp.Eigenvalues),
+			Counts:             res.Counts.Counts,
+			Permutations:       res.Counts.Parallel.Permutations,
+			PermutationP95:     res.Counts.Parallel.P95,
+			BrokenStickPercent: scaled(res.Counts.BrokenStickShares, 100),
+		},
+		Limits: LimitsInfo{
+			T2_95:    finite(lim.T2_95),
+			T2_99:    finite(lim.T2_99),
+			Q95:      finite(lim.Q95),
+			Q99:      finite(lim.Q99),
+			QMethod:  string(lim.QMethod),
+			Leverage: lim.Leverage,
 		},
 		Checks:  results,
 		Verdict: checks.Verdict(results),
@@ -147,6 +194,7 @@ func WriteTables(dir string, res *analysis.Result, results []checks.Result, meta
 		{"variance.csv", VarianceRows(res)},
 		{"loadings.csv", LoadingsRows(res)},
 		{"scores.csv", ScoresRows(res.Table, res.Scores)},
+		{"samples.csv", SamplesRows(res)},
 	}
 	for _, f := range files {
 		if err := writeCSV(join(f.name), f.rows); err != nil {

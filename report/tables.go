@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -34,14 +35,48 @@ func writeCSV(path string, rows [][]string) error {
 }
 
 // VarianceRows builds variance.csv: one row per component (all m of them).
+// Beyond the eigenvalue and its shares it gives the 95th percentile of the
+// permuted eigenvalues (empty when parallel analysis did not run), the
+// broken-stick expected share, and for each count rule whether it keeps the
+// component (empty when the rule does not apply), then whether the
+// component was retained.
 func VarianceRows(res *analysis.Result) [][]string {
 	d := res.Decomp
 	pct := Percentages(d.Eigenvalues)
-	rows := [][]string{{"component", "eigenvalue", "percent", "cumulative_percent"}}
+	header := []string{"component", "eigenvalue", "percent", "cumulative_percent", "permutation_p95", "broken_stick_percent"}
+	for _, c := range res.Counts.Counts {
+		header = append(header, "kept_"+strings.ReplaceAll(string(c.Rule), "-", "_"))
+	}
+	header = append(header, "retained")
+	rows := [][]string{header}
 	cum := 0.0
 	for a, l := range d.Eigenvalues {
 		cum += pct[a]
-		rows = append(rows, []string{componentName(a), num(l), num(pct[a]), num(cum)})
+		p95 := ""
+		if res.Counts.Parallel.Permutations > 0 {
+			p95 = num(res.Counts.Parallel.P95[a])
+		}
+		row := []string{componentName(a), num(l), num(pct[a]), num(cum), p95, num(100 * res.Counts.BrokenStickShares[a])}
+		for _, c := range res.Counts.Counts {
+			kept := ""
+			if c.Applies {
+				kept = strconv.FormatBool(a < c.Count)
+			}
+			row = append(row, kept)
+		}
+		row = append(row, strconv.FormatBool(a < res.Retained))
+		rows = append(rows, row)
+	}
+	return rows
+}
+
+// SamplesRows builds samples.csv: per sample T², Q, leverage and the limits
+// it passes (e.g. "t2-99 q-95"; empty when none).
+func SamplesRows(res *analysis.Result) [][]string {
+	s := res.Samples
+	rows := [][]string{{IDHeader(res.Table), "t2", "q", "leverage", "beyond"}}
+	for i, id := range res.Table.IDs {
+		rows = append(rows, []string{id, num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " ")})
 	}
 	return rows
 }

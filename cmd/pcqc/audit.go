@@ -59,8 +59,12 @@ func runAudit(job auditJob, stdout io.Writer) (int, error) {
 	}
 
 	verdict := checks.Verdict(results)
+	level, _ := job.flags.failLevel()
 	fmt.Fprintf(stdout, "pcqc: %d samples × %d variables, %d component%s retained (%s); verdict %s\n",
 		job.table.Rows(), len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
 	fmt.Fprintf(stdout, "pcqc: wrote %s\n", out.Target())
+	if level != "" && checks.Reached(results, level) {
+		return exitChecks, nil
+	}
 	return exitOK, nil
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -40,13 +41,13 @@ func TestDemoWritesAllOutputs(t *testing.T) {
 	if !strings.Contains(stdout, "invented") {
 		t.Errorf("demo does not say its data are invented: %q", stdout)
 	}
-	for _, name := range []string{"demo-data.csv", "variance.csv", "loadings.csv", "scores.csv", "summary.json"} {
+	for _, name := range []string{"demo-data.csv", "variance.csv", "loadings.csv", "scores.csv", "samples.csv", "summary.json"} {
 		if st, err := os.Stat(filepath.Join(out, name)); err != nil || st.Size() == 0 {
 			t.Errorf("%s missing or empty: %v", name, err)
 		}
 	}
 	variance := readCSV(t, filepath.Join(out, "variance.csv"))
-	if strings.Join(variance[0], ",") != "component,eigenvalue,percent,cumulative_percent" || len(variance) != 14 {
+	if !strings.HasPrefix(strings.Join(variance[0], ","), "component,eigenvalue,percent,cumulative_percent,") || len(variance) != 14 {
 		t.Errorf("variance.csv: header %v, %d rows (want 13 components)", variance[0], len(variance)-1)
 	}
 	scores := readCSV(t, filepath.Join(out, "scores.csv"))
@@ -57,12 +58,16 @@ func TestDemoWritesAllOutputs(t *testing.T) {
 	if loadings[0][0] != "variable" || len(loadings) != 14 || len(loadings[0]) != len(scores[0]) {
 		t.Errorf("loadings.csv: header %v, %d rows", loadings[0], len(loadings)-1)
 	}
+	samples := readCSV(t, filepath.Join(out, "samples.csv"))
+	if strings.Join(samples[0], ",") != "sample_id,t2,q,leverage,beyond" || len(samples) != 241 {
+		t.Errorf("samples.csv: header %v, %d rows", samples[0], len(samples)-1)
+	}
 	var summary map[string]any
 	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
 	if err := json.Unmarshal(b, &summary); err != nil {
 		t.Fatal(err)
 	}
-	for _, key := range []string{"tool", "input", "options", "components", "checks", "verdict"} {
+	for _, key := range []string{"tool", "input", "options", "components", "limits", "checks", "verdict"} {
 		if _, ok := summary[key]; !ok {
 			t.Errorf("summary.json lacks %q", key)
 		}
@@ -73,7 +78,7 @@ func TestDemoWritesAllOutputs(t *testing.T) {
 	}
 	for _, c := range summary["checks"].([]any) {
 		m := c.(map[string]any)
-		for _, key := range []string{"id", "title", "status", "value", "limit", "message"} {
+		for _, key := range []string{"id", "title", "status", "value", "limit", "message", "source"} {
 			if _, ok := m[key]; !ok {
 				t.Errorf("check %v lacks %q", m["id"], key)
 			}
@@ -168,5 +173,49 @@ func TestHelpAndVersion(t *testing.T) {
 	status, stdout, _ = runPCQC(t, "run", "-h")
 	if status != exitOK || !strings.Contains(stdout, "--scale") {
 		t.Errorf("run -h: %d %q", status, stdout)
+	}
+}
+
+func TestFailOnSetsExitStatus(t *testing.T) {
+	// The demo's verdict is warn (planted outliers), with no failing check.
+	cases := []struct {
+		failOn string
+		want   int
+	}{{"fail", exitOK}, {"warn", exitChecks}, {"never", exitOK}}
+	for _, c := range cases {
+		out := filepath.Join(t.TempDir(), "demo")
+		status, _, stderr := runPCQC(t, "demo", "--out", out, "--fail-on", c.failOn, "--permutations", "50")
+		if status != c.want {
+			t.Errorf("--fail-on %s: status %d, want %d (%s)", c.failOn, status, c.want, stderr)
+		}
+		if _, err := os.Stat(filepath.Join(out, "summary.json")); err != nil {
+			t.Errorf("--fail-on %s: outputs not written: %v", c.failOn, err)
+		}
+	}
+	// Pure noise fails sampling adequacy: exit 1 by default, 0 with never.
+	dir := t.TempDir()
+	data := filepath.Join(dir, "noise.csv")
+	var b strings.Builder
+	b.WriteString("a,b,c,d,e\n")
+	x := uint64(12345)
+	for i := 0; i < 300; i++ {
+		for j := 0; j < 5; j++ {
+			x = x*6364136223846793005 + 1442695040888963407 // a linear congruential generator (Knuth's MMIX constants)
+			if j > 0 {
+				b.WriteString(",")
+			}
+			fmt.Fprintf(&b, "%.6f", float64(x>>11)/float64(1<<53))
+		}
+		b.WriteString("\n")
+	}
+	os.WriteFile(data, []byte(b.String()), 0o644)
+	if status, _, stderr := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o1")); status != exitChecks {
+		t.Errorf("noise with default --fail-on: status %d (%s)", status, stderr)
+	}
+	if status, _, stderr := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o2"), "--fail-on", "never"); status != exitOK {
+		t.Errorf("noise with --fail-on never: status %d (%s)", status, stderr)
+	}
+	if status, _, _ := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o3"), "--fail-on", "sometimes"); status != exitUsage {
+		t.Errorf("invalid --fail-on accepted")
 	}
 }

@@ -62,6 +62,9 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 	if _, err := f.analysisOptions(); err != nil {
 		return 0, err
 	}
+	if _, err := f.failLevel(); err != nil {
+		return 0, err
+	}
 	if err := report.CheckTarget(f.out, f.force); err != nil {
 		return 0, usagef("%v", err)
 	}

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"pcqc/analysis"
+	"pcqc/checks"
 	"pcqc/report"
 )
 
@@ -24,7 +25,11 @@ type auditFlags struct {
 	delim      string
 	transform  string
 	scale      string
-	components string
+	components   string
+	permutations int
+	seed         uint64
+	threads      int
+	failOn       string
 
 	set map[string]bool // flags given on the command line
 }
@@ -41,6 +46,10 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.transform, "transform", string(analysis.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
+	fs.IntVar(&f.permutations, "permutations", analysis.DefaultPermutations, "")
+	fs.Uint64Var(&f.seed, "seed", analysis.DefaultSeed, "")
+	fs.IntVar(&f.threads, "threads", 0, "")
+	fs.StringVar(&f.failOn, "fail-on", string(checks.Fail), "")
 }
 
 // auditFlagHelp documents the shared flags, for `pcqc help run`.
@@ -63,8 +72,19 @@ Preprocessing (centring is always done):
                       sample standard deviation, n−1)
 
 Components:
-  --components RULE   N | variance:F (default variance:0.8, the fewest
-                      components reaching 80 % of the variance)
+  --components RULE   N | auto | parallel | broken-stick | kaiser | variance:F
+                      (default auto = parallel analysis). variance:0.8 keeps
+                      the fewest components reaching 80 % of the variance;
+                      kaiser (λ > 1) needs --scale unit
+  --permutations P    column-wise permutations for parallel analysis
+                      (default 200; 0 turns it off)
+  --seed S            seed of every random stream (default 1)
+  --threads T         worker threads (default: all cores); results do not
+                      depend on it
+
+Exit status:
+  --fail-on LEVEL     fail | warn | never (default fail): exit status 1 when any
+                      check reaches LEVEL; the outputs are written either way
 
 Output:
   --out DIR           output folder
@@ -129,7 +149,31 @@ func (f *auditFlags) analysisOptions() (analysis.Options, error) {
 	if opt.Components, err = analysis.ParseComponentRule(f.components); err != nil {
 		return opt, usagef("%v", err)
 	}
+	if f.permutations < 0 {
+		return opt, usagef("invalid --permutations %d: use 0 or more", f.permutations)
+	}
+	if f.permutations == 0 && opt.Components.Kind == analysis.RuleParallel {
+		return opt, usagef("--components %s needs permutations: give --permutations > 0 or another rule", opt.Components)
+	}
+	if f.threads < 0 {
+		return opt, usagef("invalid --threads %d: use 1 or more, or 0 for all cores", f.threads)
+	}
+	opt.Permutations, opt.Seed, opt.Threads = f.permutations, f.seed, f.threads
 	return opt, nil
+}
+
+// failLevel returns the status at which the exit status becomes 1, or ""
+// for never.
+func (f *auditFlags) failLevel() (checks.Status, error) {
+	switch f.failOn {
+	case "fail":
+		return checks.Fail, nil
+	case "warn":
+		return checks.Warn, nil
+	case "never":
+		return "", nil
+	}
+	return "", usagef("invalid --fail-on %q: use fail, warn or never", f.failOn)
 }
 
 // effective lists every option with the value in force, defaults included,
@@ -158,6 +202,9 @@ func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) rep
 		{Name: "scale", Value: f.scale},
 		{Name: "center", Value: true},
 		{Name: "components", Value: f.components},
+		{Name: "permutations", Value: f.permutations},
+		{Name: "seed", Value: f.seed},
+		{Name: "fail_on", Value: f.failOn},
 		{Name: "out", Value: f.out},
 		{Name: "force", Value: f.force},
 	}

@@ -24,8 +24,9 @@ The output folder is written complete or not at all: files are written to a
 temporary folder beside it and renamed into place. An existing non-empty
 output folder is refused unless --force is given.
 
-Exit status: 0 success, 2 usage or input error (nothing is written),
-3 the outputs could not be written.
+Exit status: 0 success, 1 a check reached the --fail-on level (the
+outputs are written), 2 usage or input error (nothing is written), 3 the
+outputs could not be written.
 
 ` + auditFlagHelp,
 	run: runRun,
@@ -56,6 +57,9 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 		return 0, err
 	}
 	if _, err := f.analysisOptions(); err != nil {
+		return 0, err
+	}
+	if _, err := f.failLevel(); err != nil {
 		return 0, err
 	}
 	// Refuse an occupied output folder before any work is done.

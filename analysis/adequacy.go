@@ -1,0 +1,350 @@
+package analysis
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Adequacy describes whether the data suit a PCA, measured on the
+// transformed table before centring and scaling.
+type Adequacy struct {
+	// Variance and Skewness per variable (sample variance, n−1; adjusted
+	// Fisher–Pearson skewness G1).
+	Variance []float64
+	Skewness []float64
+	Positive []bool // every value of the variable is > 0
+	// NearConstant lists variables that barely vary: at least
+	// NearConstantModeShare of their values identical, or a coefficient of
+	// variation below NearConstantCV.
+	NearConstant []int
+	// DuplicateRows groups the indices of rows whose variable values are
+	// identical; only groups of two or more are kept.
+	DuplicateRows [][]int
+
+	Bartlett Bartlett
+	KMO      KMO
+}
+
+// Near-constant detection (common practice): a variable whose values are
+// mostly one number, or whose spread is below a thousandth of its level,
+// carries little beyond measurement noise, which unit scaling would inflate
+// to the weight of any other variable.
+const (
+	NearConstantModeShare = 0.8
+	NearConstantCV        = 1e-3
+)
+
+// MaxCorrelationVariables caps p for the statistics that need the p×p
+// correlation matrix and its inverse (Bartlett, KMO): beyond it their cost
+// (order p³) outgrows the rest of the audit.
+const MaxCorrelationVariables = 2000
+
+// Bartlett is Bartlett's (1951) test of sphericity.
+type Bartlett struct {
+	Computed   bool
+	SkipReason string
+	Chi2       float64
+	DF         int
+	P          float64
+	Singular   bool // the correlation matrix is singular (collinear variables)
+}
+
+// KMO is the Kaiser–Meyer–Olkin measure of sampling adequacy.
+type KMO struct {
+	Computed    bool
+	SkipReason  string
+	Overall     float64
+	PerVariable []float64
+}
+
+// Skewness returns the adjusted Fisher–Pearson skewness
+// G1 = g1·√(n(n−1))/(n−2), g1 = m3/m2^(3/2) with central moments m_r
+// (Joanes & Gill 1998, The Statistician 47:183–189, type 2; the estimator of
+// most statistics packages). It is 0 for n < 3 or a constant column.
+func Skewness(x []float64) float64 {
+	n := float64(len(x))
+	if n < 3 {
+		return 0
+	}
+	mean := 0.0
+	for _, v := range x {
+		mean += v
+	}
+	mean /= n
+	// Scale by the largest deviation so that cubes cannot overflow.
+	scale := 0.0
+	for _, v := range x {
+		scale = math.Max(scale, math.Abs(v-mean))
+	}
+	if scale == 0 {
+		return 0
+	}
+	var m2, m3 float64
+	for _, v := range x {
+		d := (v - mean) / scale
+		m2 += d * d
+		m3 += d * d * d
+	}
+	m2 /= n
+	m3 /= n
+	if m2 == 0 {
+		return 0
+	}
+	g1 := m3 / math.Pow(m2, 1.5)
+	return g1 * math.Sqrt(n*(n-1)) / (n - 2)
+}
+
+// MeasureAdequacy computes the adequacy statistics of the transformed table
+// x (n × p). z is the preprocessed matrix (any scaling; the correlation
+// matrix does not depend on it).
+func MeasureAdequacy(x, z *mat.Dense) Adequacy {
+	n, p := x.Dims()
+	a := Adequacy{
+		Variance: make([]float64, p),
+		Skewness: make([]float64, p),
+		Positive: make([]bool, p),
+	}
+	col := make([]float64, n)
+	for j := 0; j < p; j++ {
+		mat.Col(col, j, x)
+		m := ColumnMean(x, j)
+		raw := x.RawMatrix()
+		sd := centredNorm(raw.Data, raw.Stride, n, j, m) / math.Sqrt(float64(n-1))
+		a.Variance[j] = sd * sd
+		a.Skewness[j] = Skewness(col)
+		pos := true
+		for _, v := range col {
+			if v <= 0 {
+				pos = false
+				break
+			}
+		}
+		a.Positive[j] = pos
+		if m != 0 && sd/math.Abs(m) < NearConstantCV || modeShare(col) >= NearConstantModeShare {
+			a.NearConstant = append(a.NearConstant, j)
+		}
+	}
+	a.DuplicateRows = duplicateRows(x)
+	a.Bartlett, a.KMO = correlationTests(z)
+	return a
+}
+
+// modeShare returns the share of the most frequent value in x.
+func modeShare(x []float64) float64 {
+	s := append([]float64(nil), x...)
+	sort.Float64s(s)
+	best, run := 1, 1
+	for i := 1; i < len(s); i++ {
+		if s[i] == s[i-1] { // identical values as read, not a tolerance question
+			run++
+			best = max(best, run)
+		} else {
+			run = 1
+		}
+	}
+	return float64(best) / float64(len(s))
+}
+
+// duplicateRows groups rows with identical values (bit for bit, as read).
+func duplicateRows(x *mat.Dense) [][]int {
+	n, p := x.Dims()
+	groups := map[string][]int{}
+	var order []string
+	key := make([]byte, 8*p)
+	for i := 0; i < n; i++ {
+		row := x.RawRowView(i)
+		for j, v := range row {
+			if v == 0 {
+				v = 0 // fold −0 into +0
+			}
+			b := math.Float64bits(v)
+			for s := 0; s < 8; s++ {
+				key[8*j+s] = byte(b >> (8 * s))
+			}
+		}
+		k := string(key)
+		if _, ok := groups[k]; !ok {
+			order = append(order, k)
+		}
+		groups[k] = append(groups[k], i)
+	}
+	var out [][]int
+	for _, k := range order {
+		if g := groups[k]; len(g) > 1 {
+			out = append(out, g)
+		}
+	}
+	return out
+}
+
+// correlationTests computes Bartlett's test of sphericity and the KMO
+// measure from the correlation matrix of the preprocessed data. Both are
+// skipped when p ≥ n (the correlation matrix is then singular by
+// construction) or p exceeds MaxCorrelationVariables.
+func correlationTests(z *mat.Dense) (Bartlett, KMO) {
+	n, p := z.Dims()
+	var b Bartlett
+	var k KMO
+	if p >= n {
+		reason := fmt.Sprintf("p = %d ≥ n = %d: the correlation matrix is singular by construction", p, n)
+		return Bartlett{SkipReason: reason}, KMO{SkipReason: reason}
+	}
+	if p > MaxCorrelationVariables {
+		reason := fmt.Sprintf("p = %d > %d variables: the p×p correlation matrix is too costly here", p, MaxCorrelationVariables)
+		return Bartlett{SkipReason: reason}, KMO{SkipReason: reason}
+	}
+	r := CorrelationMatrix(z)
+	b = BartlettSphericity(r, n)
+	k = KaiserMeyerOlkin(r)
+	return b, k
+}
+
+// CorrelationMatrix returns the p×p correlation matrix of the columns of z,
+// which must be centred.
+func CorrelationMatrix(z *mat.Dense) *mat.SymDense {
+	_, p := z.Dims()
+	raw := z.RawMatrix()
+	c := blas64.Symmetric{N: p, Stride: p, Uplo: blas.Upper, Data: make([]float64, p*p)}
+	blas64.Syrk(blas.Trans, 1, raw, 0, c)
+	r := mat.NewSymDense(p, c.Data)
+	d := make([]float64, p)
+	for j := 0; j < p; j++ {
+		d[j] = math.Sqrt(r.At(j, j))
+	}
+	for i := 0; i < p; i++ {
+		for j := i; j < p; j++ {
+			v := 1.0
+			if i != j {
+				v = r.At(i, j) / (d[i] * d[j])
+			}
+			r.SetSym(i, j, v)
+		}
+	}
+	return r
+}
+
+// BartlettSphericity tests whether the correlation matrix r of n samples is
+// the identity (Bartlett 1951, J. R. Statist. Soc. B 13:1–8; 1954, J. R.
+// Statist. Soc. B 16:296–298):
+//
+//	χ² = −(n − 1 − (2p+5)/6) ln|R|,  df = p(p−1)/2.
+//
+// A small p-value says the variables share structure worth reducing. ln|R|
+// is taken from the eigenvalues of R; a singular R (collinear variables)
+// gives p = 0.
+func BartlettSphericity(r *mat.SymDense, n int) Bartlett {
+	p := r.SymmetricDim()
+	b := Bartlett{Computed: true, DF: p * (p - 1) / 2}
+	var eig mat.EigenSym
+	if !eig.Factorize(r, false) {
+		return Bartlett{SkipReason: "the eigendecomposition of the correlation matrix failed"}
+	}
+	logDet := 0.0
+	for _, l := range eig.Values(nil) {
+		if l <= 1e-12 {
+			b.Singular = true
+			b.Chi2, b.P = math.Inf(1), 0
+			return b
+		}
+		logDet += math.Log(l)
+	}
+	b.Chi2 = -(float64(n) - 1 - float64(2*p+5)/6) * logDet
+	b.P = distuv.ChiSquared{K: float64(b.DF)}.Survival(b.Chi2)
+	return b
+}
+
+// KaiserMeyerOlkin returns the Kaiser–Meyer–Olkin measure of sampling
+// adequacy (Kaiser 1970, Psychometrika 35:401–415; Kaiser & Rice 1974, Educ.
+// Psychol. Meas. 34:111–117), overall and per variable:
+//
+//	KMO = Σ_{i≠j} r_ij² / (Σ_{i≠j} r_ij² + Σ_{i≠j} q_ij²)
+//
+// where q_ij = −(R⁻¹)_ij / √((R⁻¹)_ii (R⁻¹)_jj) are the partial correlations.
+// Values near 1 say the correlations are explained by shared components,
+// not by pairs of variables.
+func KaiserMeyerOlkin(r *mat.SymDense) KMO {
+	p := r.SymmetricDim()
+	var ch mat.Cholesky
+	if !ch.Factorize(r) || ch.Cond() > 1e12 {
+		return KMO{SkipReason: "the correlation matrix is singular or nearly so (collinear variables), so partial correlations are undefined"}
+	}
+	var inv mat.SymDense
+	if err := ch.InverseTo(&inv); err != nil {
+		return KMO{SkipReason: "the correlation matrix could not be inverted: " + err.Error()}
+	}
+	k := KMO{Computed: true, PerVariable: make([]float64, p)}
+	var totR, totQ float64
+	for i := 0; i < p; i++ {
+		var ri, qi float64
+		for j := 0; j < p; j++ {
+			if i == j {
+				continue
+			}
+			rij := r.At(i, j)
+			qij := -inv.At(i, j) / math.Sqrt(inv.At(i, i)*inv.At(j, j))
+			ri += rij * rij
+			qi += qij * qij
+		}
+		if ri+qi > 0 {
+			k.PerVariable[i] = ri / (ri + qi)
+		}
+		totR += ri
+		totQ += qi
+	}
+	if totR+totQ > 0 {
+		k.Overall = totR / (totR + totQ)
+	}
+	return k
+}
+
+// KMOLabel returns Kaiser's (1974, Psychometrika 39:31–36) words for a KMO
+// value.
+func KMOLabel(v float64) string {
+	switch {
+	case v >= 0.9:
+		return "marvellous"
+	case v >= 0.8:
+		return "meritorious"
+	case v >= 0.7:
+		return "middling"
+	case v >= 0.6:
+		return "mediocre"
+	case v >= 0.5:
+		return "miserable"
+	}
+	return "unacceptable"
+}
+
+// Separation is North's rule of thumb for one pair of neighbouring
+// eigenvalues.
+type Separation struct {
+	A            int     // 0-based index of the first of the pair (the second is A+1)
+	DeltaA       float64 // λ_A·√(2/n)
+	DeltaB       float64
+	Overlap      bool
+	BothRetained bool
+}
+
+// EigenvalueSeparation applies North, Bell, Cahalan & Moeng's (1982, Mon.
+// Weather Rev. 110:699–706) rule of thumb: the sampling error of an
+// eigenvalue is about δλ = λ·√(2/n), and when the intervals λ ± δλ of
+// neighbouring eigenvalues overlap, their components can mix: only the plane
+// they span is well determined. Pairs (a, a+1) for a = 1..k are returned, the
+// last one pairing the last retained component with the first discarded.
+func EigenvalueSeparation(eigenvalues []float64, n, k int) []Separation {
+	f := math.Sqrt(2 / float64(n))
+	var out []Separation
+	for a := 0; a < k && a+1 < len(eigenvalues); a++ {
+		la, lb := eigenvalues[a], eigenvalues[a+1]
+		s := Separation{A: a, DeltaA: la * f, DeltaB: lb * f, BothRetained: a+1 < k}
+		s.Overlap = la-s.DeltaA <= lb+s.DeltaB
+		out = append(out, s)
+	}
+	return out
+}

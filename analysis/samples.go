@@ -1,0 +1,155 @@
+package analysis
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Confidence levels of the control limits.
+const (
+	Conf95 = 0.95
+	Conf99 = 0.99
+)
+
+// Limits are the control limits for the per-sample statistics.
+type Limits struct {
+	T2_95, T2_99 float64 // Hotelling T², beta form for the model's own samples
+	Q95, Q99     float64 // Q residual
+	QMethod      QMethod
+	Leverage     float64 // 3(k+1)/n
+}
+
+// SampleStats are the per-sample diagnostics of a model with k components.
+type SampleStats struct {
+	T2       []float64 // Σ_a t_ia²/λ_a over the retained, non-null components
+	Q        []float64 // ‖z_i − ẑ_i‖², the squared residual off the retained components
+	Leverage []float64 // 1/n + T²_i/(n−1)
+	Limits   Limits
+	// Dominance is, per retained component, the largest share one sample
+	// has of the component's variance, t_ia²/Σ_j t_ja², and that sample.
+	Dominance       []float64
+	DominanceSample []int
+}
+
+// LeverageFactor is the multiplier in the leverage rule h > c(k+1)/n: the
+// conservative 3p/n form of Hoaglin & Welsch's (1978, Amer. Statist.
+// 32:17–22) 2p/n rule, with p = k+1 parameters (k components and the mean).
+const LeverageFactor = 3
+
+// ComputeSampleStats computes T², Q, leverage and dominance for the
+// preprocessed data z, the retained loadings v (p × k), their scores t
+// (n × k) and all eigenvalues (the discarded ones set the Q limits).
+//
+// Hotelling's T² (Hotelling 1931; Jackson 1991 §1.7) is the squared
+// Mahalanobis distance of a sample within the model plane. Q, also called the
+// squared prediction error, is its squared distance from that plane (Jackson
+// & Mudholkar 1979). Leverage is the diagonal of the hat matrix of a
+// regression on the scores with intercept: h_i = 1/n + Σ_a t_ia²/((n−1)λ_a).
+func ComputeSampleStats(z *mat.Dense, v, t mat.Matrix, eigenvalues []float64) SampleStats {
+	n, p := z.Dims()
+	_, k := t.Dims()
+	s := SampleStats{
+		T2:              make([]float64, n),
+		Q:               make([]float64, n),
+		Leverage:        make([]float64, n),
+		Dominance:       make([]float64, k),
+		DominanceSample: make([]int, k),
+	}
+	live := make([]bool, k)
+	for a := 0; a < k; a++ {
+		live[a] = eigenvalues[a] > NullRatio*eigenvalues[0]
+	}
+	vk := mat.DenseCopyOf(v)
+	row := make([]float64, p)
+	sumSq := make([]float64, k)
+	for i := 0; i < n; i++ {
+		t2 := 0.0
+		for a := 0; a < k; a++ {
+			ta := t.At(i, a)
+			sumSq[a] += ta * ta
+			if live[a] {
+				t2 += ta * ta / eigenvalues[a]
+			}
+		}
+		s.T2[i] = t2
+		s.Leverage[i] = 1/float64(n) + t2/float64(n-1)
+		copy(row, z.RawRowView(i))
+		for a := 0; a < k; a++ {
+			ta := t.At(i, a)
+			for j := 0; j < p; j++ {
+				row[j] -= ta * vk.At(j, a)
+			}
+		}
+		q := 0.0
+		for _, r := range row {
+			q += r * r
+		}
+		s.Q[i] = q
+	}
+	for a := 0; a < k; a++ {
+		for i := 0; i < n; i++ {
+			ta := t.At(i, a)
+			if sumSq[a] > 0 {
+				if share := ta * ta / sumSq[a]; share > s.Dominance[a] {
+					s.Dominance[a], s.DominanceSample[a] = share, i
+				}
+			}
+		}
+	}
+	s.Limits = ModelLimits(n, k, eigenvalues)
+	return s
+}
+
+// ModelLimits returns the control limits for the samples of a model with k
+// components built from n samples with the given eigenvalues (all of them).
+func ModelLimits(n, k int, eigenvalues []float64) Limits {
+	var l Limits
+	l.T2_95, l.T2_99 = T2LimitModel(n, k, Conf95), T2LimitModel(n, k, Conf99)
+	var discarded []float64
+	if k < len(eigenvalues) {
+		discarded = eigenvalues[k:]
+	}
+	l.Q95, l.QMethod = QLimit(discarded, Conf95)
+	l.Q99, _ = QLimit(discarded, Conf99)
+	l.Leverage = LeverageFactor * float64(k+1) / float64(n)
+	return l
+}
+
+// Beyond lists, for sample i, the limits it passes: "t2-99" (which implies
+// t2-95) or "t2-95", likewise "q-99" or "q-95", and "leverage".
+func (s SampleStats) Beyond(i int) []string {
+	var out []string
+	l := s.Limits
+	switch {
+	case above(s.T2[i], l.T2_99):
+		out = append(out, "t2-99")
+	case above(s.T2[i], l.T2_95):
+		out = append(out, "t2-95")
+	}
+	if l.QMethod != QNone {
+		switch {
+		case above(s.Q[i], l.Q99):
+			out = append(out, "q-99")
+		case above(s.Q[i], l.Q95):
+			out = append(out, "q-95")
+		}
+	}
+	if above(s.Leverage[i], l.Leverage) {
+		out = append(out, "leverage")
+	}
+	return out
+}
+
+func above(x, limit float64) bool { return !math.IsNaN(limit) && x > limit }
+
+// CountAbove returns how many values exceed limit, and their indices.
+func CountAbove(values []float64, limit float64) (int, []int) {
+	var idx []int
+	for i, v := range values {
+		if above(v, limit) {
+			idx = append(idx, i)
+		}
+	}
+	return len(idx), idx
+}

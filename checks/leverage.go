@@ -1,0 +1,30 @@
+package checks
+
+import (
+	"fmt"
+
+	"pcqc/analysis"
+)
+
+var leverage = Check{
+	ID:     "leverage",
+	Title:  "High-leverage samples",
+	Source: "Hoaglin & Welsch (1978) 2p/n rule, in its conservative 3p/n form with p = k + 1",
+	judge: func(in Input) Result {
+		s := in.Run.Samples
+		k := in.Run.Retained
+		_, idx := analysis.CountAbove(s.Leverage, s.Limits.Leverage)
+		r := Result{Value: len(idx), Limit: s.Limits.Leverage}
+		c := analysis.LeverageFactor
+		rule := fmt.Sprintf("h > %d(k+1)/n = %d·%d/%d = %s (Hoaglin & Welsch's 2p/n rule made conservative, p = k + 1 = %d parameters)", c, c, k+1, in.Run.Decomp.Rows, g3(s.Limits.Leverage), k+1)
+		if len(idx) == 0 {
+			r.Status = Pass
+			r.Message = "No sample has leverage " + rule + "."
+			return r
+		}
+		r.Status = Warn
+		r.Message = fmt.Sprintf("%s %s leverage %s: %s. Each pulls the components towards itself; refit without them to see whether the conclusions change.",
+			countNoun(len(idx), "sample"), plural("has", "have", len(idx)), rule, listIDs(idsOf(in.Run.Table.IDs, idx)))
+		return r
+	},
+}

@@ -1,0 +1,47 @@
+package checks
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"pcqc/analysis"
+)
+
+var skewness = Check{
+	ID:     "skewness",
+	Title:  "Skewed variables",
+	Source: "West, Finch & Curran (1995): |skewness| > 2",
+	judge: func(in Input) Result {
+		res := in.Run
+		ad := res.Adequacy
+		names := res.Table.Variables
+		worst, skewed, positive := 0.0, []string{}, []string{}
+		for j, s := range ad.Skewness {
+			worst = math.Max(worst, math.Abs(s))
+			if math.Abs(s) > SkewnessLimit {
+				skewed = append(skewed, fmt.Sprintf("%s (%s)", names[j], g3(s)))
+				if ad.Positive[j] {
+					positive = append(positive, names[j])
+				}
+			}
+		}
+		r := Result{Value: worst, Limit: SkewnessLimit}
+		if len(skewed) == 0 {
+			r.Status = Pass
+			r.Message = fmt.Sprintf("No variable is strongly skewed (largest |skewness| %s).", g3(worst))
+			return r
+		}
+		r.Status = Warn
+		verb := "is"
+		if len(skewed) > 1 {
+			verb = "are"
+		}
+		r.Message = fmt.Sprintf("%s %s strongly skewed: %s. A long tail lets a few samples drive the variance and the components.",
+			countNoun(len(skewed), "variable"), verb, strings.Join(skewed, ", "))
+		if len(positive) > 0 && res.Table.Transform == analysis.TransformNone {
+			r.Message += fmt.Sprintf(" All values are positive in %s; --transform log is the usual remedy for concentrations and counts.", strings.Join(positive, ", "))
+		}
+		return r
+	},
+}
