@@ -11,6 +11,7 @@ type Options struct {
 	Scaling      Scaling
 	Components   ComponentRule
 	Permutations int    // parallel analysis; 0 turns it off
+	Bootstrap    int    // resamples for loading stability; 0 turns it off
 	Seed         uint64 // for every random stream
 	Threads      int    // ≤ 0: all cores
 	Progress     Progress
@@ -26,14 +27,14 @@ const (
 // decomposition, the retained components and their scores, and the measured
 // properties and diagnostics of the result.
 type Result struct {
-	Table      *Table
-	Options    Options
-	Prep       Preprocessing
-	Z          *mat.Dense // n × p preprocessed matrix
-	Decomp     *Decomposition
-	Rule       ComponentRule
-	Counts     ComponentCounts
-	Retained   int // k ≥ 1
+	Table    *Table
+	Options  Options
+	Prep     Preprocessing
+	Z        *mat.Dense // n × p preprocessed matrix
+	Decomp   *Decomposition
+	Rule     ComponentRule
+	Counts   ComponentCounts
+	Retained int // k ≥ 1
 	// NoStructure is set when the rule in force found no component that
 	// stands out (count 0); one component is then kept for reference.
 	NoStructure bool
@@ -42,6 +43,7 @@ type Result struct {
 	Samples     SampleStats
 	Adequacy    Adequacy
 	Separation  []Separation
+	Stability   Stability
 }
 
 // Analyze preprocesses the table and computes its PCA and diagnostics. The
@@ -89,6 +91,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	r.Samples = ComputeSampleStats(z, v, r.Scores, d.Eigenvalues)
 	r.Adequacy = MeasureAdequacy(t.X, z)
 	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
+	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
 	return r, nil
 }
 

@@ -25,3 +25,22 @@ func benchmarkDecompose(b *testing.B, n, p int) {
 
 func BenchmarkDecomposeTall20000x50(b *testing.B)  { benchmarkDecompose(b, 20000, 50) }
 func BenchmarkDecomposeWide100x20000(b *testing.B) { benchmarkDecompose(b, 100, 20000) }
+
+// The whole analysis (decomposition, parallel analysis, bootstrap, checks'
+// inputs) for the benchmark workloads of the bootstrap issue: tall
+// 10,000 × 50 and wide 100 × 5,000, k = 3, B = 200, P = 50. bench/compare.sh
+// times the whole process against the numpy reference.
+func benchmarkAudit(b *testing.B, n, p int) {
+	x, _ := synth.LowRank(synth.RNG(1, 1), n, p, []float64{3, 2, 1.5}, 1)
+	tab := TableFromMatrix("bench", x, nil, nil)
+	opt := Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}, Permutations: 50, Bootstrap: 200, Seed: 1}
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := Analyze(tab, opt); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkAuditTall10000x50(b *testing.B) { benchmarkAudit(b, 10000, 50) }
+func BenchmarkAuditWide100x5000(b *testing.B) { benchmarkAudit(b, 100, 5000) }

@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"runtime"
 	"slices"
 
 	"gonum.org/v1/gonum/blas"
@@ -15,10 +16,13 @@ import (
 var WorkspaceBudget int64 = 256 << 20
 
 // workersFor returns how many workers may run when each needs perWorker
-// bytes: at most threads, at least one.
+// bytes: at most threads (all cores when threads ≤ 0), at least one.
 func workersFor(threads int, perWorker int64) int {
+	if threads <= 0 {
+		threads = runtime.NumCPU()
+	}
 	w := int(WorkspaceBudget / max(perWorker, 1))
-	return max(1, min(w, max(threads, 1)))
+	return max(1, min(w, threads))
 }
 
 // Parallel is the result of parallel analysis.

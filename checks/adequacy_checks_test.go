@@ -181,3 +181,36 @@ func TestSampleChecks(t *testing.T) {
 		}
 	}
 }
+
+func TestLoadingStabilityCheck(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(6, 43), 300, 10, []float64{5, 2.5}, 0.5)
+	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r := loadingStability.Run(Input{Run: res}); r.Status != Pass {
+		t.Errorf("well-separated components: %s %s", r.Status, r.Message)
+	}
+	// Two equally strong planted components mix: fail or warn, with the
+	// subspace note.
+	rng := synth.RNG(7, 43)
+	f := synth.Gaussian(rng, 200, 2)
+	x = synth.Gaussian(rng, 200, 8)
+	for i := 0; i < 200; i++ {
+		for j := 0; j < 8; j++ {
+			x.Set(i, j, 0.4*x.At(i, j)+3*f.At(i, j/4))
+		}
+	}
+	res, err = analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleNone, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := loadingStability.Run(Input{Run: res})
+	if (r.Status != Fail && r.Status != Warn) || !strings.Contains(r.Message, "mix within a stable subspace") {
+		t.Errorf("mixing pair: %s %s", r.Status, r.Message)
+	}
+	res.Stability = analysis.Stability{}
+	if r := loadingStability.Run(Input{Run: res}); r.Status != Skip {
+		t.Errorf("no bootstrap: %s", r.Status)
+	}
+}

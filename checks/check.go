@@ -107,6 +107,8 @@ var Registry = []Check{
 	outliersQ,
 	leverage,
 	dominance,
+	// Stability: would the loadings come out the same on another sample?
+	loadingStability,
 }
 
 // RunAll evaluates every registered check.

@@ -66,3 +66,12 @@ const (
 	// their disagreement is flagged (common practice).
 	RuleSpreadLimit = 1
 )
+
+// Stability. Tucker's congruence between reference and bootstrap loadings:
+// 0.85–0.94 "fair similarity", ≥ 0.95 "equal" (Lorenzo-Seva & ten Berge
+// 2006, Methodology 2:57–64). The 5th percentile over resamples is held
+// against them.
+const (
+	CongruencePass = 0.95
+	CongruenceFail = 0.85
+)

@@ -111,14 +111,8 @@ func months(from month, count int) []month {
 }
 
 // Seasonal drivers, each in [0, 1].
-func wetness(m int) float64 { // wettest in spring and late autumn
-	switch m {
-	case 3, 4, 11:
-		return 1
-	case 2, 5, 10, 12:
-		return 0.6
-	}
-	return 0.2
+func wetness(m int) float64 { // wettest in April and October, driest in January and July
+	return 0.5 + 0.5*math.Cos(4*math.Pi*float64(m-4)/12)
 }
 
 func winter(m int) float64 { // road salting from December to March
@@ -154,29 +148,29 @@ func generate(visits []month, seed uint64) []byte {
 			id := st.code + "-" + m.String()
 			// Latent processes, each roughly zero-mean with unit spread.
 			runoff := 2.2*(st.farm*(0.5+wetness(m.month))-0.45) + 0.55*norm()
-			salt := 2.4*(st.road*winter(m.month)-0.2) + 0.5*norm()
+			salt := 1.8*(st.road-0.5) + 0.8*st.road*(winter(m.month)-0.35) + 0.45*norm()
 			warm := 2.6*(summer(m.month)-0.5) + 0.5*norm()
 
 			nitrate := math.Exp(math.Log(2.5) + 0.55*runoff + 0.12*norm())
 			phosphate := math.Exp(math.Log(0.08) + 0.60*runoff + 0.15*norm())
 			ammonium := math.Exp(math.Log(0.05) + 0.30*runoff + 0.25*warm + 0.25*norm())
-			turbidity := math.Exp(math.Log(8) + 0.65*runoff + 0.25*norm())
-			solids := math.Exp(math.Log(14) + 0.60*runoff + 0.25*norm())
-			chloride := math.Exp(math.Log(32) + 0.65*salt + 0.12*norm())
-			sodium := math.Exp(math.Log(19) + 0.62*salt + 0.12*norm())
+			turbidity := math.Exp(math.Log(8) + 0.65*runoff + 0.18*norm())
+			solids := math.Exp(math.Log(14) + 0.60*runoff + 0.18*norm())
+			chloride := math.Exp(math.Log(32) + 0.55*salt + 0.30*norm())
+			sodium := math.Exp(math.Log(19) + 0.52*salt + 0.30*norm())
 			conductivity := 160 + 2.3*chloride + 2.6*sodium + 3.0*st.calcium + 25*norm()
-			temp := math.Max(0.5, 11.5+5.5*warm+0.9*norm())
+			temp := math.Max(0.5, 11.5+4.5*warm+2.2*norm())
 			saturation := 14.62 - 0.3898*temp + 0.006969*temp*temp // mg/L at sea level
 			oxygen := saturation * (0.93 - 0.035*warm + 0.025*norm())
-			ph := 7.55 + 0.16*warm - 0.04*runoff + 0.10*norm()
-			chlorophyll := math.Exp(math.Log(6) + 0.55*warm + 0.25*norm())
+			ph := 7.55 + 0.12*warm - 0.04*runoff + 0.14*norm()
+			chlorophyll := math.Exp(math.Log(6) + 0.45*warm + 0.40*norm())
 			calcium := st.calcium * math.Exp(0.06*norm())
 
 			switch {
 			case contains(SpillSamples, id):
-				ammonium = 2.5 + 1.5*rng.Float64()
-				phosphate = 0.9 + 0.4*rng.Float64()
-				oxygen = 3.2 + 0.8*rng.Float64()
+				ammonium = 0.6 + 0.3*rng.Float64()
+				phosphate = 0.45 + 0.2*rng.Float64()
+				oxygen = 4.0 + 0.8*rng.Float64()
 			case id == UnitMixUpSample:
 				temp = temp*9/5 + 32
 			}

@@ -58,6 +58,7 @@ type Summary struct {
 	Options    Options         `json:"options"`
 	Components ComponentsInfo  `json:"components"`
 	Limits     LimitsInfo      `json:"limits"`
+	Stability  *StabilityInfo  `json:"stability"`
 	Checks     []checks.Result `json:"checks"`
 	Verdict    checks.Status   `json:"verdict"`
 }
@@ -102,6 +103,55 @@ type LimitsInfo struct {
 	Q99      *float64 `json:"q_99"`
 	QMethod  string   `json:"q_method"`
 	Leverage float64  `json:"leverage"`
+}
+
+// StabilityInfo summarises the bootstrap; null when it did not run.
+type StabilityInfo struct {
+	Resamples   int                  `json:"resamples"`
+	Used        int                  `json:"used"`
+	Degenerate  int                  `json:"degenerate"`
+	Components  []ComponentStability `json:"components"`
+	Eigenvalues []EigenInterval      `json:"eigenvalues"`
+}
+
+type ComponentStability struct {
+	Component        string  `json:"component"`
+	CongruenceMedian float64 `json:"congruence_median"`
+	CongruenceP5     float64 `json:"congruence_p5"`
+	ProcrustesMedian float64 `json:"procrustes_median"`
+	ProcrustesP5     float64 `json:"procrustes_p5"`
+}
+
+type EigenInterval struct {
+	Component     string  `json:"component"`
+	Eigenvalue    float64 `json:"eigenvalue"`
+	CILow         float64 `json:"ci_low"`
+	CIHigh        float64 `json:"ci_high"`
+	Percent       float64 `json:"percent"`
+	PercentCILow  float64 `json:"percent_ci_low"`
+	PercentCIHigh float64 `json:"percent_ci_high"`
+}
+
+func stabilityInfo(res *analysis.Result) *StabilityInfo {
+	st := res.Stability
+	if st.Used == 0 {
+		return nil
+	}
+	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate}
+	for a, c := range st.Components {
+		info.Components = append(info.Components, ComponentStability{
+			Component: componentName(a), CongruenceMedian: c.CongruenceMedian, CongruenceP5: c.CongruenceP5,
+			ProcrustesMedian: c.ProcrustesMedian, ProcrustesP5: c.ProcrustesP5,
+		})
+	}
+	pct := Percentages(res.Decomp.Eigenvalues)
+	for a, l := range res.Decomp.Eigenvalues {
+		info.Eigenvalues = append(info.Eigenvalues, EigenInterval{
+			Component: componentName(a), Eigenvalue: l, CILow: st.Eigenvalues[a].Low, CIHigh: st.Eigenvalues[a].High,
+			Percent: pct[a], PercentCILow: st.Percent[a].Low, PercentCIHigh: st.Percent[a].High,
+		})
+	}
+	return info
 }
 
 // finite returns x, or nil when x is not a finite number (JSON has no NaN).
@@ -171,8 +221,9 @@ func BuildSummary(res *analysis.Result, results []checks.Result, meta Meta) Summ
 			QMethod:  string(lim.QMethod),
 			Leverage: lim.Leverage,
 		},
-		Checks:  results,
-		Verdict: checks.Verdict(results),
+		Stability: stabilityInfo(res),
+		Checks:    results,
+		Verdict:   checks.Verdict(results),
 	}
 }
 
@@ -195,6 +246,12 @@ func WriteTables(dir string, res *analysis.Result, results []checks.Result, meta
 		{"loadings.csv", LoadingsRows(res)},
 		{"scores.csv", ScoresRows(res.Table, res.Scores)},
 		{"samples.csv", SamplesRows(res)},
+	}
+	if rows := StabilityRows(res); rows != nil {
+		files = append(files, struct {
+			name string
+			rows [][]string
+		}{"stability.csv", rows})
 	}
 	for _, f := range files {
 		if err := writeCSV(join(f.name), f.rows); err != nil {

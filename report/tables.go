@@ -141,3 +141,22 @@ func ScoresRows(t *analysis.Table, scores *mat.Dense) [][]string {
 	}
 	return rows
 }
+
+// StabilityRows builds stability.csv: per variable and retained component,
+// the loading, its bootstrap mean and 95 % percentile interval, and whether
+// the interval excludes zero. Nil when the bootstrap did not run.
+func StabilityRows(res *analysis.Result) [][]string {
+	st := res.Stability
+	if st.Used == 0 {
+		return nil
+	}
+	rows := [][]string{{"variable", "component", "loading", "boot_mean", "ci_low", "ci_high", "excludes_zero"}}
+	v := res.Decomp.Loadings
+	for j, name := range res.Table.Variables {
+		for a := 0; a < res.Retained; a++ {
+			li := st.Loadings[j][a]
+			rows = append(rows, []string{name, componentName(a), num(v.At(j, a)), num(li.Mean), num(li.Low), num(li.High), strconv.FormatBool(li.ExcludesZero())})
+		}
+	}
+	return rows
+}

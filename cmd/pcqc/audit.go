@@ -22,11 +22,12 @@ type auditJob struct {
 
 // runAudit analyses the table, judges it and writes every output into the
 // output folder, which appears complete or not at all.
-func runAudit(job auditJob, stdout io.Writer) (int, error) {
+func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 	opt, err := job.flags.analysisOptions()
 	if err != nil {
 		return 0, err
 	}
+	opt.Progress = newProgress(stderr, job.flags.quiet)
 	res, err := analysis.Analyze(job.table, opt)
 	if err != nil {
 		return 0, err

@@ -219,3 +219,41 @@ func TestFailOnSetsExitStatus(t *testing.T) {
 		t.Errorf("invalid --fail-on accepted")
 	}
 }
+
+// Acceptance (bootstrap issue): stability.csv and summary.json are
+// byte-identical for --threads 1 and --threads 2 with the same seed.
+func TestThreadsDoNotChangeOutputs(t *testing.T) {
+	dir := t.TempDir()
+	for _, threads := range []string{"1", "2"} {
+		if status, _, stderr := runPCQC(t, "demo", "--out", filepath.Join(dir, threads), "--threads", threads, "--bootstrap", "100", "--seed", "7"); status != exitOK {
+			t.Fatalf("threads %s: %d %s", threads, status, stderr)
+		}
+	}
+	for _, name := range []string{"stability.csv", "summary.json", "variance.csv", "samples.csv"} {
+		a, err1 := os.ReadFile(filepath.Join(dir, "1", name))
+		b, err2 := os.ReadFile(filepath.Join(dir, "2", name))
+		if err1 != nil || err2 != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s differs between --threads 1 and 2 (%v %v)", name, err1, err2)
+		}
+	}
+	rows := readCSV(t, filepath.Join(dir, "1", "stability.csv"))
+	if strings.Join(rows[0], ",") != "variable,component,loading,boot_mean,ci_low,ci_high,excludes_zero" || len(rows) != 1+13*3 {
+		t.Errorf("stability.csv: %v, %d rows", rows[0], len(rows))
+	}
+}
+
+func TestBootstrapOffSkipsStability(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "o")
+	if status, _, stderr := runPCQC(t, "demo", "--out", out, "--bootstrap", "0"); status != exitOK {
+		t.Fatalf("%d %s", status, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(out, "stability.csv")); !os.IsNotExist(err) {
+		t.Errorf("stability.csv written without a bootstrap")
+	}
+	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
+	if !strings.Contains(string(b), `"stability": null`) || !strings.Contains(string(b), `"id": "loading-stability",
+      "title": "Loadings are stable under resampling",
+      "status": "skip"`) {
+		t.Errorf("summary.json does not mark stability as skipped")
+	}
+}

@@ -80,5 +80,5 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 		table:   t,
 		command: append([]string{"pcqc", "demo"}, args...),
 		extra:   map[string][]byte{demoDataName: data},
-	}, stdout)
+	}, stdout, stderr)
 }

@@ -27,6 +27,8 @@ type auditFlags struct {
 	scale      string
 	components   string
 	permutations int
+	bootstrap    int
+	quiet        bool
 	seed         uint64
 	threads      int
 	failOn       string
@@ -47,6 +49,8 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
 	fs.IntVar(&f.permutations, "permutations", analysis.DefaultPermutations, "")
+	fs.IntVar(&f.bootstrap, "bootstrap", analysis.DefaultBootstrap, "")
+	fs.BoolVar(&f.quiet, "quiet", false, "")
 	fs.Uint64Var(&f.seed, "seed", analysis.DefaultSeed, "")
 	fs.IntVar(&f.threads, "threads", 0, "")
 	fs.StringVar(&f.failOn, "fail-on", string(checks.Fail), "")
@@ -78,9 +82,14 @@ Components:
                       kaiser (λ > 1) needs --scale unit
   --permutations P    column-wise permutations for parallel analysis
                       (default 200; 0 turns it off)
+
+Stability:
+  --bootstrap B       bootstrap resamples of the whole pipeline for loading
+                      stability (default 500; 0 turns it off)
   --seed S            seed of every random stream (default 1)
   --threads T         worker threads (default: all cores); results do not
                       depend on it
+  --quiet             no progress bar (it is shown only on a terminal)
 
 Exit status:
   --fail-on LEVEL     fail | warn | never (default fail): exit status 1 when any
@@ -155,10 +164,13 @@ func (f *auditFlags) analysisOptions() (analysis.Options, error) {
 	if f.permutations == 0 && opt.Components.Kind == analysis.RuleParallel {
 		return opt, usagef("--components %s needs permutations: give --permutations > 0 or another rule", opt.Components)
 	}
+	if f.bootstrap < 0 {
+		return opt, usagef("invalid --bootstrap %d: use 0 or more", f.bootstrap)
+	}
 	if f.threads < 0 {
 		return opt, usagef("invalid --threads %d: use 1 or more, or 0 for all cores", f.threads)
 	}
-	opt.Permutations, opt.Seed, opt.Threads = f.permutations, f.seed, f.threads
+	opt.Permutations, opt.Bootstrap, opt.Seed, opt.Threads = f.permutations, f.bootstrap, f.seed, f.threads
 	return opt, nil
 }
 
@@ -177,7 +189,10 @@ func (f *auditFlags) failLevel() (checks.Status, error) {
 }
 
 // effective lists every option with the value in force, defaults included,
-// in the order of the help text. read is the input options actually used
+// in the order of the help text. Options that cannot change any result are
+// left out, so that runs differing only in them write identical summaries:
+// --out and --force (where the folder goes), --threads (results do not
+// depend on it) and --quiet. read is the input options actually used
 // (the demo sets its own id and group columns).
 func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) report.Options {
 	list := func(s []string) []string {
@@ -203,10 +218,9 @@ func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) rep
 		{Name: "center", Value: true},
 		{Name: "components", Value: f.components},
 		{Name: "permutations", Value: f.permutations},
+		{Name: "bootstrap", Value: f.bootstrap},
 		{Name: "seed", Value: f.seed},
 		{Name: "fail_on", Value: f.failOn},
-		{Name: "out", Value: f.out},
-		{Name: "force", Value: f.force},
 	}
 }
 

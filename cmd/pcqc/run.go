@@ -73,7 +73,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
-	return runAudit(auditJob{flags: &f, read: read, table: t, command: append([]string{"pcqc", "run"}, args...)}, stdout)
+	return runAudit(auditJob{flags: &f, read: read, table: t, command: append([]string{"pcqc", "run"}, args...)}, stdout, stderr)
 }
 
 func pathReason(err error) string {

@@ -1,0 +1,654 @@
+package analysis
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/floats"
+	"gonum.org/v1/gonum/mat"
+)
+
+// DefaultBootstrap is the default number of bootstrap resamples.
+const DefaultBootstrap = 500
+
+// Stability is the bootstrap assessment of a PCA (Efron 1979, Ann. Statist.
+// 7:1–26; for PCA, Jackson 1993, Ecology 74:2204–2214; Timmerman, Kiers &
+// Smilde 2007, Brit. J. Math. Statist. Psychol. 60:431–462).
+//
+// Every resample draws n rows with replacement and redoes the whole
+// preprocessing (its own means and scales) before its decomposition: the
+// bootstrap of the pipeline, not of the scores. Its retained loadings are
+// aligned to the reference twice: by a sign flip per component, and by an
+// orthogonal Procrustes rotation of the whole retained block (Schönemann
+// 1966, Psychometrika 31:1–10), which ignores how variance is shared out
+// within the retained subspace.
+type Stability struct {
+	Resamples  int // requested
+	Used       int // used: resamples in which no variable was constant
+	Degenerate int // skipped: some variable took one value only in the resample
+
+	Components []ComponentStability // per retained component
+	// Loadings[j][a] summarises the sign-aligned bootstrap loadings of
+	// variable j on component a.
+	Loadings [][]LoadingInterval
+	// Eigenvalues and Percent hold 95 % percentile intervals for every
+	// component's eigenvalue and share of the variance (in percent).
+	Eigenvalues []Interval
+	Percent     []Interval
+}
+
+// ComponentStability summarises Tucker's congruence coefficient between the
+// reference loadings of a component and the resamples' loadings.
+type ComponentStability struct {
+	CongruenceMedian float64 // after sign alignment
+	CongruenceP5     float64
+	ProcrustesMedian float64 // after Procrustes rotation of the retained block
+	ProcrustesP5     float64
+}
+
+// LoadingInterval is the bootstrap mean and 95 % percentile interval of one
+// loading.
+type LoadingInterval struct {
+	Mean, Low, High float64
+}
+
+// ExcludesZero reports whether the interval lies entirely on one side of 0.
+func (l LoadingInterval) ExcludesZero() bool { return l.Low > 0 || l.High < 0 }
+
+// Interval is a 95 % percentile interval.
+type Interval struct{ Low, High float64 }
+
+// TuckerCongruence returns φ(x, y) = Σxy / √(Σx² Σy²) (Tucker 1951; Lorenzo-
+// Seva & ten Berge 2006, Methodology 2:57–64).
+func TuckerCongruence(x, y []float64) float64 {
+	d := floats.Dot(x, y)
+	nx, ny := floats.Dot(x, x), floats.Dot(y, y)
+	if nx == 0 || ny == 0 {
+		return 0
+	}
+	return d / math.Sqrt(nx*ny)
+}
+
+// resampleResult is what one resample contributes.
+type resampleResult struct {
+	ok         bool
+	eigen      []float64 // all m eigenvalues
+	total      float64   // total variance of the resample
+	phi, procr []float64 // per retained component
+	loadings   []float64 // p × k aligned loadings (tall path), row-major
+	coef       []float64 // n × k coefficients (wide path), see wideLoadings
+}
+
+// bootstrapper holds what every resample reads. It never holds a copy of the
+// data per resample: a resample is a vector of counts, how often each row was
+// drawn.
+type bootstrapper struct {
+	n, p, m, k int
+	scaling    Scaling
+	z          *mat.Dense // preprocessed reference data
+	zt         []float64  // zᵀ, p × n row-major: each variable contiguous
+	zt2        []float64  // (zᵀ)² element-wise, for resample variances (wide path)
+	refScale   []float64  // the reference divisors c_j (for Pareto rescaling)
+	refSD      []float64  // sd of each reference preprocessed column
+	ref        *mat.Dense // p × k reference loadings
+	// Wide data without scaling stay in the reference row space: z = T Vᵀ.
+	scoresAll *mat.Dense // n × m reference scores of all components
+	loadAll   *mat.Dense // p × m reference loadings of all components
+}
+
+// Bootstrap runs B resamples of the pipeline behind r and summarises the
+// stability of its retained components. It is exact: each resample's
+// eigenvalues and loadings equal those of preprocessing and decomposing the
+// resampled rows directly, to rounding (a test compares them). Two
+// reductions make it fast without approximation:
+//
+//   - Tall data (n ≥ p): a resample's p×p cross-product is Σᵢ wᵢ zᵢzᵢᵀ for
+//     the counts wᵢ, from which its own means, scales and correlation (or
+//     covariance) follow; no rows are copied.
+//   - Wide data (p > n): the resample's nonzero spectrum is that of an n×n
+//     matrix. Without scaling, resampled and re-centred rows stay in the row
+//     space of the data, z = T Vᵀ, so the work is on the n × m scores alone
+//     (Fisher, Caffo, Schwartz & Zipunnikov 2016, J. Amer. Statist. Assoc.
+//     111:846–860). A resample's own rescaling is a diagonal in variable
+//     space, which leaves that row space, so with scaling the n×n Gram
+//     matrix is formed from the rescaled rows (O(n²p), still never p×p).
+//
+// Resamples draw from their own random streams (seed, index), so the result
+// does not depend on threads.
+func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Progress) Stability {
+	st := Stability{Resamples: resamples}
+	if resamples <= 0 {
+		return st
+	}
+	b := newBootstrapper(r)
+	n, p := b.n, b.p
+	tall := n >= p
+
+	results := make([]resampleResult, resamples)
+	counts := make([][]int32, resamples)
+	perWorker := int64(8 * (n + p*p + 4*p))
+	if !tall {
+		perWorker = int64(8 * (n*p + n*n))
+	}
+	workers := workersFor(threads, perWorker)
+	newWorkspace := func() *bootWorkspace { return &bootWorkspace{} }
+	parallelFor(resamples, workers, newWorkspace, func(w *bootWorkspace, i int) {
+		c := drawCounts(taskRNG(seed, streamBootstrap, i), n)
+		counts[i] = c
+		results[i] = b.resample(w, c)
+	}, "bootstrap", progress)
+
+	var used []int
+	for i, res := range results {
+		if res.ok {
+			used = append(used, i)
+		}
+	}
+	st.Used, st.Degenerate = len(used), resamples-len(used)
+	if st.Used == 0 {
+		return st
+	}
+	st.summarise(b, results, counts, used, tall, workers)
+	return st
+}
+
+func newBootstrapper(r *Result) *bootstrapper {
+	n, p := r.Z.Dims()
+	b := &bootstrapper{
+		n: n, p: p, m: r.Decomp.Components(), k: r.Retained,
+		scaling:  r.Prep.Scaling,
+		z:        r.Z,
+		refScale: r.Prep.Scales,
+		ref:      mat.DenseCopyOf(r.RetainedLoadings()),
+	}
+	b.zt = transpose(r.Z)
+	b.refSD = make([]float64, p)
+	for j := 0; j < p; j++ {
+		col := b.zt[j*n : (j+1)*n]
+		b.refSD[j] = math.Sqrt(floats.Dot(col, col) / float64(n-1))
+	}
+	if n < p && b.scaling == ScaleNone {
+		b.loadAll = r.Decomp.Loadings
+		b.scoresAll = r.Decomp.Scores(r.Z, b.m)
+	}
+	if n < p && (b.scaling == ScaleUnit || b.scaling == ScalePareto) {
+		b.zt2 = make([]float64, len(b.zt))
+		for i, v := range b.zt {
+			b.zt2[i] = v * v
+		}
+	}
+	return b
+}
+
+// resample computes one resample's result from its counts.
+func (b *bootstrapper) resample(w *bootWorkspace, counts []int32) resampleResult {
+	if b.n >= b.p {
+		return b.tallResample(w, counts)
+	}
+	return b.wideResample(w, counts)
+}
+
+// drawCounts draws n rows with replacement and returns how often each row
+// was drawn.
+func drawCounts(rng *rand.Rand, n int) []int32 {
+	c := make([]int32, n)
+	for i := 0; i < n; i++ {
+		c[rng.IntN(n)]++
+	}
+	return c
+}
+
+func transpose(z *mat.Dense) []float64 {
+	n, p := z.Dims()
+	raw := z.RawMatrix()
+	out := make([]float64, n*p)
+	for i := 0; i < n; i++ {
+		row := raw.Data[i*raw.Stride : i*raw.Stride+p]
+		for j, v := range row {
+			out[j*n+i] = v
+		}
+	}
+	return out
+}
+
+type bootWorkspace struct {
+	sel           []int32
+	weights       []float64
+	tmp, means, g []float64
+	cross         []float64
+	rows          []float64
+	gram          []float64
+	eig           mat.EigenSym
+	values        []float64
+	vecs          mat.Dense
+}
+
+func grow(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, n)
+	}
+	return s[:n]
+}
+
+// scaleFactor returns g_j, the factor that turns a reference-preprocessed
+// column into the resample's own preprocessing, given the resample's
+// standard deviation and range of that column in reference units; ok is
+// false when the column is constant in the resample.
+//
+// With z = (x − μ)/c: unit scaling divides by sd_b(x) = c·sd_b(z), so
+// g = 1/sd_b(z); Pareto divides by √(c·sd_b(z)), so g = √(c/sd_b(z)); range
+// divides by c·range_b(z), so g = 1/range_b(z); none leaves g = 1.
+func (b *bootstrapper) scaleFactor(j int, sd, rng float64) (float64, bool) {
+	switch b.scaling {
+	case ScaleUnit:
+		if sd <= 1e-10*b.refSD[j] {
+			return 0, false
+		}
+		return 1 / sd, true
+	case ScalePareto:
+		if sd <= 1e-10*b.refSD[j] {
+			return 0, false
+		}
+		return math.Sqrt(b.refScale[j] / sd), true
+	case ScaleRange:
+		if rng <= 1e-10*b.refSD[j] {
+			return 0, false
+		}
+		return 1 / rng, true
+	}
+	return 1, true
+}
+
+// columnRange returns the range of variable j over the rows drawn, in
+// reference units.
+func (b *bootstrapper) columnRange(j int, counts []int32) float64 {
+	col := b.zt[j*b.n : (j+1)*b.n]
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for i, c := range counts {
+		if c == 0 {
+			continue
+		}
+		if v := col[i]; v < lo {
+			lo = v
+		}
+		if v := col[i]; v > hi {
+			hi = v
+		}
+	}
+	return hi - lo
+}
+
+// resampleScaling fills means[j] and g[j] for the variables j in
+// [from, to): the resample's mean in reference units and its scale factor
+// (see scaleFactor), from the counts, by matrix–vector products with zᵀ and
+// (zᵀ)². weights holds the counts as floats; tmp needs to − from entries.
+// It returns false when a variable is constant in the resample.
+func (b *bootstrapper) resampleScaling(counts []int32, weights []float64, from, to int, means, g, tmp []float64) bool {
+	n, rows := b.n, to-from
+	nf := float64(n)
+	w := blas64.Vector{N: n, Inc: 1, Data: weights}
+	zt := blas64.General{Rows: rows, Cols: n, Stride: n, Data: b.zt[from*n : to*n]}
+	blas64.Gemv(blas.NoTrans, 1/nf, zt, w, 0, blas64.Vector{N: rows, Inc: 1, Data: means[from:to]})
+	needSD := b.scaling == ScaleUnit || b.scaling == ScalePareto
+	if needSD {
+		zt2 := blas64.General{Rows: rows, Cols: n, Stride: n, Data: b.zt2[from*n : to*n]}
+		blas64.Gemv(blas.NoTrans, 1, zt2, w, 0, blas64.Vector{N: rows, Inc: 1, Data: tmp[:rows]})
+	}
+	for j := from; j < to; j++ {
+		var sd, rng float64
+		if needSD {
+			m := means[j]
+			sd = math.Sqrt(math.Max(tmp[j-from]-nf*m*m, 0) / (nf - 1))
+		}
+		if b.scaling == ScaleRange {
+			rng = b.columnRange(j, counts)
+		}
+		gj, ok := b.scaleFactor(j, sd, rng)
+		if !ok {
+			return false
+		}
+		g[j] = gj
+	}
+	return true
+}
+
+// tallResample handles n ≥ p through the p×p cross-product of the counts:
+// the rows drawn (each once, weighted by √count) are gathered variable by
+// variable and their cross-product taken with one symmetric rank-k update.
+func (b *bootstrapper) tallResample(w *bootWorkspace, counts []int32) resampleResult {
+	n, p := b.n, b.p
+	w.sel = w.sel[:0]
+	w.weights = w.weights[:0]
+	for i, c := range counts {
+		if c > 0 {
+			w.sel = append(w.sel, int32(i))
+			w.weights = append(w.weights, math.Sqrt(float64(c)))
+		}
+	}
+	nu := len(w.sel)
+	w.rows = grow(w.rows, p*nu)
+	w.means = grow(w.means, p)
+	w.g = grow(w.g, p)
+	w.cross = grow(w.cross, p*p)
+	sqrtW := w.weights
+	nf := float64(n)
+	for j := 0; j < p; j++ {
+		col := b.zt[j*n : (j+1)*n]
+		row := w.rows[j*nu : (j+1)*nu]
+		for r, i := range w.sel {
+			row[r] = sqrtW[r] * col[i]
+		}
+		w.means[j] = floats.Dot(sqrtW, row) / nf
+	}
+	// S = Σ w_i z_i z_iᵀ − n m mᵀ: the resample's centred cross-product. The
+	// reference data are already centred and scaled, so the correction term
+	// is small and loses no precision.
+	a := blas64.General{Rows: p, Cols: nu, Stride: nu, Data: w.rows}
+	blas64.Syrk(blas.NoTrans, 1, a, 0, blas64.Symmetric{N: p, Stride: p, Uplo: blas.Upper, Data: w.cross})
+	for j := 0; j < p; j++ {
+		for l := j; l < p; l++ {
+			w.cross[j*p+l] -= nf * w.means[j] * w.means[l]
+		}
+	}
+	for j := 0; j < p; j++ {
+		sd := math.Sqrt(math.Max(w.cross[j*p+j], 0) / (nf - 1))
+		rng := 0.0
+		if b.scaling == ScaleRange {
+			rng = b.columnRange(j, counts)
+		}
+		g, ok := b.scaleFactor(j, sd, rng)
+		if !ok {
+			return resampleResult{}
+		}
+		w.g[j] = g
+	}
+	total := 0.0
+	for j := 0; j < p; j++ {
+		for l := j; l < p; l++ {
+			w.cross[j*p+l] *= w.g[j] * w.g[l]
+		}
+		total += w.cross[j*p+j]
+	}
+	sym := mat.NewSymDense(p, w.cross)
+	if !w.eig.Factorize(sym, true) {
+		return resampleResult{}
+	}
+	w.values = w.eig.Values(grow(w.values, sym.SymmetricDim()))
+	w.eig.VectorsTo(&w.vecs)
+	res := resampleResult{ok: true, total: total / (nf - 1), eigen: make([]float64, b.m)}
+	for a := 0; a < b.m; a++ {
+		res.eigen[a] = math.Max(w.values[p-1-a], 0) / (nf - 1)
+	}
+	v := mat.NewDense(p, b.k, nil)
+	for a := 0; a < b.k; a++ {
+		for j := 0; j < p; j++ {
+			v.Set(j, a, w.vecs.At(j, p-1-a))
+		}
+	}
+	b.align(&res, v, nil)
+	res.loadings = v.RawMatrix().Data
+	return res
+}
+
+// wideResample handles p > n through an n_u × n_u Gram matrix, n_u being
+// the number of distinct rows drawn: rows drawn w times enter once, weighted
+// by √w, which leaves the nonzero spectrum unchanged.
+func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleResult {
+	n, p, k := b.n, b.p, b.k
+	var sel []int
+	for i, c := range counts {
+		if c > 0 {
+			sel = append(sel, i)
+		}
+	}
+	nu := len(sel)
+	nf := float64(n)
+	w.means = grow(w.means, p)
+	w.g = grow(w.g, p)
+	w.tmp = grow(w.tmp, p)
+	w.weights = grow(w.weights, n)
+	for i, c := range counts {
+		w.weights[i] = float64(c)
+	}
+	if !b.resampleScaling(counts, w.weights, 0, p, w.means, w.g, w.tmp) {
+		return resampleResult{}
+	}
+	var cols int // width of the rows whose Gram matrix is taken
+	if b.scoresAll != nil {
+		// Row space: rows of z are rows of T Vᵀ, so work on T (n × m).
+		cols = b.m
+		w.rows = grow(w.rows, nu*cols)
+		tm := make([]float64, cols)
+		for i, c := range counts {
+			if c > 0 {
+				floats.AddScaled(tm, float64(c), b.scoresAll.RawRowView(i))
+			}
+		}
+		floats.Scale(1/nf, tm)
+		for r, i := range sel {
+			row := w.rows[r*cols : (r+1)*cols]
+			sw := math.Sqrt(float64(counts[i]))
+			for a, v := range b.scoresAll.RawRowView(i) {
+				row[a] = sw * (v - tm[a])
+			}
+		}
+	} else {
+		cols = p
+		w.rows = grow(w.rows, nu*cols)
+		for r, i := range sel {
+			row := w.rows[r*p : (r+1)*p]
+			sw := math.Sqrt(float64(counts[i]))
+			for j, v := range b.z.RawRowView(i) {
+				row[j] = sw * (v - w.means[j]) * w.g[j]
+			}
+		}
+	}
+	w.gram = grow(w.gram, nu*nu)
+	rows := blas64.General{Rows: nu, Cols: cols, Stride: cols, Data: w.rows}
+	blas64.Syrk(blas.NoTrans, 1, rows, 0, blas64.Symmetric{N: nu, Stride: nu, Uplo: blas.Upper, Data: w.gram})
+	total := 0.0
+	for r := 0; r < nu; r++ {
+		total += w.gram[r*nu+r]
+	}
+	sym := mat.NewSymDense(nu, w.gram)
+	if !w.eig.Factorize(sym, true) {
+		return resampleResult{}
+	}
+	w.values = w.eig.Values(grow(w.values, sym.SymmetricDim()))
+	w.vecs.Reset() // the size changes from resample to resample
+	w.eig.VectorsTo(&w.vecs)
+	res := resampleResult{ok: true, total: total / (nf - 1), eigen: make([]float64, b.m)}
+	for a := 0; a < b.m && a < nu; a++ {
+		res.eigen[a] = math.Max(w.values[nu-1-a], 0) / (nf - 1)
+	}
+	// coef[i][a] = √w_i u_ia / s_a over the distinct rows: the resample's
+	// loading of variable j on component a is then
+	// g_j (Σ_i z_ij coef_ia − m_j Σ_i coef_ia), see wideLoadings.
+	coef := make([]float64, n*k)
+	for a := 0; a < k; a++ {
+		ev := w.values[nu-1-a]
+		if ev <= 0 {
+			return resampleResult{}
+		}
+		s := math.Sqrt(ev)
+		for r, i := range sel {
+			coef[i*k+a] = math.Sqrt(float64(counts[i])) * w.vecs.At(r, nu-1-a) / s
+		}
+	}
+	var v *mat.Dense
+	if b.scoresAll != nil {
+		// V_b = V (Aᵀ U / s), with A the weighted, centred score rows.
+		h := mat.NewDense(cols, k, nil)
+		for a := 0; a < k; a++ {
+			s := math.Sqrt(w.values[nu-1-a])
+			for r := 0; r < nu; r++ {
+				u := w.vecs.At(r, nu-1-a) / s
+				for c := 0; c < cols; c++ {
+					h.Set(c, a, h.At(c, a)+u*w.rows[r*cols+c])
+				}
+			}
+		}
+		v = mat.NewDense(p, k, nil)
+		v.Mul(b.loadAll, h)
+	} else {
+		v = b.wideLoadings(w.means, w.g, coef, 0, p)
+	}
+	b.align(&res, v, coef)
+	res.coef = coef
+	return res
+}
+
+// wideLoadings returns the resample loadings of variables [from, to) from
+// the coefficients: V[j][a] = g_j (Σ_i z_ij coef_ia − m_j Σ_i coef_ia).
+func (b *bootstrapper) wideLoadings(means, g, coef []float64, from, to int) *mat.Dense {
+	n, k := b.n, b.k
+	colSum := make([]float64, k)
+	for i := 0; i < n; i++ {
+		for a := 0; a < k; a++ {
+			colSum[a] += coef[i*k+a]
+		}
+	}
+	v := mat.NewDense(to-from, k, nil)
+	zt := blas64.General{Rows: to - from, Cols: n, Stride: n, Data: b.zt[from*n : to*n]}
+	c := blas64.General{Rows: n, Cols: k, Stride: k, Data: coef}
+	blas64.Gemm(blas.NoTrans, blas.NoTrans, 1, zt, c, 0, v.RawMatrix())
+	raw := v.RawMatrix().Data
+	for j := from; j < to; j++ {
+		row := raw[(j-from)*k : (j-from+1)*k]
+		for a := range row {
+			row[a] = g[j] * (row[a] - means[j]*colSum[a])
+		}
+	}
+	return v
+}
+
+// align flips the sign of each resample component to agree with the
+// reference (flipping coef too), measures Tucker's congruence per
+// component, and measures it again after an orthogonal Procrustes rotation
+// of the retained block onto the reference.
+func (b *bootstrapper) align(res *resampleResult, v *mat.Dense, coef []float64) {
+	p, k := b.p, b.k
+	res.phi = make([]float64, k)
+	res.procr = make([]float64, k)
+	col := make([]float64, p)
+	refCol := make([]float64, p)
+	for a := 0; a < k; a++ {
+		mat.Col(col, a, v)
+		mat.Col(refCol, a, b.ref)
+		phi := TuckerCongruence(col, refCol)
+		if phi < 0 {
+			phi = -phi
+			for j := 0; j < p; j++ {
+				v.Set(j, a, -v.At(j, a))
+			}
+			for i := 0; coef != nil && i < b.n; i++ {
+				coef[i*k+a] = -coef[i*k+a]
+			}
+		}
+		res.phi[a] = phi
+	}
+	// Procrustes: R = P Qᵀ from the SVD Vᵀ V_ref = P Σ Qᵀ minimises
+	// ‖V R − V_ref‖ over orthogonal R (Schönemann 1966).
+	var cross mat.Dense
+	cross.Mul(v.T(), b.ref)
+	var svd mat.SVD
+	if !svd.Factorize(&cross, mat.SVDFull) {
+		copy(res.procr, res.phi)
+		return
+	}
+	var pm, qm, rot, rotated mat.Dense
+	svd.UTo(&pm)
+	svd.VTo(&qm)
+	rot.Mul(&pm, qm.T())
+	rotated.Mul(v, &rot)
+	for a := 0; a < k; a++ {
+		mat.Col(col, a, &rotated)
+		mat.Col(refCol, a, b.ref)
+		res.procr[a] = TuckerCongruence(col, refCol)
+	}
+}
+
+// summarise turns the resample results into the stability summary.
+func (st *Stability) summarise(b *bootstrapper, results []resampleResult, counts [][]int32, used []int, tall bool, workers int) {
+	p, k, m := b.p, b.k, b.m
+	u := len(used)
+	vals := make([]float64, u)
+	sortedPercentiles := func(fill func(i int) float64) (lo, hi, median, p5, mean float64) {
+		sum := 0.0
+		for x, i := range used {
+			vals[x] = fill(i)
+			sum += vals[x]
+		}
+		slices.Sort(vals)
+		return percentile(vals, 2.5), percentile(vals, 97.5), percentile(vals, 50), percentile(vals, 5), sum / float64(u)
+	}
+	st.Components = make([]ComponentStability, k)
+	for a := 0; a < k; a++ {
+		_, _, med, p5, _ := sortedPercentiles(func(i int) float64 { return results[i].phi[a] })
+		st.Components[a].CongruenceMedian, st.Components[a].CongruenceP5 = med, p5
+		_, _, med, p5, _ = sortedPercentiles(func(i int) float64 { return results[i].procr[a] })
+		st.Components[a].ProcrustesMedian, st.Components[a].ProcrustesP5 = med, p5
+	}
+	st.Eigenvalues = make([]Interval, m)
+	st.Percent = make([]Interval, m)
+	for a := 0; a < m; a++ {
+		lo, hi, _, _, _ := sortedPercentiles(func(i int) float64 { return results[i].eigen[a] })
+		st.Eigenvalues[a] = Interval{lo, hi}
+		lo, hi, _, _, _ = sortedPercentiles(func(i int) float64 { return 100 * results[i].eigen[a] / results[i].total })
+		st.Percent[a] = Interval{lo, hi}
+	}
+
+	st.Loadings = make([][]LoadingInterval, p)
+	for j := range st.Loadings {
+		st.Loadings[j] = make([]LoadingInterval, k)
+	}
+	if tall {
+		for j := 0; j < p; j++ {
+			for a := 0; a < k; a++ {
+				lo, hi, _, _, mean := sortedPercentiles(func(i int) float64 { return results[i].loadings[j*k+a] })
+				st.Loadings[j][a] = LoadingInterval{Mean: mean, Low: lo, High: hi}
+			}
+		}
+		return
+	}
+	// Wide data: the p × k loadings of every resample are not kept; they
+	// are rebuilt in blocks of variables from the counts and the n × k
+	// coefficients, so memory stays at a block × k × B.
+	const block = 256
+	blocks := (p + block - 1) / block
+	parallelFor(blocks, workers, func() []float64 { return make([]float64, 0) }, func(_ []float64, bi int) {
+		from, to := bi*block, min(p, (bi+1)*block)
+		width := to - from
+		samples := make([]float64, width*k*u) // [j][a][resample]
+		means := make([]float64, b.p)
+		g := make([]float64, b.p)
+		tmp := make([]float64, width)
+		weights := make([]float64, b.n)
+		for x, i := range used {
+			for r, c := range counts[i] {
+				weights[r] = float64(c)
+			}
+			b.resampleScaling(counts[i], weights, from, to, means, g, tmp)
+			v := b.wideLoadings(means, g, results[i].coef, from, to)
+			for j := 0; j < width; j++ {
+				for a := 0; a < k; a++ {
+					samples[(j*k+a)*u+x] = v.At(j, a)
+				}
+			}
+		}
+		for j := 0; j < width; j++ {
+			for a := 0; a < k; a++ {
+				s := samples[(j*k+a)*u : (j*k+a+1)*u]
+				sum := 0.0
+				for _, v := range s {
+					sum += v
+				}
+				slices.Sort(s)
+				st.Loadings[from+j][a] = LoadingInterval{Mean: sum / float64(u), Low: percentile(s, 2.5), High: percentile(s, 97.5)}
+			}
+		}
+	}, "", nil)
+}
