@@ -15,16 +15,16 @@ import (
 // auditFlags are the flags shared by every subcommand that audits data (run
 // and demo), so that they mean the same everywhere.
 type auditFlags struct {
-	out        string
-	force      bool
-	id         string
-	group      string
-	columns    string
-	drop       string
-	missing    string
-	delim      string
-	transform  string
-	scale      string
+	out          string
+	force        bool
+	id           string
+	group        string
+	columns      string
+	drop         string
+	missing      string
+	delim        string
+	transform    string
+	scale        string
 	components   string
 	permutations int
 	bootstrap    int
