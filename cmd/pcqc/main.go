@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/pprof"
 
 	"pcqc/analysis"
 )
@@ -63,6 +64,17 @@ func lookupCommand(name string) *command {
 }
 
 func main() {
+	// PCQC_CPUPROFILE=file writes a CPU profile, for developers measuring
+	// the whole process (see bench/).
+	if path := os.Getenv("PCQC_CPUPROFILE"); path != "" {
+		if f, err := os.Create(path); err == nil {
+			pprof.StartCPUProfile(f)
+			status := mainWithArgs(os.Args[1:], os.Stdout, os.Stderr)
+			pprof.StopCPUProfile()
+			f.Close()
+			os.Exit(status)
+		}
+	}
 	os.Exit(mainWithArgs(os.Args[1:], os.Stdout, os.Stderr))
 }
 
