@@ -230,8 +230,8 @@ func CorrelationMatrix(z *mat.Dense) *mat.SymDense {
 }
 
 // BartlettSphericity tests whether the correlation matrix r of n samples is
-// the identity (Bartlett 1951, J. R. Statist. Soc. B 13:1–8; 1954, J. R.
-// Statist. Soc. B 16:296–298):
+// the identity (Bartlett 1950, Brit. J. Psychol. Statist. Sect. 3:77–85,
+// with the multiplying factor of Bartlett 1951, Biometrika 38:337–344):
 //
 //	χ² = −(n − 1 − (2p+5)/6) ln|R|,  df = p(p−1)/2.
 //

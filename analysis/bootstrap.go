@@ -31,6 +31,10 @@ type Stability struct {
 	Degenerate int // skipped: some variable took one value only in the resample
 
 	Components []ComponentStability // per retained component
+	// Congruence and Procrustes hold, per retained component, Tucker's φ of
+	// every used resample (in resample order) after sign alignment and after
+	// the Procrustes rotation: the distributions behind Components.
+	Congruence, Procrustes [][]float64
 	// Loadings[j][a] summarises the sign-aligned bootstrap loadings of
 	// variable j on component a.
 	Loadings [][]LoadingInterval
@@ -586,7 +590,13 @@ func (st *Stability) summarise(b *bootstrapper, results []resampleResult, counts
 		return percentile(vals, 2.5), percentile(vals, 97.5), percentile(vals, 50), percentile(vals, 5), sum / float64(u)
 	}
 	st.Components = make([]ComponentStability, k)
+	st.Congruence = make([][]float64, k)
+	st.Procrustes = make([][]float64, k)
 	for a := 0; a < k; a++ {
+		for _, i := range used {
+			st.Congruence[a] = append(st.Congruence[a], results[i].phi[a])
+			st.Procrustes[a] = append(st.Procrustes[a], results[i].procr[a])
+		}
 		_, _, med, p5, _ := sortedPercentiles(func(i int) float64 { return results[i].phi[a] })
 		st.Components[a].CongruenceMedian, st.Components[a].CongruenceP5 = med, p5
 		_, _, med, p5, _ = sortedPercentiles(func(i int) float64 { return results[i].procr[a] })

@@ -37,11 +37,11 @@ func (s Status) AtLeast(level Status) bool { return s.severity() >= level.severi
 func (s Status) Symbol() string {
 	switch s {
 	case Pass:
-		return "✓"
+		return "+"
 	case Warn:
 		return "!"
 	case Fail:
-		return "✗"
+		return "×"
 	}
 	return "–"
 }

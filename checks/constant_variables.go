@@ -23,7 +23,7 @@ var constantVariables = Check{
 			return r
 		}
 		r.Status = Warn
-		r.Message = fmt.Sprintf("%s had a single value and %s dropped: %s. A constant can carry no component; check that it is not a stuck sensor or a failed export.",
+		r.Message = fmt.Sprintf("%s had a single value and %s dropped. A constant can carry no component; check that it is not a stuck sensor or a failed export. Dropped: %s.",
 			countNoun(len(names), "variable"), were(len(names)), strings.Join(names, ", "))
 		return r
 	},

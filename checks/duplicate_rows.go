@@ -30,8 +30,8 @@ var duplicateRows = Check{
 			more = fmt.Sprintf(" and %d more groups", len(groups)-len(shown))
 		}
 		r.Status = Warn
-		r.Message = fmt.Sprintf("%s repeat another sample exactly: %s%s. Exact copies are usually a merge or export error; they count twice in every component.",
-			countNoun(extra, "sample"), strings.Join(shown, "; "), more)
+		r.Message = fmt.Sprintf("%s %s another sample exactly. Exact copies are usually a merge or export error; they count twice in every component. Identical samples: %s%s.",
+			countNoun(extra, "sample"), plural("repeats", "repeat", extra), strings.Join(shown, "; "), more)
 		return r
 	},
 }

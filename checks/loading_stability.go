@@ -19,10 +19,12 @@ var loadingStability = Check{
 			return Result{Status: Skip, Limit: limit, Message: fmt.Sprintf("All %d resamples were degenerate (some variable took a single value in each), so stability cannot be judged.", st.Resamples)}
 		}
 		r := Result{Limit: limit, Status: Pass}
-		worst := 1.0
+		worst, worstPC := 1.0, 0
 		var parts, mixing []string
 		for a, c := range st.Components {
-			worst = min(worst, c.CongruenceP5)
+			if c.CongruenceP5 < worst {
+				worst, worstPC = c.CongruenceP5, a
+			}
 			parts = append(parts, fmt.Sprintf("PC%d φ₅ = %.3f (median %.3f)", a+1, c.CongruenceP5, c.CongruenceMedian))
 			switch {
 			case c.CongruenceP5 < CongruenceFail:
@@ -39,7 +41,7 @@ var loadingStability = Check{
 		if st.Degenerate > 0 {
 			used += fmt.Sprintf(" (%d more skipped: a variable was constant in them)", st.Degenerate)
 		}
-		r.Message = fmt.Sprintf("Congruence with the reference loadings over %s: %s.", used, strings.Join(parts, "; "))
+		r.Message = fmt.Sprintf("Lowest 5th-percentile congruence with the reference loadings φ₅ = %.3f (PC%d) over %s. Per component: %s.", worst, worstPC+1, used, strings.Join(parts, "; "))
 		switch r.Status {
 		case Pass:
 			r.Message += " Every retained component comes out essentially the same on resampled data, so its loadings can be interpreted."

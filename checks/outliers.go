@@ -24,7 +24,7 @@ func limitCheck(values []float64, lim95, lim99 float64, ids []string, what, reme
 		return r
 	}
 	r.Status = Warn
-	r.Message = fmt.Sprintf("%s %s the 99 %% limit of %s: %s. %s %s", countNoun(n99, "sample"), plural("passes", "pass", n99), what, listIDs(idsOf(ids, idx99)), chance, remedy)
+	r.Message = fmt.Sprintf("%s %s the 99 %% limit of %s, where chance gives %s. They are: %s. %s %s", countNoun(n99, "sample"), plural("passes", "pass", n99), what, g3(0.01*float64(n)), listIDs(idsOf(ids, idx99)), chance, remedy)
 	return r
 }
 

@@ -44,8 +44,8 @@ var scaling = Check{
 			return r
 		}
 		r.Status = Warn
-		r.Message = fmt.Sprintf("With %s scaling, %s that barely vary (≥ %s of values identical, or variation below %s of the level) get the same weight as the others, so their noise is inflated: %s. Consider --drop for them.",
-			res.Prep.Scaling, countNoun(len(ad.NearConstant), "variable"), pct(analysis.NearConstantModeShare), pct(analysis.NearConstantCV), strings.Join(namesOf(names, ad.NearConstant), ", "))
+		r.Message = fmt.Sprintf("With %s scaling, %s that barely %s get the same weight as the others. Their noise is inflated: %s (≥ %s of values identical, or variation below %s of the level). Consider --drop for them.",
+			res.Prep.Scaling, countNoun(len(ad.NearConstant), "variable"), plural("varies", "vary", len(ad.NearConstant)), strings.Join(namesOf(names, ad.NearConstant), ", "), pct(analysis.NearConstantModeShare), pct(analysis.NearConstantCV))
 		return r
 	},
 }

@@ -16,9 +16,11 @@ var skewness = Check{
 		res := in.Run
 		ad := res.Adequacy
 		names := res.Table.Variables
-		worst, skewed, positive := 0.0, []string{}, []string{}
+		worst, worstVar, skewed, positive := 0.0, 0, []string{}, []string{}
 		for j, s := range ad.Skewness {
-			worst = math.Max(worst, math.Abs(s))
+			if math.Abs(s) > worst {
+				worst, worstVar = math.Abs(s), j
+			}
 			if math.Abs(s) > SkewnessLimit {
 				skewed = append(skewed, fmt.Sprintf("%s (%s)", names[j], g3(s)))
 				if ad.Positive[j] {
@@ -37,8 +39,8 @@ var skewness = Check{
 		if len(skewed) > 1 {
 			verb = "are"
 		}
-		r.Message = fmt.Sprintf("%s %s strongly skewed: %s. A long tail lets a few samples drive the variance and the components.",
-			countNoun(len(skewed), "variable"), verb, strings.Join(skewed, ", "))
+		r.Message = fmt.Sprintf("%s %s strongly skewed (largest |skewness| %s, in %s). A long tail lets a few samples drive the variance and the components. Skewed: %s.",
+			countNoun(len(skewed), "variable"), verb, g3(worst), names[worstVar], strings.Join(skewed, ", "))
 		if len(positive) > 0 && res.Table.Transform == analysis.TransformNone {
 			r.Message += fmt.Sprintf(" All values are positive in %s; --transform log is the usual remedy for concentrations and counts.", strings.Join(positive, ", "))
 		}

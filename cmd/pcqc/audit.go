@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"time"
 
 	"pcqc/analysis"
 	"pcqc/checks"
@@ -13,11 +14,12 @@ import (
 // auditJob is one audit to run and write: a table already read and
 // validated, the options, and extra files to place in the output folder.
 type auditJob struct {
-	flags   *auditFlags
-	read    analysis.ReadOptions
-	table   *analysis.Table
-	command []string
-	extra   map[string][]byte // file name → content, written beside the tables
+	flags    *auditFlags
+	invented string // the demo's note that its data are invented
+	read     analysis.ReadOptions
+	table    *analysis.Table
+	command  []string
+	extra    map[string][]byte // file name → content, written beside the tables
 }
 
 // runAudit analyses the table, judges it and writes every output into the
@@ -28,6 +30,14 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		return 0, err
 	}
 	opt.Progress = newProgress(stderr, job.flags.quiet)
+	formats, ropt, err := job.flags.reportOptions(time.Now())
+	if err != nil {
+		return 0, err
+	}
+	ropt.Invented = job.invented
+	if ropt.Title == "" && job.invented != "" {
+		ropt.Title = "PCA audit of an invented river-chemistry survey (pcqc demo)"
+	}
 	res, err := analysis.Analyze(job.table, opt)
 	if err != nil {
 		return 0, err
@@ -50,6 +60,9 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 			}
 		}
 		if err := report.WriteTables(out.Dir(), res, results, meta); err != nil {
+			return err
+		}
+		if err := report.WriteReport(out.Dir(), res, results, meta, ropt, formats); err != nil {
 			return err
 		}
 		return out.Commit()

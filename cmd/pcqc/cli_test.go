@@ -257,3 +257,50 @@ func TestBootstrapOffSkipsStability(t *testing.T) {
 		t.Errorf("summary.json does not mark stability as skipped")
 	}
 }
+
+func TestReportFormatsAndDate(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "all")
+	if status, _, stderr := runPCQC(t, "demo", "--out", out, "--date", "2026-03-04", "--bootstrap", "50", "--permutations", "50", "--title", "River check", "--author", "Q. Analyst"); status != exitOK {
+		t.Fatalf("%d %s", status, stderr)
+	}
+	for _, name := range []string{"report.md", "report.pdf", "report.html", "references.bib", "figures/scree.png", "figures/scree.svg"} {
+		if _, err := os.Stat(filepath.Join(out, name)); err != nil {
+			t.Errorf("%s missing: %v", name, err)
+		}
+	}
+	md, _ := os.ReadFile(filepath.Join(out, "report.md"))
+	for _, want := range []string{"# River check", "Q. Analyst", "2026-03-04", "invented"} {
+		if !strings.Contains(string(md), want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	none := filepath.Join(dir, "none")
+	if status, _, stderr := runPCQC(t, "demo", "--out", none, "--format", "none", "--bootstrap", "0", "--permutations", "20"); status != exitOK {
+		t.Fatalf("%d %s", status, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(none, "report.md")); !os.IsNotExist(err) {
+		t.Error("--format none wrote a report")
+	}
+	if _, err := os.Stat(filepath.Join(none, "figures")); !os.IsNotExist(err) {
+		t.Error("--format none drew figures")
+	}
+	only := filepath.Join(dir, "md")
+	t.Setenv("SOURCE_DATE_EPOCH", "1700000000") // 2023-11-14
+	if status, _, stderr := runPCQC(t, "demo", "--out", only, "--format", "md", "--bootstrap", "0", "--permutations", "20"); status != exitOK {
+		t.Fatalf("%d %s", status, stderr)
+	}
+	md, _ = os.ReadFile(filepath.Join(only, "report.md"))
+	if !strings.Contains(string(md), "2023-11-14") {
+		t.Error("SOURCE_DATE_EPOCH not used for the date")
+	}
+	if _, err := os.Stat(filepath.Join(only, "report.pdf")); !os.IsNotExist(err) {
+		t.Error("--format md wrote a PDF")
+	}
+	for _, bad := range [][]string{{"--date", "03/04/2026"}, {"--format", "docx"}} {
+		status, _, stderr := runPCQC(t, append([]string{"demo", "--out", filepath.Join(dir, "bad")}, bad...)...)
+		if status != exitUsage || !strings.Contains(stderr, "invalid") {
+			t.Errorf("%v: %d %s", bad, status, stderr)
+		}
+	}
+}

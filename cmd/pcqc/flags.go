@@ -4,8 +4,11 @@ import (
 	"errors"
 	"flag"
 	"io"
+	"os"
 	"slices"
+	"strconv"
 	"strings"
+	"time"
 
 	"pcqc/analysis"
 	"pcqc/checks"
@@ -32,6 +35,10 @@ type auditFlags struct {
 	seed         uint64
 	threads      int
 	failOn       string
+	format       string
+	title        string
+	author       string
+	date         string
 
 	set map[string]bool // flags given on the command line
 }
@@ -54,6 +61,10 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.Uint64Var(&f.seed, "seed", analysis.DefaultSeed, "")
 	fs.IntVar(&f.threads, "threads", 0, "")
 	fs.StringVar(&f.failOn, "fail-on", string(checks.Fail), "")
+	fs.StringVar(&f.format, "format", "md,pdf,html", "")
+	fs.StringVar(&f.title, "title", "", "")
+	fs.StringVar(&f.author, "author", "", "")
+	fs.StringVar(&f.date, "date", "", "")
 }
 
 // auditFlagHelp documents the shared flags, for `pcqc help run`.
@@ -90,6 +101,13 @@ Stability:
   --threads T         worker threads (default: all cores); results do not
                       depend on it
   --quiet             no progress bar (it is shown only on a terminal)
+
+Report:
+  --format LIST       md, pdf, html, comma-separated, or none (default
+                      md,pdf,html); none writes the tables only
+  --title TEXT        report title (default: from the input name)
+  --author TEXT       author named in the report
+  --date YYYY-MM-DD   report date (default: from SOURCE_DATE_EPOCH, else today)
 
 Exit status:
   --fail-on LEVEL     fail | warn | never (default fail): exit status 1 when any
@@ -174,6 +192,30 @@ func (f *auditFlags) analysisOptions() (analysis.Options, error) {
 	return opt, nil
 }
 
+// reportOptions returns the report's formats and options. The date comes
+// from --date, else from SOURCE_DATE_EPOCH (reproducible builds'
+// convention), else today's date.
+func (f *auditFlags) reportOptions(now time.Time) (report.Formats, report.ReportOptions, error) {
+	formats, err := report.ParseFormats(f.format)
+	if err != nil {
+		return formats, report.ReportOptions{}, usagef("%v", err)
+	}
+	opt := report.ReportOptions{Title: f.title, Author: f.author, Date: f.date}
+	if opt.Date == "" {
+		if epoch := os.Getenv("SOURCE_DATE_EPOCH"); epoch != "" {
+			secs, err := strconv.ParseInt(epoch, 10, 64)
+			if err != nil {
+				return formats, opt, usagef("invalid SOURCE_DATE_EPOCH %q: want seconds since 1970", epoch)
+			}
+			now = time.Unix(secs, 0)
+		}
+		opt.Date = now.UTC().Format("2006-01-02")
+	} else if _, err := time.Parse("2006-01-02", opt.Date); err != nil {
+		return formats, opt, usagef("invalid --date %q: use YYYY-MM-DD", opt.Date)
+	}
+	return formats, opt, nil
+}
+
 // failLevel returns the status at which the exit status becomes 1, or ""
 // for never.
 func (f *auditFlags) failLevel() (checks.Status, error) {
@@ -221,6 +263,10 @@ func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) rep
 		{Name: "bootstrap", Value: f.bootstrap},
 		{Name: "seed", Value: f.seed},
 		{Name: "fail_on", Value: f.failOn},
+		{Name: "format", Value: f.format},
+		{Name: "title", Value: f.title},
+		{Name: "author", Value: f.author},
+		{Name: "date", Value: f.date},
 	}
 }
 

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"time"
 
 	"pcqc/analysis"
 	"pcqc/report"
@@ -60,6 +61,9 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 		return 0, err
 	}
 	if _, err := f.failLevel(); err != nil {
+		return 0, err
+	}
+	if _, _, err := f.reportOptions(time.Now()); err != nil {
 		return 0, err
 	}
 	// Refuse an occupied output folder before any work is done.

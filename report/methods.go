@@ -1,0 +1,294 @@
+package report
+
+import (
+	"fmt"
+	"strings"
+
+	"pcqc/analysis"
+)
+
+// Reference is one cited work, with its BibTeX entry for references.bib.
+type Reference struct {
+	Key      string
+	Citation string // formatted for the reference list
+	BibTeX   string
+}
+
+// bibliography holds every work the report may cite, keyed for reuse.
+var bibliography = map[string]Reference{
+	"jolliffe2016": {Citation: "Jolliffe, I. T. & Cadima, J. (2016). Principal component analysis: a review and recent developments. Philosophical Transactions of the Royal Society A 374: 20150202.",
+		BibTeX: `@article{jolliffe2016, author = {Jolliffe, Ian T. and Cadima, Jorge}, title = {Principal component analysis: a review and recent developments}, journal = {Philosophical Transactions of the Royal Society A}, volume = {374}, number = {2065}, pages = {20150202}, year = {2016}}`},
+	"vandenberg2006": {Citation: "van den Berg, R. A., Hoefsloot, H. C. J., Westerhuis, J. A., Smilde, A. K. & van der Werf, M. J. (2006). Centering, scaling, and transformations: improving the biological information content of metabolomics data. BMC Genomics 7: 142.",
+		BibTeX: `@article{vandenberg2006, author = {van den Berg, Robert A. and Hoefsloot, Huub C. J. and Westerhuis, Johan A. and Smilde, Age K. and van der Werf, Mari{\"e}t J.}, title = {Centering, scaling, and transformations: improving the biological information content of metabolomics data}, journal = {BMC Genomics}, volume = {7}, pages = {142}, year = {2006}}`},
+	"demmel2012": {Citation: "Demmel, J., Grigori, L., Hoemmen, M. & Langou, J. (2012). Communication-optimal parallel and sequential QR and LU factorizations. SIAM Journal on Scientific Computing 34: A206–A239.",
+		BibTeX: `@article{demmel2012, author = {Demmel, James and Grigori, Laura and Hoemmen, Mark and Langou, Julien}, title = {Communication-optimal parallel and sequential {QR} and {LU} factorizations}, journal = {SIAM Journal on Scientific Computing}, volume = {34}, number = {1}, pages = {A206--A239}, year = {2012}}`},
+	"horn1965": {Citation: "Horn, J. L. (1965). A rationale and test for the number of factors in factor analysis. Psychometrika 30: 179–185.",
+		BibTeX: `@article{horn1965, author = {Horn, John L.}, title = {A rationale and test for the number of factors in factor analysis}, journal = {Psychometrika}, volume = {30}, number = {2}, pages = {179--185}, year = {1965}}`},
+	"glorfeld1995": {Citation: "Glorfeld, L. W. (1995). An improvement on Horn's parallel analysis methodology for selecting the correct number of factors to retain. Educational and Psychological Measurement 55: 377–393.",
+		BibTeX: `@article{glorfeld1995, author = {Glorfeld, Louis W.}, title = {An improvement on {Horn's} parallel analysis methodology for selecting the correct number of factors to retain}, journal = {Educational and Psychological Measurement}, volume = {55}, number = {3}, pages = {377--393}, year = {1995}}`},
+	"frontier1976": {Citation: "Frontier, S. (1976). Étude de la décroissance des valeurs propres dans une analyse en composantes principales: comparaison avec le modèle du bâton brisé. Journal of Experimental Marine Biology and Ecology 25: 67–75.",
+		BibTeX: `@article{frontier1976, author = {Frontier, Serge}, title = {{\'E}tude de la d{\'e}croissance des valeurs propres dans une analyse en composantes principales: comparaison avec le mod{\` + "`" + `e}le du b{\^a}ton bris{\'e}}, journal = {Journal of Experimental Marine Biology and Ecology}, volume = {25}, number = {1}, pages = {67--75}, year = {1976}}`},
+	"jackson1993": {Citation: "Jackson, D. A. (1993). Stopping rules in principal components analysis: a comparison of heuristical and statistical approaches. Ecology 74: 2204–2214.",
+		BibTeX: `@article{jackson1993, author = {Jackson, Donald A.}, title = {Stopping rules in principal components analysis: a comparison of heuristical and statistical approaches}, journal = {Ecology}, volume = {74}, number = {8}, pages = {2204--2214}, year = {1993}}`},
+	"kaiser1960": {Citation: "Kaiser, H. F. (1960). The application of electronic computers to factor analysis. Educational and Psychological Measurement 20: 141–151.",
+		BibTeX: `@article{kaiser1960, author = {Kaiser, Henry F.}, title = {The application of electronic computers to factor analysis}, journal = {Educational and Psychological Measurement}, volume = {20}, number = {1}, pages = {141--151}, year = {1960}}`},
+	"hotelling1931": {Citation: "Hotelling, H. (1931). The generalization of Student's ratio. Annals of Mathematical Statistics 2: 360–378.",
+		BibTeX: `@article{hotelling1931, author = {Hotelling, Harold}, title = {The generalization of {Student's} ratio}, journal = {Annals of Mathematical Statistics}, volume = {2}, number = {3}, pages = {360--378}, year = {1931}}`},
+	"tracy1992": {Citation: "Tracy, N. D., Young, J. C. & Mason, R. L. (1992). Multivariate control charts for individual observations. Journal of Quality Technology 24: 88–95.",
+		BibTeX: `@article{tracy1992, author = {Tracy, Nola D. and Young, John C. and Mason, Robert L.}, title = {Multivariate control charts for individual observations}, journal = {Journal of Quality Technology}, volume = {24}, number = {2}, pages = {88--95}, year = {1992}}`},
+	"jackson1979": {Citation: "Jackson, J. E. & Mudholkar, G. S. (1979). Control procedures for residuals associated with principal component analysis. Technometrics 21: 341–349.",
+		BibTeX: `@article{jackson1979, author = {Jackson, J. Edward and Mudholkar, Govind S.}, title = {Control procedures for residuals associated with principal component analysis}, journal = {Technometrics}, volume = {21}, number = {3}, pages = {341--349}, year = {1979}}`},
+	"box1954": {Citation: "Box, G. E. P. (1954). Some theorems on quadratic forms applied in the study of analysis of variance problems, I. Annals of Mathematical Statistics 25: 290–302.",
+		BibTeX: `@article{box1954, author = {Box, George E. P.}, title = {Some theorems on quadratic forms applied in the study of analysis of variance problems, {I}. {E}ffect of inequality of variance in the one-way classification}, journal = {Annals of Mathematical Statistics}, volume = {25}, number = {2}, pages = {290--302}, year = {1954}}`},
+	"hoaglin1978": {Citation: "Hoaglin, D. C. & Welsch, R. E. (1978). The hat matrix in regression and ANOVA. The American Statistician 32: 17–22.",
+		BibTeX: `@article{hoaglin1978, author = {Hoaglin, David C. and Welsch, Roy E.}, title = {The hat matrix in regression and {ANOVA}}, journal = {The American Statistician}, volume = {32}, number = {1}, pages = {17--22}, year = {1978}}`},
+	"bartlett1950": {Citation: "Bartlett, M. S. (1950). Tests of significance in factor analysis. British Journal of Psychology, Statistical Section 3: 77–85.",
+		BibTeX: `@article{bartlett1950, author = {Bartlett, Maurice S.}, title = {Tests of significance in factor analysis}, journal = {British Journal of Psychology, Statistical Section}, volume = {3}, pages = {77--85}, year = {1950}}`},
+	"bartlett1951": {Citation: "Bartlett, M. S. (1951). The effect of standardization on a χ² approximation in factor analysis. Biometrika 38: 337–344.",
+		BibTeX: `@article{bartlett1951, author = {Bartlett, Maurice S.}, title = {The effect of standardization on a $\chi^2$ approximation in factor analysis}, journal = {Biometrika}, volume = {38}, number = {3/4}, pages = {337--344}, year = {1951}}`},
+	"kaiser1970": {Citation: "Kaiser, H. F. (1970). A second generation little jiffy. Psychometrika 35: 401–415.",
+		BibTeX: `@article{kaiser1970, author = {Kaiser, Henry F.}, title = {A second generation little jiffy}, journal = {Psychometrika}, volume = {35}, number = {4}, pages = {401--415}, year = {1970}}`},
+	"kaiser1974": {Citation: "Kaiser, H. F. (1974). An index of factorial simplicity. Psychometrika 39: 31–36.",
+		BibTeX: `@article{kaiser1974, author = {Kaiser, Henry F.}, title = {An index of factorial simplicity}, journal = {Psychometrika}, volume = {39}, number = {1}, pages = {31--36}, year = {1974}}`},
+	"west1995": {Citation: "West, S. G., Finch, J. F. & Curran, P. J. (1995). Structural equation models with nonnormal variables: problems and remedies. In R. H. Hoyle (ed.), Structural Equation Modeling: Concepts, Issues, and Applications, pp. 56–75. Sage.",
+		BibTeX: `@incollection{west1995, author = {West, Stephen G. and Finch, John F. and Curran, Patrick J.}, title = {Structural equation models with nonnormal variables: problems and remedies}, booktitle = {Structural Equation Modeling: Concepts, Issues, and Applications}, editor = {Hoyle, Rick H.}, pages = {56--75}, publisher = {Sage}, year = {1995}}`},
+	"joanes1998": {Citation: "Joanes, D. N. & Gill, C. A. (1998). Comparing measures of sample skewness and kurtosis. The Statistician 47: 183–189.",
+		BibTeX: `@article{joanes1998, author = {Joanes, Derrick N. and Gill, Christine A.}, title = {Comparing measures of sample skewness and kurtosis}, journal = {Journal of the Royal Statistical Society: Series D (The Statistician)}, volume = {47}, number = {1}, pages = {183--189}, year = {1998}}`},
+	"north1982": {Citation: "North, G. R., Bell, T. L., Cahalan, R. F. & Moeng, F. J. (1982). Sampling errors in the estimation of empirical orthogonal functions. Monthly Weather Review 110: 699–706.",
+		BibTeX: `@article{north1982, author = {North, Gerald R. and Bell, Thomas L. and Cahalan, Robert F. and Moeng, Fanthune J.}, title = {Sampling errors in the estimation of empirical orthogonal functions}, journal = {Monthly Weather Review}, volume = {110}, number = {7}, pages = {699--706}, year = {1982}}`},
+	"efron1979": {Citation: "Efron, B. (1979). Bootstrap methods: another look at the jackknife. Annals of Statistics 7: 1–26.",
+		BibTeX: `@article{efron1979, author = {Efron, Bradley}, title = {Bootstrap methods: another look at the jackknife}, journal = {Annals of Statistics}, volume = {7}, number = {1}, pages = {1--26}, year = {1979}}`},
+	"fisher2016": {Citation: "Fisher, A., Caffo, B., Schwartz, B. & Zipunnikov, V. (2016). Fast, exact bootstrap principal component analysis for p > 1 million. Journal of the American Statistical Association 111: 846–860.",
+		BibTeX: `@article{fisher2016, author = {Fisher, Aaron and Caffo, Brian and Schwartz, Brian and Zipunnikov, Vadim}, title = {Fast, exact bootstrap principal component analysis for $p > 1$ million}, journal = {Journal of the American Statistical Association}, volume = {111}, number = {514}, pages = {846--860}, year = {2016}}`},
+	"tucker1951": {Citation: "Tucker, L. R. (1951). A Method for Synthesis of Factor Analysis Studies. Personnel Research Section Report 984, Department of the Army, Washington, DC.",
+		BibTeX: `@techreport{tucker1951, author = {Tucker, Ledyard R.}, title = {A Method for Synthesis of Factor Analysis Studies}, institution = {Department of the Army, Personnel Research Section}, number = {984}, address = {Washington, DC}, year = {1951}}`},
+	"lorenzoseva2006": {Citation: "Lorenzo-Seva, U. & ten Berge, J. M. F. (2006). Tucker's congruence coefficient as a meaningful index of factor similarity. Methodology 2: 57–64.",
+		BibTeX: `@article{lorenzoseva2006, author = {Lorenzo-Seva, Urbano and ten Berge, Jos M. F.}, title = {Tucker's congruence coefficient as a meaningful index of factor similarity}, journal = {Methodology}, volume = {2}, number = {2}, pages = {57--64}, year = {2006}}`},
+	"schonemann1966": {Citation: "Schönemann, P. H. (1966). A generalized solution of the orthogonal Procrustes problem. Psychometrika 31: 1–10.",
+		BibTeX: `@article{schonemann1966, author = {Sch{\"o}nemann, Peter H.}, title = {A generalized solution of the orthogonal {Procrustes} problem}, journal = {Psychometrika}, volume = {31}, number = {1}, pages = {1--10}, year = {1966}}`},
+	"gabriel1971": {Citation: "Gabriel, K. R. (1971). The biplot graphic display of matrices with application to principal component analysis. Biometrika 58: 453–467.",
+		BibTeX: `@article{gabriel1971, author = {Gabriel, K. Ruben}, title = {The biplot graphic display of matrices with application to principal component analysis}, journal = {Biometrika}, volume = {58}, number = {3}, pages = {453--467}, year = {1971}}`},
+}
+
+// citer collects the works a report cites, in order of first citation.
+type citer struct {
+	keys []string
+	seen map[string]bool
+}
+
+func (c *citer) cite(keys ...string) {
+	if c.seen == nil {
+		c.seen = map[string]bool{}
+	}
+	for _, k := range keys {
+		if _, ok := bibliography[k]; !ok {
+			panic("report: unknown reference " + k)
+		}
+		if !c.seen[k] {
+			c.seen[k] = true
+			c.keys = append(c.keys, k)
+		}
+	}
+}
+
+func (c *citer) references() []Reference {
+	out := make([]Reference, len(c.keys))
+	for i, k := range c.keys {
+		r := bibliography[k]
+		r.Key = k
+		out[i] = r
+	}
+	return out
+}
+
+// methods writes the methods paragraph, ready to paste, and the references
+// for every method it names.
+func methods(res *analysis.Result, meta Meta) (string, []Reference) {
+	var c citer
+	t := res.Table
+	var b strings.Builder
+	d := res.Decomp
+	pct := Percentages(d.Eigenvalues)
+
+	fmt.Fprintf(&b, "Principal component analysis (Jolliffe & Cadima 2016) was carried out with pcqc %s on %d samples and %d variables of %s (SHA-256 %s…)", meta.Version, t.Rows(), len(t.Variables), t.File, t.SHA256[:12])
+	c.cite("jolliffe2016")
+	if t.RowsDropped > 0 {
+		fmt.Fprintf(&b, ", after %d samples with missing values were removed", t.RowsDropped)
+	}
+	if t.ImputedCells > 0 {
+		fmt.Fprintf(&b, ", after %d missing values were replaced by column means", t.ImputedCells)
+	}
+	if len(t.DroppedVariables) > 0 {
+		fmt.Fprintf(&b, "; %d variable%s %s left out (%s)", len(t.DroppedVariables), plural(len(t.DroppedVariables)), map[bool]string{true: "was", false: "were"}[len(t.DroppedVariables) == 1], droppedSummary(t.DroppedVariables))
+	}
+	b.WriteString(". ")
+	switch t.Transform {
+	case analysis.TransformLog, analysis.TransformLog10, analysis.TransformLog1p:
+		fmt.Fprintf(&b, "Values were transformed by the %s, then ", transformText(t.Transform))
+	default:
+		b.WriteString("Values were ")
+	}
+	b.WriteString("mean-centred")
+	switch res.Prep.Scaling {
+	case analysis.ScaleUnit:
+		b.WriteString(" and scaled to unit variance (sample standard deviation, n − 1)")
+	case analysis.ScalePareto:
+		b.WriteString(" and Pareto-scaled (divided by the square root of the standard deviation; van den Berg et al. 2006)")
+		c.cite("vandenberg2006")
+	case analysis.ScaleRange:
+		b.WriteString(" and range-scaled (van den Berg et al. 2006)")
+		c.cite("vandenberg2006")
+	default:
+		b.WriteString(" without scaling")
+	}
+	if d.Method == analysis.MethodTallQR {
+		b.WriteString("; components were obtained by singular value decomposition of the preprocessed matrix, through a blocked Householder QR factorisation (Demmel et al. 2012), with eigenvalues λ = s²/(n − 1). ")
+		c.cite("demmel2012")
+	} else {
+		b.WriteString("; components were obtained by singular value decomposition of the preprocessed matrix through its n × n LQ factor, with eigenvalues λ = s²/(n − 1). ")
+	}
+	fmt.Fprintf(&b, "Correctness was verified on the result: column means below %s of the largest standard deviation, loadings orthonormal to %s, scores uncorrelated to %s, and eigenvalues equal to score variances to %s (relative). ",
+		g4(res.Properties.CenteringError), g4(res.Properties.OrthonormalityError), g4(res.Properties.ScoreCorrelation), g4(res.Properties.VarianceMismatch))
+
+	// Number of components.
+	k := res.Retained
+	fmt.Fprintf(&b, "The number of components, %d, was chosen by %s", k, res.Rule.Describe())
+	switch res.Rule.Kind {
+	case analysis.RuleParallel:
+		fmt.Fprintf(&b, " with %d column-wise permutations and the 95th-percentile criterion (Glorfeld 1995)", res.Counts.Parallel.Permutations)
+		c.cite("horn1965", "glorfeld1995")
+	case analysis.RuleBrokenStick:
+		c.cite("frontier1976", "jackson1993")
+	case analysis.RuleKaiser:
+		c.cite("kaiser1960")
+	}
+	var others []string
+	for _, rc := range res.Counts.Counts {
+		if rc.Rule == res.Rule.Kind || !rc.Applies {
+			continue
+		}
+		switch rc.Rule {
+		case analysis.RuleParallel:
+			others = append(others, fmt.Sprintf("parallel analysis (Horn 1965; %d permutations) %d", res.Counts.Parallel.Permutations, rc.Count))
+			c.cite("horn1965")
+		case analysis.RuleBrokenStick:
+			others = append(others, fmt.Sprintf("the broken stick (Frontier 1976) %d", rc.Count))
+			c.cite("frontier1976")
+		case analysis.RuleKaiser:
+			others = append(others, fmt.Sprintf("the Kaiser criterion (Kaiser 1960) %d", rc.Count))
+			c.cite("kaiser1960")
+		case analysis.RuleVariance:
+			others = append(others, fmt.Sprintf("a cumulative share %s %d", rc.Note, rc.Count))
+		}
+	}
+	if len(others) > 0 {
+		fmt.Fprintf(&b, "; %s gave %s", map[bool]string{true: "the other rule", false: "the other rules"}[len(others) == 1], strings.Join(others, ", "))
+	}
+	b.WriteString(". ")
+	cum := 0.0
+	var shares []string
+	for a := 0; a < k; a++ {
+		cum += pct[a]
+		shares = append(shares, fmt.Sprintf("PC%d %.1f %%", a+1, pct[a]))
+	}
+	fmt.Fprintf(&b, "The retained component%s explain %.1f %% of the total variance (%s). ", plural(k), cum, strings.Join(shares, ", "))
+
+	// Outliers.
+	l := res.Samples.Limits
+	fmt.Fprintf(&b, "Samples were screened with Hotelling's T² (Hotelling 1931) against beta-distribution limits for the samples that built the model (Tracy et al. 1992; %s at 95 %%, %s at 99 %%)", g4(l.T2_95), g4(l.T2_99))
+	c.cite("hotelling1931", "tracy1992")
+	switch l.QMethod {
+	case analysis.QJacksonMudholkar:
+		fmt.Fprintf(&b, ", Q residuals against Jackson & Mudholkar (1979) limits (%s and %s)", g4(l.Q95), g4(l.Q99))
+		c.cite("jackson1979")
+	case analysis.QBox:
+		fmt.Fprintf(&b, ", Q residuals against Box's (1954) χ² approximation (%s and %s), as the Jackson & Mudholkar (1979) formula is undefined for these eigenvalues", g4(l.Q95), g4(l.Q99))
+		c.cite("box1954", "jackson1979")
+	}
+	fmt.Fprintf(&b, ", and leverage above 3(k + 1)/n = %s (Hoaglin & Welsch 1978). ", g4(l.Leverage))
+	c.cite("hoaglin1978")
+
+	// Adequacy.
+	ad := res.Adequacy
+	var adequacy []string
+	if ad.Bartlett.Computed {
+		adequacy = append(adequacy, fmt.Sprintf("Bartlett's test of sphericity (Bartlett 1950, 1951; χ² = %s, df = %d, %s)", g4(ad.Bartlett.Chi2), ad.Bartlett.DF, pText(ad.Bartlett.P)))
+		c.cite("bartlett1950", "bartlett1951")
+	}
+	if ad.KMO.Computed {
+		adequacy = append(adequacy, fmt.Sprintf("the Kaiser–Meyer–Olkin measure (Kaiser 1970; %.2f, %s in the terms of Kaiser 1974)", ad.KMO.Overall, analysis.KMOLabel(ad.KMO.Overall)))
+		c.cite("kaiser1970", "kaiser1974")
+	}
+	adequacy = append(adequacy, "skewness (Joanes & Gill 1998, flagged above 2 after West et al. 1995)")
+	c.cite("joanes1998", "west1995")
+	adequacy = append(adequacy, "the separation of neighbouring eigenvalues (North et al. 1982)")
+	c.cite("north1982")
+	fmt.Fprintf(&b, "Data adequacy was assessed with %s. ", joinAnd(adequacy))
+
+	// Stability.
+	st := res.Stability
+	if st.Used > 0 {
+		fmt.Fprintf(&b, "Loading stability was assessed with %d bootstrap resamples (Efron 1979) of the whole pipeline, each redoing the preprocessing", st.Used)
+		c.cite("efron1979")
+		if d.Rows < d.Vars {
+			b.WriteString(" and computed exactly in the n-dimensional row space (Fisher et al. 2016)")
+			c.cite("fisher2016")
+		}
+		worst := 1.0
+		for _, cs := range st.Components {
+			worst = min(worst, cs.CongruenceP5)
+		}
+		fmt.Fprintf(&b, "; resample loadings were sign-aligned and, separately, Procrustes-rotated (Schönemann 1966) to the reference, and compared by Tucker's congruence coefficient (Tucker 1951), whose 5th percentile was at least %.3f for every retained component, against thresholds of 0.95 and 0.85 (Lorenzo-Seva & ten Berge 2006). ", worst)
+		c.cite("schonemann1966", "tucker1951", "lorenzoseva2006")
+	}
+	fmt.Fprintf(&b, "Random streams were seeded with %d.", res.Options.Seed)
+	if res.Retained >= 2 && res.Decomp.Vars <= biplotVariables {
+		c.cite("gabriel1971")
+	}
+	return b.String(), c.references()
+}
+
+func droppedSummary(d []analysis.DroppedVariable) string {
+	var parts []string
+	for _, v := range d {
+		reason := v.Reason
+		if strings.HasPrefix(reason, "constant") {
+			reason = "constant"
+		} else if strings.HasPrefix(reason, "left out") {
+			reason = "by request"
+		}
+		parts = append(parts, v.Name+": "+reason)
+	}
+	if len(parts) > 8 {
+		return strings.Join(parts[:8], "; ") + fmt.Sprintf("; and %d more", len(parts)-8)
+	}
+	return strings.Join(parts, "; ")
+}
+
+func pText(p float64) string {
+	if p < 1e-16 {
+		return "p < 1e-16"
+	}
+	return "p = " + g4(p)
+}
+
+func joinAnd(parts []string) string {
+	switch len(parts) {
+	case 0:
+		return ""
+	case 1:
+		return parts[0]
+	}
+	return strings.Join(parts[:len(parts)-1], ", ") + " and " + parts[len(parts)-1]
+}
+
+// BibTeX returns references.bib for the cited works.
+func BibTeX(refs []Reference) []byte {
+	var b strings.Builder
+	b.WriteString("% References cited in the pcqc report.\n\n")
+	for _, r := range refs {
+		b.WriteString(r.BibTeX)
+		b.WriteString("\n\n")
+	}
+	return []byte(b.String())
+}

@@ -1,0 +1,606 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"pcqc/analysis"
+	"pcqc/checks"
+)
+
+// Document is the content of the report, filled from the analysis and the
+// check results, with every number already formatted. The Markdown templates
+// lay it out; nothing in them computes.
+type Document struct {
+	Title, Author, Date, Version string
+	Invented                     string // a note that the data are invented (demo), or ""
+
+	Verdict VerdictBlock
+	Checks  []CheckRow
+
+	Data       DataBlock
+	Components ComponentsBlock
+	Loadings   LoadingsBlock
+	Scores     ScoresBlock
+	Outliers   OutliersBlock
+	Stability  StabilityBlock
+
+	Methods    string
+	References []Reference
+
+	Command  string
+	Options  [][2]string
+	Cautions []string
+
+	figures []figureJob
+}
+
+// figureJob pairs a figure with its drawing, rendered when the report is
+// written.
+type figureJob struct {
+	fig     Figure
+	drawing func() drawing
+}
+
+type VerdictBlock struct {
+	Word, Symbol string
+	Counts       string // "14 pass, 4 warn, 0 fail, 1 skip"
+	Sentence     string
+}
+
+type CheckRow struct {
+	ID, Title, Word, Symbol  string
+	Measured, Limit, Meaning string
+	Message, Source          string
+}
+
+type DataBlock struct {
+	File, SHA256                string
+	RowsRead, Rows, RowsDropped int
+	VariablesUsed               int
+	VariableList                string
+	Dropped                     []analysis.DroppedVariable
+	IDColumn, GroupColumn       string
+	Missing, Transform, Scaling string
+	Centring                    string
+}
+
+type ComponentsBlock struct {
+	Header    []string
+	Rows      [][]string
+	Truncated string // a note when not every component is listed
+	Rules     [][]string
+	Used      string
+	Scree     Figure
+}
+
+type LoadingsBlock struct {
+	Header    []string
+	Rows      [][]string
+	Truncated string
+	Note      string
+	Figures   []Figure
+}
+
+type ScoresBlock struct {
+	Figures []Figure
+	Biplot  *Figure
+	Note    string
+}
+
+type OutliersBlock struct {
+	Limits    string
+	Figure    Figure
+	Header    []string
+	Rows      [][]string
+	Truncated string
+	None      string
+}
+
+type StabilityBlock struct {
+	Enabled    bool
+	Skipped    string
+	Summary    string
+	Header     []string
+	Rows       [][]string
+	EigHeader  []string
+	EigRows    [][]string
+	Congruence Figure
+	Eigen      Figure
+}
+
+// ReportOptions are the choices that shape the report.
+type ReportOptions struct {
+	Title    string
+	Author   string
+	Date     string // YYYY-MM-DD
+	Invented string // set by the demo: a note that the data are invented
+}
+
+// Row limits of the report's tables; the CSV files always hold everything.
+const (
+	maxVarianceRows = 30
+	maxLoadingRows  = 500
+	maxOutlierRows  = 100
+)
+
+func f3(x float64) string { return strconv.FormatFloat(x, 'f', 3, 64) }
+func f4(x float64) string { return strconv.FormatFloat(x, 'f', 4, 64) }
+func pctText(x float64) string {
+	return strconv.FormatFloat(x, 'f', 1, 64) + " %"
+}
+
+// g4 formats a number with four significant digits, without exponent for
+// ordinary magnitudes.
+func g4(x float64) string {
+	if math.IsNaN(x) {
+		return "n/a"
+	}
+	a := math.Abs(x)
+	if a != 0 && (a < 1e-3 || a >= 1e6) {
+		return strconv.FormatFloat(x, 'e', 2, 64)
+	}
+	return strconv.FormatFloat(x, 'g', 4, 64)
+}
+
+// formatMeasure renders a check's value or limit for the table.
+func formatMeasure(v any) string {
+	switch x := v.(type) {
+	case nil:
+		return "–"
+	case float64:
+		return g4(x)
+	case int:
+		return strconv.Itoa(x)
+	case string:
+		return x
+	case map[string]float64:
+		keys := make([]string, 0, len(x))
+		for k := range x {
+			keys = append(keys, k)
+		}
+		slices.Sort(keys)
+		parts := make([]string, len(keys))
+		for i, k := range keys {
+			parts[i] = strings.ReplaceAll(strings.TrimPrefix(k, "limit_"), "_", " ") + " %: " + g4(x[k])
+		}
+		return strings.Join(parts, ", ")
+	}
+	return fmt.Sprint(v)
+}
+
+// firstSentence returns the message up to its first full stop followed by a
+// space: check messages put their verdict in the first sentence.
+func firstSentence(msg string) string {
+	if i := strings.Index(msg, ". "); i >= 0 {
+		return msg[:i+1]
+	}
+	return msg
+}
+
+func statusWord(s checks.Status) string { return string(s) }
+
+// BuildDocument fills the report model. meta.Command is the command line.
+func BuildDocument(res *analysis.Result, results []checks.Result, meta Meta, opt ReportOptions) *Document {
+	t := res.Table
+	d := &Document{
+		Title:    opt.Title,
+		Author:   opt.Author,
+		Date:     opt.Date,
+		Version:  meta.Version,
+		Invented: opt.Invented,
+		Command:  shellQuote(meta.Command),
+	}
+	if d.Title == "" {
+		d.Title = "PCA audit of " + t.File
+	}
+
+	// Verdict and checks.
+	verdict := checks.Verdict(results)
+	counts := map[checks.Status]int{}
+	for _, r := range results {
+		counts[r.Status]++
+		d.Checks = append(d.Checks, CheckRow{
+			ID: r.ID, Title: r.Title, Word: statusWord(r.Status), Symbol: r.Status.Symbol(),
+			Measured: formatMeasure(r.Value), Limit: formatMeasure(r.Limit),
+			Meaning: firstSentence(r.Message), Message: r.Message, Source: r.Source,
+		})
+	}
+	d.Verdict = VerdictBlock{
+		Word: strings.ToUpper(string(verdict)), Symbol: verdict.Symbol(),
+		Counts: fmt.Sprintf("%d pass, %d warn, %d fail, %d skip", counts[checks.Pass], counts[checks.Warn], counts[checks.Fail], counts[checks.Skip]),
+	}
+	switch verdict {
+	case checks.Pass:
+		d.Verdict.Sentence = "Every check passed: the decomposition is correct and no diagnostic calls for attention."
+	case checks.Warn:
+		d.Verdict.Sentence = "The decomposition is correct, but some diagnostics call for attention before the results are interpreted; see the warnings below."
+	case checks.Fail:
+		d.Verdict.Sentence = "At least one check failed: the results should not be interpreted until the failing checks are understood."
+	}
+
+	d.Data = dataBlock(res)
+	d.Components = componentsBlock(res)
+	d.Loadings = loadingsBlock(res)
+	d.Scores = scoresBlock(res)
+	d.Outliers = outliersBlock(res)
+	d.Stability = stabilityBlock(res)
+	d.Methods, d.References = methods(res, meta)
+	for _, o := range meta.Options {
+		d.Options = append(d.Options, [2]string{o.Name, optionText(o.Value)})
+	}
+	d.Cautions = []string{
+		"Statistical flags support expert judgement; they do not replace it. A flagged sample is a sample to look at, not a sample to delete.",
+		"The thresholds are conventions, each cited beside the check that uses it; data near a threshold deserve the same care on either side of it.",
+		"Where the results bear on health, safety or regulation, local rules and accredited practice decide, not this report.",
+	}
+
+	// Figures in report order.
+	d.figures = append(d.figures, figureJob{d.Components.Scree, func() drawing { return screeFigure(res) }})
+	for a, f := range d.Loadings.Figures {
+		a := a
+		d.figures = append(d.figures, figureJob{f, func() drawing { return loadingsFigure(res, a) }})
+	}
+	pairs := scorePairs(res.Retained)
+	for i, f := range d.Scores.Figures {
+		if res.Retained == 1 {
+			d.figures = append(d.figures, figureJob{f, func() drawing { return indexScoresFigure(res) }})
+			break
+		}
+		pr := pairs[i]
+		d.figures = append(d.figures, figureJob{f, func() drawing { return scoresFigure(res, pr[0], pr[1]) }})
+	}
+	if d.Scores.Biplot != nil {
+		d.figures = append(d.figures, figureJob{*d.Scores.Biplot, func() drawing { return biplotFigure(res) }})
+	}
+	d.figures = append(d.figures, figureJob{d.Outliers.Figure, func() drawing { return t2qFigure(res) }})
+	if d.Stability.Enabled {
+		d.figures = append(d.figures,
+			figureJob{d.Stability.Congruence, func() drawing { return congruenceFigure(res) }},
+			figureJob{d.Stability.Eigen, func() drawing { return eigenIntervalFigure(res) }})
+	}
+	return d
+}
+
+func optionText(v any) string {
+	switch x := v.(type) {
+	case []string:
+		if len(x) == 0 {
+			return "–"
+		}
+		return strings.Join(x, ", ")
+	case string:
+		if x == "" {
+			return "–"
+		}
+		return x
+	}
+	return fmt.Sprint(v)
+}
+
+func dataBlock(res *analysis.Result) DataBlock {
+	t := res.Table
+	b := DataBlock{
+		File: t.File, SHA256: t.SHA256,
+		RowsRead: t.RowsRead, Rows: t.Rows(), RowsDropped: t.RowsDropped,
+		VariablesUsed: len(t.Variables), Dropped: t.DroppedVariables,
+		IDColumn: t.IDColumn, GroupColumn: t.GroupColumn,
+	}
+	if b.IDColumn == "" {
+		b.IDColumn = "none (samples are numbered by data row)"
+	}
+	if b.GroupColumn == "" {
+		b.GroupColumn = "none"
+	}
+	if len(t.Variables) <= 40 {
+		b.VariableList = strings.Join(t.Variables, ", ")
+	} else {
+		b.VariableList = strings.Join(t.Variables[:40], ", ") + fmt.Sprintf(" and %d more (all in loadings.csv)", len(t.Variables)-40)
+	}
+	switch {
+	case t.MissingCells == 0:
+		b.Missing = "no missing cells"
+	case t.Missing == analysis.MissingDrop:
+		b.Missing = fmt.Sprintf("%d missing cells; the %d rows holding them were dropped (--missing drop)", t.MissingCells, t.RowsDropped)
+	case t.Missing == analysis.MissingMean:
+		b.Missing = fmt.Sprintf("%d missing cells replaced by the mean of their column's transformed values (--missing mean)", t.ImputedCells)
+	}
+	b.Transform = transformText(t.Transform)
+	b.Scaling = scalingText(res.Prep.Scaling)
+	b.Centring = fmt.Sprintf("always; verified: the largest |column mean| after preprocessing is %s of the largest column standard deviation", g4(res.Properties.CenteringError))
+	return b
+}
+
+func transformText(t analysis.Transform) string {
+	switch t {
+	case analysis.TransformLog:
+		return "natural logarithm of every value"
+	case analysis.TransformLog10:
+		return "base-10 logarithm of every value"
+	case analysis.TransformLog1p:
+		return "log(1 + x) of every value"
+	}
+	return "none"
+}
+
+func scalingText(s analysis.Scaling) string {
+	switch s {
+	case analysis.ScaleUnit:
+		return "unit variance: each variable divided by its sample standard deviation (n−1)"
+	case analysis.ScalePareto:
+		return "Pareto: each variable divided by the square root of its standard deviation"
+	case analysis.ScaleRange:
+		return "range: each variable divided by its range (max − min)"
+	}
+	return "none: variables keep their units (covariance PCA)"
+}
+
+func componentsBlock(res *analysis.Result) ComponentsBlock {
+	d := res.Decomp
+	pct := Percentages(d.Eigenvalues)
+	st := res.Stability
+	b := ComponentsBlock{Header: []string{"Component", "Eigenvalue", "Variance", "Cumulative", "Permuted 95th pct.", "Broken stick"}}
+	if st.Used > 0 {
+		b.Header = append(b.Header, "Eigenvalue 95 % CI")
+	}
+	cum := 0.0
+	m := d.Components()
+	for a := 0; a < m; a++ {
+		cum += pct[a]
+		if a >= maxVarianceRows {
+			continue
+		}
+		p95 := "–"
+		if res.Counts.Parallel.Permutations > 0 {
+			p95 = g4(res.Counts.Parallel.P95[a])
+		}
+		name := componentName(a)
+		if a < res.Retained {
+			name += " (retained)"
+		}
+		row := []string{name, g4(d.Eigenvalues[a]), pctText(pct[a]), pctText(cum), p95, pctText(100 * res.Counts.BrokenStickShares[a])}
+		if st.Used > 0 {
+			row = append(row, g4(st.Eigenvalues[a].Low)+" – "+g4(st.Eigenvalues[a].High))
+		}
+		b.Rows = append(b.Rows, row)
+	}
+	if m > maxVarianceRows {
+		b.Truncated = fmt.Sprintf("The first %d of %d components are listed; variance.csv holds all of them.", maxVarianceRows, m)
+	}
+	for _, c := range res.Counts.Counts {
+		count := strconv.Itoa(c.Count)
+		note := c.Note
+		if !c.Applies {
+			count = "n/a"
+		}
+		inForce := ""
+		if c.Rule == res.Rule.Kind {
+			inForce = "in force"
+		}
+		b.Rules = append(b.Rules, []string{ruleName(c.Rule), count, note, inForce})
+	}
+	b.Used = fmt.Sprintf("%d component%s retained by %s.", res.Retained, plural(res.Retained), res.Rule.Describe())
+	if res.NoStructure {
+		b.Used = fmt.Sprintf("No component stands out by %s; PC1 is shown for reference only.", res.Rule.Describe())
+	}
+	b.Scree = Figure{Stem: "scree", Alt: "Scree plot",
+		Caption: "Scree plot: observed eigenvalues (filled: retained), the 95th percentile of the eigenvalues of column-permuted data, the broken-stick expectation, and the cumulative share of variance on the right axis."}
+	return b
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
+
+func ruleName(k analysis.RuleKind) string {
+	switch k {
+	case analysis.RuleParallel:
+		return "Parallel analysis (Horn 1965)"
+	case analysis.RuleBrokenStick:
+		return "Broken stick (Frontier 1976)"
+	case analysis.RuleKaiser:
+		return "Kaiser–Guttman λ > 1 (Kaiser 1960)"
+	case analysis.RuleVariance:
+		return "Cumulative share of variance"
+	}
+	return string(k)
+}
+
+func loadingsBlock(res *analysis.Result) LoadingsBlock {
+	k := res.Retained
+	p := res.Decomp.Vars
+	v := res.Decomp.Loadings
+	st := res.Stability
+	b := LoadingsBlock{Header: []string{"Variable"}}
+	for a := 0; a < k; a++ {
+		b.Header = append(b.Header, componentName(a))
+	}
+	order := make([]int, p)
+	for j := range order {
+		order[j] = j
+	}
+	if p > maxLoadingRows {
+		// Keep the variables with the largest loading on any retained component.
+		score := func(j int) float64 {
+			s := 0.0
+			for a := 0; a < k; a++ {
+				s = math.Max(s, math.Abs(v.At(j, a)))
+			}
+			return s
+		}
+		slices.SortStableFunc(order, func(i, j int) int {
+			si, sj := score(i), score(j)
+			switch {
+			case si > sj:
+				return -1
+			case si < sj:
+				return 1
+			}
+			return 0
+		})
+		order = order[:maxLoadingRows]
+		slices.Sort(order)
+		b.Truncated = fmt.Sprintf("The %d of %d variables with the largest loadings are listed, in input order; loadings.csv holds all of them.", maxLoadingRows, p)
+	}
+	for _, j := range order {
+		row := []string{res.Table.Variables[j]}
+		for a := 0; a < k; a++ {
+			cell := f3(v.At(j, a))
+			if st.Used > 0 && !st.Loadings[j][a].ExcludesZero() {
+				cell += " °"
+			}
+			row = append(row, cell)
+		}
+		b.Rows = append(b.Rows, row)
+	}
+	if st.Used > 0 {
+		b.Note = "° marks a loading whose 95 % bootstrap interval includes zero: its sign is not stable. stability.csv holds every interval."
+	}
+	for a := 0; a < k; a++ {
+		b.Figures = append(b.Figures, Figure{
+			Stem: fmt.Sprintf("loadings-pc%d", a+1), Alt: fmt.Sprintf("Loadings on PC%d", a+1),
+			Caption: fmt.Sprintf("Loadings on PC%d, variables sorted by absolute loading%s.", a+1, map[bool]string{true: "; whiskers are 95 % bootstrap intervals, hollow bars have intervals that include zero", false: ""}[st.Used > 0]),
+		})
+	}
+	return b
+}
+
+// scorePairs lists the component pairs drawn as score plots: (1,2), then
+// (1,3) and (2,3) when three or more components are retained.
+func scorePairs(k int) [][2]int {
+	switch {
+	case k <= 1:
+		return nil
+	case k == 2:
+		return [][2]int{{0, 1}}
+	}
+	return [][2]int{{0, 1}, {0, 2}, {1, 2}}
+}
+
+func scoresBlock(res *analysis.Result) ScoresBlock {
+	var b ScoresBlock
+	group := "one colour"
+	if res.Table.GroupColumn != "" {
+		group = "coloured and shaped by " + res.Table.GroupColumn
+	}
+	if res.Retained == 1 {
+		b.Figures = []Figure{{Stem: "scores-pc1", Alt: "PC1 scores in sample order",
+			Caption: fmt.Sprintf("Scores on PC1 in input order (%s), with the 95 %% Hotelling T² limit for one component; samples beyond a 99 %% limit of T² or Q are named.", group)}}
+		b.Note = "Only one component is retained, so its scores are shown against the sample order."
+	}
+	for _, pr := range scorePairs(res.Retained) {
+		b.Figures = append(b.Figures, Figure{
+			Stem: fmt.Sprintf("scores-pc%d-pc%d", pr[0]+1, pr[1]+1), Alt: fmt.Sprintf("Scores, PC%d against PC%d", pr[1]+1, pr[0]+1),
+			Caption: fmt.Sprintf("Scores on PC%d and PC%d (%s) with the 95 %% Hotelling T² ellipse for these two components; samples beyond a 99 %% limit of T² or Q are named.", pr[0]+1, pr[1]+1, group),
+		})
+	}
+	if res.Retained >= 2 && res.Decomp.Vars <= biplotVariables {
+		b.Biplot = &Figure{Stem: "biplot", Alt: "Biplot of PC1 and PC2",
+			Caption: "Biplot (Gabriel 1971), column-metric form: samples at their standardised scores, variables as arrows to loading × √eigenvalue, stretched by one common factor. Angles between arrows approximate correlations."}
+	}
+	return b
+}
+
+func outliersBlock(res *analysis.Result) OutliersBlock {
+	s := res.Samples
+	l := s.Limits
+	b := OutliersBlock{Header: []string{IDHeader(res.Table)}}
+	if res.Table.GroupColumn != "" {
+		b.Header = append(b.Header, res.Table.GroupColumn)
+	}
+	b.Header = append(b.Header, "T²", "Q", "Leverage", "Limits passed")
+	qText := "Q residual: not applicable (every component retained)"
+	if l.QMethod != analysis.QNone {
+		method := "Jackson & Mudholkar (1979)"
+		if l.QMethod == analysis.QBox {
+			method = "Box (1954) χ² approximation"
+		}
+		qText = fmt.Sprintf("Q residual %s (95 %%) and %s (99 %%) by %s", g4(l.Q95), g4(l.Q99), method)
+	}
+	b.Limits = fmt.Sprintf("Hotelling T² %s (95 %%) and %s (99 %%), beta form of Tracy, Young & Mason (1992) for the samples that built the model; %s; leverage %s = 3(k+1)/n.",
+		g4(l.T2_95), g4(l.T2_99), qText, g4(l.Leverage))
+	b.Figure = Figure{Stem: "t2-q", Alt: "Hotelling T² against Q residual",
+		Caption: "Hotelling T² (distance within the model) against the Q residual (distance from it), with the 95 % (dashed) and 99 % (solid) limits; samples beyond a 99 % limit are named."}
+	var flagged []int
+	for i := range s.T2 {
+		beyond := s.Beyond(i)
+		for _, x := range beyond {
+			if x == "t2-99" || x == "q-99" || x == "leverage" {
+				flagged = append(flagged, i)
+				break
+			}
+		}
+	}
+	if len(flagged) == 0 {
+		b.None = "No sample passes a 99 % limit or the leverage rule."
+		return b
+	}
+	for c, i := range flagged {
+		if c >= maxOutlierRows {
+			b.Truncated = fmt.Sprintf("The first %d of %d flagged samples are listed; samples.csv holds every sample.", maxOutlierRows, len(flagged))
+			break
+		}
+		row := []string{res.Table.IDs[i]}
+		if res.Table.GroupColumn != "" {
+			row = append(row, res.Table.Groups[i])
+		}
+		row = append(row, g4(s.T2[i]), g4(s.Q[i]), g4(s.Leverage[i]), strings.Join(s.Beyond(i), " "))
+		b.Rows = append(b.Rows, row)
+	}
+	return b
+}
+
+func stabilityBlock(res *analysis.Result) StabilityBlock {
+	st := res.Stability
+	if st.Used == 0 {
+		reason := "The bootstrap was turned off (--bootstrap 0)."
+		if st.Resamples > 0 {
+			reason = "Every resample was degenerate (some variable was constant in it)."
+		}
+		return StabilityBlock{Skipped: reason}
+	}
+	b := StabilityBlock{Enabled: true,
+		Summary: fmt.Sprintf("%d bootstrap resamples of the whole pipeline (rows drawn with replacement, preprocessing redone in each)", st.Used),
+		Header:  []string{"Component", "φ median", "φ 5th pct.", "Procrustes φ median", "Procrustes φ 5th pct."},
+	}
+	if st.Degenerate > 0 {
+		b.Summary += fmt.Sprintf("; %d more were skipped because a variable was constant in them", st.Degenerate)
+	}
+	b.Summary += "."
+	for a, c := range st.Components {
+		b.Rows = append(b.Rows, []string{componentName(a), f3(c.CongruenceMedian), f3(c.CongruenceP5), f3(c.ProcrustesMedian), f3(c.ProcrustesP5)})
+	}
+	b.EigHeader = []string{"Component", "Eigenvalue", "95 % interval", "Variance", "95 % interval"}
+	pct := Percentages(res.Decomp.Eigenvalues)
+	for a := 0; a < min(len(st.Eigenvalues), intervalComponents); a++ {
+		e, p := st.Eigenvalues[a], st.Percent[a]
+		b.EigRows = append(b.EigRows, []string{componentName(a), g4(res.Decomp.Eigenvalues[a]), g4(e.Low) + " – " + g4(e.High), pctText(pct[a]), pctText(p.Low) + " – " + pctText(p.High)})
+	}
+	b.Congruence = Figure{Stem: "stability-congruence", Alt: "Congruence over the bootstrap",
+		Caption: "Tucker's congruence φ between each resample's sign-aligned loadings and the reference, per retained component (box: quartiles; line: median). 0.95 and above: equal; 0.85–0.95: fair (Lorenzo-Seva & ten Berge 2006)."}
+	b.Eigen = Figure{Stem: "stability-eigenvalues", Alt: "Eigenvalues with bootstrap intervals",
+		Caption: "Eigenvalues with 95 % bootstrap percentile intervals (filled: retained). Overlapping intervals of neighbours mean their components may exchange places from sample to sample."}
+	return b
+}
+
+// shellQuote renders a command line so that it can be pasted into a POSIX
+// shell.
+func shellQuote(args []string) string {
+	out := make([]string, len(args))
+	for i, a := range args {
+		if a != "" && strings.IndexFunc(a, func(r rune) bool {
+			return !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("-_./=:,+@%", r))
+		}) < 0 {
+			out[i] = a
+			continue
+		}
+		out[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
+	}
+	return strings.Join(out, " ")
+}

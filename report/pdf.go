@@ -1,0 +1,568 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"image/png"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"codeberg.org/go-fonts/liberation/liberationmonoregular"
+	"codeberg.org/go-fonts/liberation/liberationsansbold"
+	"codeberg.org/go-fonts/liberation/liberationsansbolditalic"
+	"codeberg.org/go-fonts/liberation/liberationsansitalic"
+	"codeberg.org/go-fonts/liberation/liberationsansregular"
+	"codeberg.org/go-pdf/fpdf"
+	"github.com/yuin/goldmark/ast"
+	east "github.com/yuin/goldmark/extension/ast"
+	"github.com/yuin/goldmark/util"
+)
+
+// The PDF is drawn by walking the same goldmark tree the HTML comes from.
+// fpdf's built-in fonts are cp1252 only, so the Liberation fonts (already
+// in the module graph through gonum/plot) are embedded for "T²", "λ", "≥"
+// and the like.
+
+const (
+	pdfMargin    = 18.0 // mm
+	pdfBodySize  = 9.5  // pt
+	pdfTableSize = 7.5
+	pdfLine      = 4.6 // mm per body line
+	pdfTableLine = 3.4
+	pdfCellPad   = 1.2
+	pdfImageW    = 160.0 // mm: the figures' own width
+	mmPerPt      = 25.4 / 72
+)
+
+type pdfWriter struct {
+	pdf      *fpdf.Fpdf
+	src      []byte
+	dir      string
+	contentW float64
+	bold     int
+	italic   int
+	mono     int
+	size     float64
+	lineH    float64
+	// headerRepeats counts table headers drawn again after a page break.
+	headerRepeats int
+	images        int
+}
+
+// RenderPDF draws the parsed report. dir is the report folder (the figures
+// are read from dir/figures). The same document and date give the same
+// bytes: the creation and modification dates are fixed and the catalogue
+// is sorted.
+func RenderPDF(src []byte, doc ast.Node, d *Document, dir string) ([]byte, error) {
+	out, _, err := renderPDF(src, doc, d, dir)
+	return out, err
+}
+
+// pdfStats describes a rendered PDF, for tests.
+type pdfStats struct {
+	headerRepeats, images int
+}
+
+func renderPDF(src []byte, doc ast.Node, d *Document, dir string) ([]byte, pdfStats, error) {
+	w, err := newPDFWriter(src, d, dir)
+	if err != nil {
+		return nil, pdfStats{}, err
+	}
+	if err := w.blocks(doc); err != nil {
+		return nil, pdfStats{}, err
+	}
+	if err := w.pdf.Error(); err != nil {
+		return nil, pdfStats{}, err
+	}
+	var out bytes.Buffer
+	if err := w.pdf.Output(&out); err != nil {
+		return nil, pdfStats{}, err
+	}
+	return out.Bytes(), pdfStats{w.headerRepeats, w.images}, nil
+}
+
+func reportTime(date string) time.Time {
+	t, err := time.Parse("2006-01-02", date)
+	if err != nil {
+		return time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
+	}
+	return t.UTC()
+}
+
+func newPDFWriter(src []byte, d *Document, dir string) (*pdfWriter, error) {
+	pdf := fpdf.New("P", "mm", "A4", "")
+	pdf.SetCatalogSort(true)
+	stamp := reportTime(d.Date)
+	pdf.SetCreationDate(stamp)
+	pdf.SetModificationDate(stamp)
+	pdf.SetTitle(d.Title, true)
+	if d.Author != "" {
+		pdf.SetAuthor(d.Author, true)
+	}
+	pdf.SetCreator("pcqc "+d.Version, true)
+	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
+	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
+	pdf.AddUTF8FontFromBytes("sans", "I", liberationsansitalic.TTF)
+	pdf.AddUTF8FontFromBytes("sans", "BI", liberationsansbolditalic.TTF)
+	pdf.AddUTF8FontFromBytes("mono", "", liberationmonoregular.TTF)
+	pdf.SetMargins(pdfMargin, pdfMargin, pdfMargin)
+	pdf.SetCellMargin(0) // padding is the writer's business
+	pdf.SetAutoPageBreak(true, pdfMargin+4)
+	pdf.AliasNbPages("{nb}")
+	footer := fmt.Sprintf("pcqc %s · %s · input SHA-256 %s", d.Version, d.Data.File, shortHash(d.Data.SHA256))
+	pdf.SetFooterFunc(func() {
+		pdf.SetY(-pdfMargin + 4)
+		pdf.SetFont("sans", "", 7)
+		pdf.SetTextColor(110, 116, 125)
+		pdf.CellFormat(0, 4, footer, "", 0, "L", false, 0, "")
+		pdf.CellFormat(0, 4, fmt.Sprintf("page %d of {nb}", pdf.PageNo()), "", 0, "R", false, 0, "")
+		pdf.SetTextColor(43, 47, 54)
+	})
+	pdf.AddPage()
+	pdf.SetTextColor(43, 47, 54)
+	pageW, _ := pdf.GetPageSize()
+	w := &pdfWriter{pdf: pdf, src: src, dir: dir, contentW: pageW - 2*pdfMargin, size: pdfBodySize, lineH: pdfLine}
+	w.setFont()
+	return w, pdf.Error()
+}
+
+func (w *pdfWriter) setFont() {
+	if w.mono > 0 {
+		w.pdf.SetFont("mono", "", w.size*0.92)
+		return
+	}
+	style := ""
+	if w.bold > 0 {
+		style += "B"
+	}
+	if w.italic > 0 {
+		style += "I"
+	}
+	w.pdf.SetFont("sans", style, w.size)
+}
+
+// ensure starts a new page unless h millimetres fit above the bottom margin.
+func (w *pdfWriter) ensure(h float64) {
+	_, pageH := w.pdf.GetPageSize()
+	if w.pdf.GetY()+h > pageH-pdfMargin-4 {
+		w.pdf.AddPage()
+	}
+}
+
+func (w *pdfWriter) blocks(parent ast.Node) error {
+	for n := parent.FirstChild(); n != nil; n = n.NextSibling() {
+		if err := w.block(n); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func (w *pdfWriter) block(n ast.Node) error {
+	switch n := n.(type) {
+	case *ast.Heading:
+		w.heading(n)
+	case *ast.Paragraph:
+		if img := onlyImage(n); img != nil {
+			return w.image(img)
+		}
+		w.paragraph(n, 0)
+	case *ast.TextBlock:
+		w.paragraph(n, 0)
+	case *ast.List:
+		w.list(n)
+	case *ast.FencedCodeBlock, *ast.CodeBlock:
+		w.code(n)
+	case *east.Table:
+		w.table(n)
+	case *ast.ThematicBreak:
+		y := w.pdf.GetY() + 2
+		w.pdf.Line(pdfMargin, y, pdfMargin+w.contentW, y)
+		w.pdf.Ln(5)
+	default:
+		return w.blocks(n)
+	}
+	return nil
+}
+
+func (w *pdfWriter) heading(h *ast.Heading) {
+	sizes := map[int]float64{1: 19, 2: 13.5, 3: 11}
+	size := sizes[h.Level]
+	if size == 0 {
+		size = 10.5
+	}
+	// Keep the heading with the start of what follows it: a figure whole,
+	// anything else by a few lines.
+	next := 18.0
+	if p, ok := h.NextSibling().(*ast.Paragraph); ok {
+		if img := onlyImage(p); img != nil {
+			if _, ih, err := w.imageSize(img); err == nil {
+				next = ih + 10
+			}
+		}
+	}
+	w.ensure(size*mmPerPt*2 + next)
+	if h.Level > 1 && w.pdf.GetY() > pdfMargin+1 {
+		w.pdf.Ln(3)
+	}
+	w.size, w.lineH = size, size*mmPerPt*1.35
+	w.bold++
+	w.setFont()
+	if h.Level == 1 {
+		w.pdf.SetTextColor(31, 78, 140)
+	}
+	w.inlines(h)
+	w.pdf.Ln(w.lineH)
+	w.pdf.SetTextColor(43, 47, 54)
+	w.bold--
+	if h.Level <= 2 {
+		y := w.pdf.GetY() + 0.5
+		w.pdf.SetDrawColor(31, 78, 140)
+		w.pdf.SetLineWidth(map[int]float64{1: 0.8, 2: 0.3}[h.Level])
+		w.pdf.Line(pdfMargin, y, pdfMargin+w.contentW, y)
+		w.pdf.SetDrawColor(0, 0, 0)
+		w.pdf.SetLineWidth(0.2)
+		w.pdf.Ln(3)
+	} else {
+		w.pdf.Ln(1)
+	}
+	w.size, w.lineH = pdfBodySize, pdfLine
+	w.setFont()
+}
+
+func (w *pdfWriter) paragraph(n ast.Node, indent float64) {
+	w.inlines(n)
+	w.pdf.Ln(w.lineH)
+	if _, tight := n.(*ast.TextBlock); !tight {
+		w.pdf.Ln(1.6)
+	}
+}
+
+// inlines writes the inline children of n in flowing text.
+func (w *pdfWriter) inlines(n ast.Node) {
+	for c := n.FirstChild(); c != nil; c = c.NextSibling() {
+		switch c := c.(type) {
+		case *ast.Text:
+			w.pdf.Write(w.lineH, textValue(c, w.src))
+			if c.HardLineBreak() {
+				w.pdf.Ln(w.lineH)
+			} else if c.SoftLineBreak() {
+				w.pdf.Write(w.lineH, " ")
+			}
+		case *ast.String:
+			w.pdf.Write(w.lineH, string(c.Value))
+		case *ast.Emphasis:
+			if c.Level >= 2 {
+				w.bold++
+			} else {
+				w.italic++
+			}
+			w.setFont()
+			w.inlines(c)
+			if c.Level >= 2 {
+				w.bold--
+			} else {
+				w.italic--
+			}
+			w.setFont()
+		case *ast.CodeSpan:
+			w.mono++
+			w.setFont()
+			w.pdf.Write(w.lineH, plainText(c, w.src))
+			w.mono--
+			w.setFont()
+		default:
+			w.inlines(c)
+		}
+	}
+}
+
+// textValue returns a text node's text as it reads: goldmark keeps the
+// source bytes, backslash escapes included, and unescapes when rendering.
+func textValue(t *ast.Text, src []byte) string {
+	v := t.Segment.Value(src)
+	if t.IsRaw() {
+		return string(v)
+	}
+	return string(util.UnescapePunctuations(v))
+}
+
+// plainText concatenates the text below n.
+func plainText(n ast.Node, src []byte) string {
+	var b strings.Builder
+	ast.Walk(n, func(c ast.Node, entering bool) (ast.WalkStatus, error) {
+		if !entering {
+			return ast.WalkContinue, nil
+		}
+		switch c := c.(type) {
+		case *ast.Text:
+			b.WriteString(textValue(c, src))
+			if c.SoftLineBreak() {
+				b.WriteByte(' ')
+			}
+		case *ast.String:
+			b.Write(c.Value)
+		}
+		return ast.WalkContinue, nil
+	})
+	return b.String()
+}
+
+func (w *pdfWriter) list(l *ast.List) {
+	const indent = 5.0
+	left, _, _, _ := w.pdf.GetMargins()
+	for item := l.FirstChild(); item != nil; item = item.NextSibling() {
+		w.ensure(w.lineH * 2)
+		w.pdf.SetX(left)
+		w.pdf.CellFormat(indent, w.lineH, "•", "", 0, "L", false, 0, "")
+		w.pdf.SetLeftMargin(left + indent)
+		w.pdf.SetX(left + indent)
+		for c := item.FirstChild(); c != nil; c = c.NextSibling() {
+			switch c := c.(type) {
+			case *ast.TextBlock, *ast.Paragraph:
+				w.inlines(c)
+				w.pdf.Ln(w.lineH)
+			default:
+				w.block(c)
+			}
+		}
+		w.pdf.SetLeftMargin(left)
+		w.pdf.Ln(0.8)
+	}
+	w.pdf.Ln(1.6)
+}
+
+func (w *pdfWriter) code(n ast.Node) {
+	var b strings.Builder
+	lines := n.Lines()
+	for i := 0; i < lines.Len(); i++ {
+		seg := lines.At(i)
+		b.Write(seg.Value(w.src))
+	}
+	text := strings.TrimRight(b.String(), "\n")
+	w.mono++
+	w.setFont()
+	w.pdf.SetFillColor(238, 241, 245)
+	w.pdf.MultiCell(w.contentW, w.lineH, text, "", "L", true)
+	w.mono--
+	w.setFont()
+	w.pdf.Ln(2)
+}
+
+func onlyImage(p *ast.Paragraph) *ast.Image {
+	img, ok := p.FirstChild().(*ast.Image)
+	if !ok || p.FirstChild() != p.LastChild() {
+		return nil
+	}
+	return img
+}
+
+// pngPath maps an image destination to the PNG file in the report folder.
+func (w *pdfWriter) pngPath(img *ast.Image) (dest, path string) {
+	dest = strings.TrimSuffix(string(img.Destination), ".svg")
+	if !strings.HasSuffix(dest, ".png") {
+		dest += ".png"
+	}
+	return dest, filepath.Join(w.dir, filepath.FromSlash(dest))
+}
+
+// imageSize returns the size (mm) at which a figure is drawn: its own width
+// (or the text width), shrunk to fit a page.
+func (w *pdfWriter) imageSize(img *ast.Image) (width, height float64, err error) {
+	_, path := w.pngPath(img)
+	f, err := os.Open(path)
+	if err != nil {
+		return 0, 0, err
+	}
+	defer f.Close()
+	cfg, err := png.DecodeConfig(f)
+	if err != nil {
+		return 0, 0, err
+	}
+	width = min(pdfImageW, w.contentW)
+	height = width * float64(cfg.Height) / float64(cfg.Width)
+	_, pageH := w.pdf.GetPageSize()
+	if avail := pageH - 2*pdfMargin - 12; height > avail {
+		width, height = width*avail/height, avail
+	}
+	return width, height, nil
+}
+
+func (w *pdfWriter) image(img *ast.Image) error {
+	dest, path := w.pngPath(img)
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return fmt.Errorf("figure for the PDF: %w", err)
+	}
+	if info := w.pdf.RegisterImageOptionsReader(dest, fpdf.ImageOptions{ImageType: "PNG"}, bytes.NewReader(data)); info == nil {
+		return w.pdf.Error()
+	}
+	width, height, err := w.imageSize(img)
+	if err != nil {
+		return fmt.Errorf("figure for the PDF: %w", err)
+	}
+	w.ensure(height + 10) // keep the caption with its figure
+	x := pdfMargin + (w.contentW-width)/2
+	w.pdf.ImageOptions(dest, x, w.pdf.GetY(), width, height, false, fpdf.ImageOptions{ImageType: "PNG"}, 0, "")
+	w.pdf.SetY(w.pdf.GetY() + height + 1.5)
+	w.images++
+	return nil
+}
+
+// tableCells collects a table's text: the header, then the body rows.
+func tableCells(t *east.Table, src []byte) (header []string, rows [][]string) {
+	for r := t.FirstChild(); r != nil; r = r.NextSibling() {
+		var cells []string
+		for c := r.FirstChild(); c != nil; c = c.NextSibling() {
+			cells = append(cells, strings.TrimSpace(plainText(c, src)))
+		}
+		if _, ok := r.(*east.TableHeader); ok {
+			header = cells
+		} else {
+			rows = append(rows, cells)
+		}
+	}
+	return header, rows
+}
+
+// columnWidths shares width among the columns: each gets its natural width
+// (its widest cell) when that fits, and otherwise the narrow columns keep
+// theirs and the wide ones split what is left. Narrow tables are stretched
+// to the full width.
+func columnWidths(natural []float64, width float64) []float64 {
+	n := len(natural)
+	out := make([]float64, n)
+	total := 0.0
+	for _, v := range natural {
+		total += v
+	}
+	if total <= width {
+		for i, v := range natural {
+			out[i] = v * width / total
+		}
+		return out
+	}
+	fixed := make([]bool, n)
+	left, open := width, n
+	for changed := true; changed; {
+		changed = false
+		share := left / float64(open)
+		for i, v := range natural {
+			if !fixed[i] && v <= share {
+				out[i], fixed[i] = v, true
+				left -= v
+				open--
+				changed = true
+			}
+		}
+		if open == 0 {
+			break
+		}
+	}
+	for i := range out {
+		if !fixed[i] {
+			out[i] = left / float64(open)
+		}
+	}
+	return out
+}
+
+// wrapCell splits text into lines no wider than width (mm) in the current
+// font; a word longer than the width is broken, so nothing overflows.
+func (w *pdfWriter) wrapCell(text string, width float64) []string {
+	if text == "" {
+		return []string{""}
+	}
+	return w.pdf.SplitText(text, width)
+}
+
+func (w *pdfWriter) table(t *east.Table) {
+	header, rows := tableCells(t, w.src)
+	if len(header) == 0 {
+		return
+	}
+	pdf := w.pdf
+	saveSize := w.size
+	w.size = pdfTableSize
+	natural := make([]float64, len(header))
+	measure := func(cells []string, bold bool) {
+		w.bold = map[bool]int{true: 1, false: 0}[bold]
+		w.setFont()
+		for i, c := range cells {
+			if i < len(natural) {
+				natural[i] = max(natural[i], pdf.GetStringWidth(c)+2*pdfCellPad+0.5)
+			}
+		}
+	}
+	measure(header, true)
+	for _, r := range rows {
+		measure(r, false)
+	}
+	widths := columnWidths(natural, w.contentW)
+
+	drawRow := func(cells []string, head bool) {
+		w.bold = map[bool]int{true: 1, false: 0}[head]
+		w.setFont()
+		lines := make([][]string, len(widths))
+		maxLines := 1
+		for i := range widths {
+			cell := ""
+			if i < len(cells) {
+				cell = cells[i]
+			}
+			lines[i] = w.wrapCell(cell, widths[i]-2*pdfCellPad)
+			maxLines = max(maxLines, len(lines[i]))
+		}
+		h := float64(maxLines)*pdfTableLine + 2*pdfCellPad
+		x, y := pdfMargin, pdf.GetY()
+		for i, wd := range widths {
+			style := "D"
+			if head {
+				pdf.SetFillColor(226, 231, 238)
+				style = "FD"
+			}
+			pdf.SetDrawColor(200, 205, 212)
+			pdf.Rect(x, y, wd, h, style)
+			for l, line := range lines[i] {
+				pdf.SetXY(x+pdfCellPad, y+pdfCellPad+float64(l)*pdfTableLine)
+				pdf.CellFormat(wd-2*pdfCellPad, pdfTableLine, line, "", 0, "L", false, 0, "")
+			}
+			x += wd
+		}
+		pdf.SetDrawColor(0, 0, 0)
+		pdf.SetXY(pdfMargin, y+h)
+	}
+	rowHeight := func(cells []string) float64 {
+		w.bold = 0
+		w.setFont()
+		maxLines := 1
+		for i := range widths {
+			if i < len(cells) {
+				maxLines = max(maxLines, len(w.wrapCell(cells[i], widths[i]-2*pdfCellPad)))
+			}
+		}
+		return float64(maxLines)*pdfTableLine + 2*pdfCellPad
+	}
+	_, pageH := pdf.GetPageSize()
+	bottom := pageH - pdfMargin - 4
+	first := 0.0
+	if len(rows) > 0 {
+		first = rowHeight(rows[0])
+	}
+	w.ensure(2*pdfTableLine + 2*pdfCellPad + first)
+	drawRow(header, true)
+	for _, r := range rows {
+		if pdf.GetY()+rowHeight(r) > bottom {
+			pdf.AddPage()
+			drawRow(header, true)
+			w.headerRepeats++
+		}
+		drawRow(r, false)
+	}
+	w.bold = 0
+	w.size = saveSize
+	w.setFont()
+	pdf.Ln(3)
+}

@@ -1,0 +1,185 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// Small plotters of our own, for the few marks gonum/plot does not draw the
+// way the report needs.
+
+// guides draws faint horizontal lines at the major Y ticks, behind the data.
+type guides struct{}
+
+func (guides) Plot(c draw.Canvas, plt *plot.Plot) {
+	_, trY := plt.Transforms(&c)
+	ls := lineStyle(guideColor, 0.5)
+	for _, t := range plt.Y.Tick.Marker.Ticks(plt.Y.Min, plt.Y.Max) {
+		if t.IsMinor() {
+			continue
+		}
+		y := trY(t.Value)
+		c.StrokeLine2(ls, c.Min.X, y, c.Max.X, y)
+	}
+}
+
+// refLine is a vertical or horizontal reference line across the data area,
+// with an optional label at its end.
+type refLine struct {
+	vertical bool
+	at       float64
+	style    draw.LineStyle
+	label    string
+}
+
+func (r refLine) Plot(c draw.Canvas, plt *plot.Plot) {
+	trX, trY := plt.Transforms(&c)
+	ts := draw.TextStyle{Color: r.style.Color, Font: textFont(7, false), Handler: plot.DefaultTextHandler}
+	if r.vertical {
+		x := trX(r.at)
+		c.StrokeLine2(r.style, x, c.Min.Y, x, c.Max.Y)
+		if r.label != "" {
+			ts.XAlign, ts.YAlign = text.XLeft, text.YTop
+			c.FillText(ts, vg.Point{X: x + vg.Points(2), Y: c.Max.Y}, r.label)
+		}
+		return
+	}
+	y := trY(r.at)
+	c.StrokeLine2(r.style, c.Min.X, y, c.Max.X, y)
+	if r.label != "" {
+		ts.XAlign, ts.YAlign = text.XRight, text.YBottom
+		c.FillText(ts, vg.Point{X: c.Max.X, Y: y + vg.Points(1)}, r.label)
+	}
+}
+
+func (r refLine) DataRange() (xmin, xmax, ymin, ymax float64) {
+	if r.vertical {
+		return r.at, r.at, math.Inf(1), math.Inf(-1)
+	}
+	return math.Inf(1), math.Inf(-1), r.at, r.at
+}
+
+func (r refLine) Thumbnail(c *draw.Canvas) {
+	y := c.Center().Y
+	c.StrokeLine2(r.style, c.Min.X, y, c.Max.X, y)
+}
+
+// secondAxis draws a right-hand axis for a series that was scaled onto the
+// left axis: value v on it sits at v·scale in left-axis units.
+type secondAxis struct {
+	scale float64
+	ticks []float64
+	unit  string
+	label string
+}
+
+func (a secondAxis) Plot(c draw.Canvas, plt *plot.Plot) {
+	_, trY := plt.Transforms(&c)
+	x := c.Max.X
+	ls := lineStyle(inkColor, 0.6)
+	c.StrokeLine2(ls, x, c.Min.Y, x, c.Max.Y)
+	ts := draw.TextStyle{Color: inkColor, Font: textFont(8, false), Handler: plot.DefaultTextHandler, XAlign: text.XLeft, YAlign: text.YCenter}
+	for _, t := range a.ticks {
+		y := trY(t * a.scale)
+		c.StrokeLine2(lineStyle(inkColor, 0.5), x, y, x+vg.Points(3), y)
+		c.FillText(ts, vg.Point{X: x + vg.Points(4), Y: y}, fmt.Sprintf("%g%s", t, a.unit))
+	}
+	ls2 := draw.TextStyle{Color: inkColor, Font: textFont(9, false), Handler: plot.DefaultTextHandler, XAlign: text.XCenter, YAlign: text.YTop, Rotation: -math.Pi / 2}
+	c.FillText(ls2, vg.Point{X: x + vg.Points(38), Y: (c.Min.Y + c.Max.Y) / 2}, a.label)
+}
+
+// hbars draws horizontal bars from 0 to each value at rows 0…n−1, with
+// optional interval whiskers; bars whose interval includes 0 are drawn
+// hollow, so that instability shows without colour.
+type hbars struct {
+	values   []float64
+	low, hi  []float64 // nil without intervals
+	unstable []bool
+	fill     color.Color
+}
+
+func (h hbars) Plot(c draw.Canvas, plt *plot.Plot) {
+	trX, trY := plt.Transforms(&c)
+	half := (trY(1) - trY(0)) * 0.32
+	for i, v := range h.values {
+		y := trY(float64(i))
+		x0, x1 := trX(0), trX(v)
+		pts := []vg.Point{{X: x0, Y: y - half}, {X: x1, Y: y - half}, {X: x1, Y: y + half}, {X: x0, Y: y + half}}
+		outline := lineStyle(mainColor, 0.8)
+		if h.unstable == nil || !h.unstable[i] {
+			c.FillPolygon(h.fill, pts)
+		} else {
+			c.FillPolygon(color.White, pts)
+		}
+		c.StrokeLines(outline, append(pts, pts[0]))
+		if h.low != nil {
+			ws := lineStyle(inkColor, 0.7)
+			lo, hi := trX(h.low[i]), trX(h.hi[i])
+			c.StrokeLine2(ws, lo, y, hi, y)
+			c.StrokeLine2(ws, lo, y-half/2, lo, y+half/2)
+			c.StrokeLine2(ws, hi, y-half/2, hi, y+half/2)
+		}
+	}
+	zero := trX(0)
+	c.StrokeLine2(lineStyle(inkColor, 0.6), zero, c.Min.Y, zero, c.Max.Y)
+}
+
+func (h hbars) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax = 0, 0
+	for i, v := range h.values {
+		xmin, xmax = math.Min(xmin, v), math.Max(xmax, v)
+		if h.low != nil {
+			xmin, xmax = math.Min(xmin, h.low[i]), math.Max(xmax, h.hi[i])
+		}
+	}
+	return xmin, xmax, -0.6, float64(len(h.values)) - 0.4
+}
+
+// arrows draws lines from the origin to each point, with a label at the tip.
+type arrows struct {
+	x, y   []float64
+	labels []string
+}
+
+func (a arrows) Plot(c draw.Canvas, plt *plot.Plot) {
+	trX, trY := plt.Transforms(&c)
+	ls := lineStyle(accent99, 0.8)
+	ts := draw.TextStyle{Color: accent99, Font: textFont(7, false), Handler: plot.DefaultTextHandler}
+	ox, oy := trX(0), trY(0)
+	for i := range a.x {
+		tx, ty := trX(a.x[i]), trY(a.y[i])
+		c.StrokeLine2(ls, ox, oy, tx, ty)
+		// Arrow head: two short strokes back from the tip.
+		ang := math.Atan2(float64(ty-oy), float64(tx-ox))
+		for _, d := range []float64{0.45, -0.45} {
+			hx := tx - vg.Points(5)*vg.Length(math.Cos(ang+d))
+			hy := ty - vg.Points(5)*vg.Length(math.Sin(ang+d))
+			c.StrokeLine2(ls, tx, ty, hx, hy)
+		}
+		ts.XAlign, ts.YAlign = text.XLeft, text.YBottom
+		if a.x[i] < 0 {
+			ts.XAlign = text.XRight
+		}
+		if a.y[i] < 0 {
+			ts.YAlign = text.YTop
+		}
+		c.FillText(ts, vg.Point{X: tx, Y: ty}, a.labels[i])
+	}
+}
+
+// DataRange leaves room beyond the tips for the labels.
+func (a arrows) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax, ymin, ymax = 0, 0, 0, 0
+	for i := range a.x {
+		xmin, xmax = math.Min(xmin, a.x[i]), math.Max(xmax, a.x[i])
+		ymin, ymax = math.Min(ymin, a.y[i]), math.Max(ymax, a.y[i])
+	}
+	padX, padY := 0.35*(xmax-xmin), 0.1*(ymax-ymin)
+	return xmin - padX, xmax + padX, ymin - padY, ymax + padY
+}

@@ -1,0 +1,11 @@
+// Package templates holds the report's Markdown templates and the HTML page
+// that wraps the rendered Markdown, embedded so that the binary stands
+// alone. The report package fills them; they import nothing.
+package templates
+
+import "embed"
+
+// FS holds report.md.tmpl and page.html.tmpl.
+//
+//go:embed report.md.tmpl page.html.tmpl
+var FS embed.FS
