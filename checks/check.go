@@ -61,7 +61,8 @@ type Result struct {
 
 // Input is everything the checks may read.
 type Input struct {
-	Run *analysis.Result
+	Run    *analysis.Result
+	Review *analysis.Review // set by review mode only
 }
 
 // Check is one entry of the registry.
@@ -70,6 +71,9 @@ type Check struct {
 	Title string
 	// Source of the threshold: a publication, or "common practice".
 	Source string
+	// Review marks the checks of review mode, run only when Input.Review
+	// is set.
+	Review bool
 	judge  func(in Input) Result
 }
 
@@ -85,6 +89,15 @@ func (c Check) Run(in Input) Result {
 
 // Registry lists every check in report order.
 var Registry = []Check{
+	// Review mode: does another person's PCA follow from the data?
+	reviewCentering,
+	reviewScaling,
+	reviewSubspace,
+	reviewOrthonormality,
+	reviewScores,
+	reviewUncorrelated,
+	reviewVariance,
+	reviewOrder,
 	// The data: do they suit a PCA?
 	missingValues,
 	constantVariables,
@@ -115,6 +128,9 @@ var Registry = []Check{
 func RunAll(in Input) []Result {
 	out := make([]Result, 0, len(Registry))
 	for _, c := range Registry {
+		if c.Review && in.Review == nil {
+			continue
+		}
 		out = append(out, c.Run(in))
 	}
 	return out

@@ -54,12 +54,18 @@ func TestDemoPlantedTruthRecovered(t *testing.T) {
 
 func TestEveryCheckReportsAllFields(t *testing.T) {
 	_, results := demoResult(t)
-	if len(results) != len(Registry) {
-		t.Fatalf("%d results for %d checks", len(results), len(Registry))
+	var audit []Check
+	for _, c := range Registry {
+		if !c.Review {
+			audit = append(audit, c)
+		}
+	}
+	if len(results) != len(audit) {
+		t.Fatalf("%d results for %d audit checks", len(results), len(audit))
 	}
 	seen := map[string]bool{}
 	for i, r := range results {
-		if r.ID != Registry[i].ID || seen[r.ID] {
+		if r.ID != audit[i].ID || seen[r.ID] {
 			t.Errorf("result %d has id %q", i, r.ID)
 		}
 		seen[r.ID] = true

@@ -75,3 +75,39 @@ const (
 	CongruencePass = 0.95
 	CongruenceFail = 0.85
 )
+
+// Review mode.
+const (
+	// SubspacePass and SubspaceWarn bound the largest principal angle (in
+	// degrees) between another person's retained loadings and the
+	// recomputed ones: below 1° the subspaces agree to the printed
+	// precision of loadings; beyond 5° they are different (common practice).
+	SubspacePass = 1.0
+	SubspaceWarn = 5.0
+	// VarianceWarnPP and VarianceFailPP bound the difference, in percentage
+	// points, between stated and recomputed shares of variance (common
+	// practice: half a point is rounding, two points is a different
+	// analysis).
+	VarianceWarnPP = 0.5
+	VarianceFailPP = 2.0
+	// ScoreResidualPass and ScoreResidualFail bound the relative residual
+	// between stated scores and the data projected on the stated loadings
+	// (common practice: allows scores and loadings printed to three
+	// significant digits).
+	ScoreResidualPass = 0.01
+	ScoreResidualFail = 0.05
+	// ScoreCorrelationPass and ScoreCorrelationFail bound the correlation
+	// between stated score columns, which is zero for a correct PCA; the
+	// allowance covers printed precision (common practice).
+	ReviewCorrelationPass = 0.02
+	ReviewCorrelationFail = 0.1
+	// ScoreMeanShiftLimit: scores of centred data have mean zero; a mean
+	// beyond a tenth of their standard deviation shows the data were not
+	// centred (common practice).
+	ScoreMeanShiftLimit = 0.1
+	// ReviewOrthonormalityFail: beyond this, loadings are not orthonormal
+	// whatever their printed precision (common practice).
+	ReviewOrthonormalityFail = 0.05
+)
+
+const sourceReviewPractice = "common practice"

@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
@@ -18,6 +19,7 @@ type Document struct {
 	Title, Author, Date, Version string
 	Invented                     string // a note that the data are invented (demo), or ""
 
+	Review  *ReviewBlock // review mode only
 	Verdict VerdictBlock
 	Checks  []CheckRow
 
@@ -184,7 +186,8 @@ func firstSentence(msg string) string {
 func statusWord(s checks.Status) string { return string(s) }
 
 // BuildDocument fills the report model. meta.Command is the command line.
-func BuildDocument(res *analysis.Result, results []checks.Result, meta Meta, opt ReportOptions) *Document {
+func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
+	res, results := audit.Result, audit.Checks
 	t := res.Table
 	d := &Document{
 		Title:    opt.Title,
@@ -195,7 +198,7 @@ func BuildDocument(res *analysis.Result, results []checks.Result, meta Meta, opt
 		Command:  shellQuote(meta.Command),
 	}
 	if d.Title == "" {
-		d.Title = "PCA audit of " + t.File
+		d.Title = "PCA audit of " + filepath.Base(t.File)
 	}
 
 	// Verdict and checks.
@@ -222,6 +225,7 @@ func BuildDocument(res *analysis.Result, results []checks.Result, meta Meta, opt
 		d.Verdict.Sentence = "At least one check failed: the results should not be interpreted until the failing checks are understood."
 	}
 
+	d.Review = reviewBlock(audit.Review, results)
 	d.Data = dataBlock(res)
 	d.Components = componentsBlock(res)
 	d.Loadings = loadingsBlock(res)

@@ -39,7 +39,7 @@ var testMeta = Meta{Version: "test", Command: []string{"pcqc", "demo", "--date",
 func writeAll(t *testing.T, dir string, res *analysis.Result, results []checks.Result) {
 	t.Helper()
 	opt := ReportOptions{Title: "Demo audit", Author: "A. Tester", Date: "2026-01-02", Invented: "Invented data."}
-	if err := WriteReport(dir, res, results, testMeta, opt, Formats{Markdown: true, PDF: true, HTML: true}); err != nil {
+	if err := WriteReport(dir, Audit{Result: res, Checks: results}, testMeta, opt, Formats{Markdown: true, PDF: true, HTML: true}); err != nil {
 		t.Fatal(err)
 	}
 }
@@ -142,7 +142,7 @@ func TestHTMLAndMarkdown(t *testing.T) {
 // or it would come out as a blank box.
 func TestReportGlyphsInFonts(t *testing.T) {
 	res, results := demoAudit(t, 50)
-	d := BuildDocument(res, results, testMeta, ReportOptions{Date: "2026-01-02"})
+	d := BuildDocument(Audit{Result: res, Checks: results}, testMeta, ReportOptions{Date: "2026-01-02"})
 	md, err := RenderMarkdown(d)
 	if err != nil {
 		t.Fatal(err)
@@ -209,7 +209,7 @@ func TestPDFReadsInPoppler(t *testing.T) {
 	if !strings.Contains(string(info), "Title:") || !strings.Contains(string(info), "Demo audit") {
 		t.Errorf("pdfinfo: %s", info)
 	}
-	d := BuildDocument(res, results, testMeta, ReportOptions{Title: "Demo audit", Date: "2026-01-02"})
+	d := BuildDocument(Audit{Result: res, Checks: results}, testMeta, ReportOptions{Title: "Demo audit", Date: "2026-01-02"})
 	want := []string{"Demo audit", "Overall verdict: " + d.Verdict.Word, normal(d.Methods)}
 	for _, r := range results {
 		want = append(want, r.Title)
@@ -242,7 +242,7 @@ func TestLongTablesInPDF(t *testing.T) {
 		t.Fatal(err)
 	}
 	results := checks.RunAll(checks.Input{Run: res})
-	d := BuildDocument(res, results, testMeta, ReportOptions{Date: "2026-01-02"})
+	d := BuildDocument(Audit{Result: res, Checks: results}, testMeta, ReportOptions{Date: "2026-01-02"})
 	if len(d.Loadings.Rows) != p {
 		t.Fatalf("loadings table has %d rows, want all %d", len(d.Loadings.Rows), p)
 	}

@@ -59,6 +59,7 @@ type Summary struct {
 	Components ComponentsInfo  `json:"components"`
 	Limits     LimitsInfo      `json:"limits"`
 	Stability  *StabilityInfo  `json:"stability"`
+	Review     *ReviewInfo     `json:"review,omitempty"`
 	Checks     []checks.Result `json:"checks"`
 	Verdict    checks.Status   `json:"verdict"`
 }
@@ -177,8 +178,17 @@ func optional(s string) *string {
 	return &s
 }
 
+// Audit is everything one audit produced: the analysis, the review of
+// another person's tables when in review mode, and the check results.
+type Audit struct {
+	Result *analysis.Result
+	Review *analysis.Review // nil outside review mode
+	Checks []checks.Result
+}
+
 // BuildSummary assembles summary.json's content.
-func BuildSummary(res *analysis.Result, results []checks.Result, meta Meta) Summary {
+func BuildSummary(audit Audit, meta Meta) Summary {
+	res, results := audit.Result, audit.Checks
 	t := res.Table
 	lim := res.Samples.Limits
 	dropped := t.DroppedVariables
@@ -222,6 +232,7 @@ func BuildSummary(res *analysis.Result, results []checks.Result, meta Meta) Summ
 			Leverage: lim.Leverage,
 		},
 		Stability: stabilityInfo(res),
+		Review:    reviewInfo(audit.Review, results),
 		Checks:    results,
 		Verdict:   checks.Verdict(results),
 	}
@@ -236,7 +247,8 @@ func writeJSON(path string, v any) error {
 }
 
 // WriteTables writes the machine-readable outputs of an audit into dir.
-func WriteTables(dir string, res *analysis.Result, results []checks.Result, meta Meta) error {
+func WriteTables(dir string, audit Audit, meta Meta) error {
+	res := audit.Result
 	join := func(name string) string { return dir + string(os.PathSeparator) + name }
 	files := []struct {
 		name string
@@ -246,6 +258,12 @@ func WriteTables(dir string, res *analysis.Result, results []checks.Result, meta
 		{"loadings.csv", LoadingsRows(res)},
 		{"scores.csv", ScoresRows(res.Table, res.Scores)},
 		{"samples.csv", SamplesRows(res)},
+	}
+	if audit.Review != nil {
+		files = append(files, struct {
+			name string
+			rows [][]string
+		}{"review-variants.csv", VariantRows(audit.Review)})
 	}
 	if rows := StabilityRows(res); rows != nil {
 		files = append(files, struct {
@@ -258,5 +276,5 @@ func WriteTables(dir string, res *analysis.Result, results []checks.Result, meta
 			return err
 		}
 	}
-	return writeJSON(join("summary.json"), BuildSummary(res, results, meta))
+	return writeJSON(join("summary.json"), BuildSummary(audit, meta))
 }

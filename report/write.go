@@ -5,9 +5,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-
-	"pcqc/analysis"
-	"pcqc/checks"
 )
 
 // Formats says which renderings of the report to write.
@@ -58,11 +55,11 @@ func ParseFormats(s string) (Formats, error) {
 // WriteReport writes the report in the requested formats into dir: the
 // figures (figures/*.png and *.svg), report.md, report.pdf, report.html and
 // references.bib.
-func WriteReport(dir string, res *analysis.Result, results []checks.Result, meta Meta, opt ReportOptions, formats Formats) error {
+func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats Formats) error {
 	if !formats.Any() {
 		return nil
 	}
-	d := BuildDocument(res, results, meta, opt)
+	d := BuildDocument(audit, meta, opt)
 	if err := d.saveFigures(dir); err != nil {
 		return err
 	}

@@ -14,8 +14,13 @@ import (
 // auditJob is one audit to run and write: a table already read and
 // validated, the options, and extra files to place in the output folder.
 type auditJob struct {
-	flags    *auditFlags
+	flags  *auditFlags
+	review *analysis.Review // review mode: the comparison with their tables
+	// adjust, when set, changes the analysis options before the analysis
+	// (review mode keeps their number of components and scaling).
+	adjust   func(*analysis.Options)
 	invented string // the demo's note that its data are invented
+	title    string // the default title, when --title is not given
 	read     analysis.ReadOptions
 	table    *analysis.Table
 	command  []string
@@ -30,11 +35,17 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		return 0, err
 	}
 	opt.Progress = newProgress(stderr, job.flags.quiet)
+	if job.adjust != nil {
+		job.adjust(&opt)
+	}
 	formats, ropt, err := job.flags.reportOptions(time.Now())
 	if err != nil {
 		return 0, err
 	}
 	ropt.Invented = job.invented
+	if ropt.Title == "" {
+		ropt.Title = job.title
+	}
 	if ropt.Title == "" && job.invented != "" {
 		ropt.Title = "PCA audit of an invented river-chemistry survey (pcqc demo)"
 	}
@@ -42,7 +53,8 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
-	results := checks.RunAll(checks.Input{Run: res})
+	results := checks.RunAll(checks.Input{Run: res, Review: job.review})
+	audit := report.Audit{Result: res, Review: job.review, Checks: results}
 	meta := report.Meta{
 		Version: Version,
 		Command: job.command,
@@ -59,10 +71,10 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 				return err
 			}
 		}
-		if err := report.WriteTables(out.Dir(), res, results, meta); err != nil {
+		if err := report.WriteTables(out.Dir(), audit, meta); err != nil {
 			return err
 		}
-		if err := report.WriteReport(out.Dir(), res, results, meta, ropt, formats); err != nil {
+		if err := report.WriteReport(out.Dir(), audit, meta, ropt, formats); err != nil {
 			return err
 		}
 		return out.Commit()

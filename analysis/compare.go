@@ -1,0 +1,371 @@
+package analysis
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Variant is one plausible preprocessing of the raw data, recomputed to see
+// whether another person's loadings follow from it.
+type Variant struct {
+	Centered bool
+	Scaling  Scaling
+	// Angles are the principal angles (degrees, ascending) between their
+	// retained subspace and this variant's first k components (Björck &
+	// Golub 1973, Math. Comp. 27:579–594); MaxAngle is the largest.
+	Angles   []float64
+	MaxAngle float64
+	// ScoreResidual is, when scores were given, the largest relative
+	// residual ‖t_a − c·Z v_a‖/‖t_a‖ over their components, with the best
+	// per-component factor c (sign flips and a different scaling of scores
+	// are conventions, not errors).
+	ScoreResidual float64
+	Eigenvalues   []float64
+	Loadings      *mat.Dense // p × k, this variant's leading loadings
+	z             *mat.Dense
+}
+
+// Name describes the variant, e.g. "centred, unit variance".
+func (v Variant) Name() string {
+	c := "not centred"
+	if v.Centered {
+		c = "centred"
+	}
+	return c + ", " + ScalingName(v.Scaling)
+}
+
+// ScalingName is a short name for a scaling.
+func ScalingName(s Scaling) string {
+	switch s {
+	case ScaleUnit:
+		return "unit variance"
+	case ScalePareto:
+		return "Pareto scaling"
+	case ScaleRange:
+		return "range scaling"
+	}
+	return "no scaling"
+}
+
+// Review compares another person's PCA with the raw data.
+type Review struct {
+	Loadings *TheirLoadings
+	Scores   *TheirScores // nil when not given
+
+	VarianceValues  []float64 // as stated, nil when not given
+	VarianceHint    string    // the header of the column they came from
+	VarianceKind    VarianceKind
+	VariancePercent []float64 // theirs, as percentages of the total variance
+	VarianceDiff    []float64 // theirs − recomputed, percentage points
+
+	ClaimedScale  Scaling // "" when not claimed
+	Variants      []Variant
+	Best          int // the variant with the smallest largest angle
+	BestCentred   int
+	BestUncentred int
+
+	// Under the best variant:
+	Orthonormality float64   // max |VᵀV − I| of their loadings as given
+	ColumnNorms    []float64 // ‖v_a‖ of their loadings
+	ScaledBySD     bool      // columns orthogonal with ‖v_a‖² ≈ λ_a: loadings × component sd
+	Congruence     []float64 // Tucker's φ between their component a and ours
+	Flipped        []bool    // φ < 0: the sign is reversed (harmless)
+	MatchOf        []int     // for each of their components, our component of largest |φ|
+
+	ScoreResiduals   []float64 // per component, under the best variant
+	ScoreFactors     []float64 // the fitted factor c per component
+	ScoreCorrelation float64   // largest off-diagonal |r| among their scores
+	ScoreMeanShift   float64   // largest |mean(t_a)| / sd(t_a)
+	ScoreBest        int       // the variant whose data best reproduce their scores
+
+	// ComponentVariance is the variance each of their components carries,
+	// from the source named in OrderSource, for the order check.
+	ComponentVariance []float64
+	OrderSource       string
+}
+
+// reviewVariants are the preprocessings tried, centred first.
+var reviewVariants = func() []Variant {
+	var out []Variant
+	for _, c := range []bool{true, false} {
+		for _, s := range []Scaling{ScaleUnit, ScaleNone, ScalePareto, ScaleRange} {
+			out = append(out, Variant{Centered: c, Scaling: s})
+		}
+	}
+	return out
+}()
+
+// CompareReview recomputes the analysis of the table under every plausible
+// preprocessing and measures how another person's tables relate to it. The
+// table must hold exactly the variables their loadings cover, in data order.
+func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []float64, hint string, claimed Scaling) (*Review, error) {
+	r := &Review{Loadings: l, Scores: s, VarianceValues: varianceValues, VarianceHint: hint, ClaimedScale: claimed}
+	_, k := l.V.Dims()
+	theirBasis := orthonormalBasis(l.V)
+	for _, v := range reviewVariants {
+		z, err := variantMatrix(t.X, v.Centered, v.Scaling)
+		if err != nil {
+			return nil, err
+		}
+		d, err := Decompose(z)
+		if err != nil {
+			return nil, err
+		}
+		if d.Components() < k {
+			return nil, &InputError{File: l.File, Reason: "more components in the loadings than the data can have"}
+		}
+		v.z = z
+		v.Eigenvalues = d.Eigenvalues
+		v.Loadings = mat.DenseCopyOf(d.Loadings.Slice(0, d.Vars, 0, k))
+		v.Angles = PrincipalAngles(theirBasis, v.Loadings)
+		v.MaxAngle = v.Angles[len(v.Angles)-1]
+		if s != nil {
+			v.ScoreResidual, _, _ = scoreFit(z, l.V, s.T)
+		}
+		r.Variants = append(r.Variants, v)
+	}
+	// The best variant: smallest largest angle; within 1e-6° prefer the
+	// claimed scaling, then centring (the order of reviewVariants).
+	pick := func(ok func(Variant) bool) int {
+		best := -1
+		for i, v := range r.Variants {
+			if !ok(v) {
+				continue
+			}
+			if best < 0 || v.MaxAngle < r.Variants[best].MaxAngle-1e-6 ||
+				(math.Abs(v.MaxAngle-r.Variants[best].MaxAngle) <= 1e-6 && claimed != "" && v.Scaling == claimed && r.Variants[best].Scaling != claimed) {
+				best = i
+			}
+		}
+		return best
+	}
+	r.Best = pick(func(Variant) bool { return true })
+	r.BestCentred = pick(func(v Variant) bool { return v.Centered })
+	r.BestUncentred = pick(func(v Variant) bool { return !v.Centered })
+	best := r.Variants[r.Best]
+
+	// Their loadings as given.
+	r.Orthonormality = OrthonormalityError(l.V)
+	r.ColumnNorms = make([]float64, k)
+	for a := 0; a < k; a++ {
+		r.ColumnNorms[a] = mat.Norm(l.V.ColView(a), 2)
+	}
+	r.ScaledBySD = scaledBySD(l.V, r.ColumnNorms, best.Eigenvalues)
+
+	// Component by component against the best variant.
+	p, _ := l.V.Dims()
+	ours := best.Loadings
+	r.Congruence = make([]float64, k)
+	r.Flipped = make([]bool, k)
+	r.MatchOf = make([]int, k)
+	theirs := make([]float64, p)
+	col := make([]float64, p)
+	var all mat.Dense
+	if d, err := Decompose(best.z); err == nil {
+		all.CloneFrom(d.Loadings)
+	}
+	_, mAll := all.Dims()
+	for a := 0; a < k; a++ {
+		mat.Col(theirs, a, l.V)
+		mat.Col(col, a, ours)
+		phi := TuckerCongruence(theirs, col)
+		r.Congruence[a], r.Flipped[a] = math.Abs(phi), phi < 0
+		bestPhi := -1.0
+		for b := 0; b < min(mAll, k+2); b++ {
+			mat.Col(col, b, &all)
+			if f := math.Abs(TuckerCongruence(theirs, col)); f > bestPhi {
+				bestPhi, r.MatchOf[a] = f, b
+			}
+		}
+	}
+
+	if s != nil {
+		_, r.ScoreResiduals, r.ScoreFactors = scoreFit(best.z, l.V, s.T)
+		r.ScoreCorrelation = MaxOffDiagonalCorrelation(s.T, nil)
+		_, ks := s.T.Dims()
+		for a := 0; a < ks; a++ {
+			m, sd := meanSD(s.T, a)
+			if sd > 0 {
+				r.ScoreMeanShift = math.Max(r.ScoreMeanShift, math.Abs(m)/sd)
+			}
+		}
+		r.ScoreBest = 0
+		for i, v := range r.Variants {
+			if v.ScoreResidual < r.Variants[r.ScoreBest].ScoreResidual-1e-12 {
+				r.ScoreBest = i
+			}
+		}
+	}
+
+	if varianceValues != nil {
+		r.VarianceKind, r.VariancePercent = DetectVarianceKind(varianceValues, best.Eigenvalues)
+		total := 0.0
+		for _, e := range best.Eigenvalues {
+			total += e
+		}
+		for a, pct := range r.VariancePercent {
+			if a < len(best.Eigenvalues) {
+				r.VarianceDiff = append(r.VarianceDiff, pct-100*best.Eigenvalues[a]/total)
+			}
+		}
+	}
+
+	// The variance each of their components carries, best source first.
+	switch {
+	case r.VariancePercent != nil:
+		r.ComponentVariance, r.OrderSource = r.VariancePercent[:min(k, len(r.VariancePercent))], "their stated variances"
+	default:
+		r.ComponentVariance = make([]float64, k)
+		u := mat.NewVecDense(t.Rows(), nil)
+		for a := 0; a < k; a++ {
+			mat.Col(theirs, a, l.V)
+			dir := mat.NewVecDense(p, theirs)
+			dir.ScaleVec(1/mat.Norm(dir, 2), dir)
+			u.MulVec(best.z, dir)
+			_, sd := meanSD(u, 0)
+			r.ComponentVariance[a] = sd * sd
+		}
+		r.OrderSource = "the variance of the data along each of their loading vectors"
+	}
+	return r, nil
+}
+
+// variantMatrix preprocesses x (n × p) with or without centring and with the
+// given scaling; scales are computed around the mean either way.
+func variantMatrix(x *mat.Dense, centred bool, scaling Scaling) (*mat.Dense, error) {
+	pp, err := FitPreprocessing(x, TransformNone, scaling)
+	if err != nil {
+		return nil, err
+	}
+	if !centred {
+		pp.Means = make([]float64, len(pp.Means))
+	}
+	return pp.Apply(nil, x), nil
+}
+
+// orthonormalBasis returns an orthonormal basis of the columns of v (thin
+// QR), so that loadings given with other column norms compare by subspace.
+func orthonormalBasis(v *mat.Dense) *mat.Dense {
+	p, k := v.Dims()
+	var qr mat.QR
+	qr.Factorize(v)
+	var q mat.Dense
+	qr.QTo(&q)
+	return mat.DenseCopyOf(q.Slice(0, p, 0, k))
+}
+
+// PrincipalAngles returns the principal angles, in degrees and ascending,
+// between the subspaces spanned by the orthonormal columns of a and b: the
+// arccosines of the singular values of aᵀb (Björck & Golub 1973).
+func PrincipalAngles(a, b mat.Matrix) []float64 {
+	var m mat.Dense
+	m.Mul(a.T(), b)
+	var svd mat.SVD
+	svd.Factorize(&m, mat.SVDNone)
+	s := svd.Values(nil) // descending, so the angles come out ascending
+	out := make([]float64, len(s))
+	for i, c := range s {
+		out[i] = math.Acos(math.Min(1, math.Max(-1, c))) * 180 / math.Pi
+	}
+	return out
+}
+
+// scoreFit compares their scores t (n × k_s) with z·v (their loadings
+// applied to the preprocessed data), fitting one factor per component. It
+// returns the largest relative residual, the residuals and the factors.
+func scoreFit(z, v, t *mat.Dense) (float64, []float64, []float64) {
+	n, ks := t.Dims()
+	var u mat.Dense
+	u.Mul(z, v)
+	worst := 0.0
+	res := make([]float64, ks)
+	fac := make([]float64, ks)
+	for a := 0; a < ks; a++ {
+		var tu, uu, tt float64
+		for i := 0; i < n; i++ {
+			ti, ui := t.At(i, a), u.At(i, a)
+			tu += ti * ui
+			uu += ui * ui
+			tt += ti * ti
+		}
+		if uu == 0 || tt == 0 {
+			res[a] = 1
+			continue
+		}
+		c := tu / uu
+		rr := 0.0
+		for i := 0; i < n; i++ {
+			d := t.At(i, a) - c*u.At(i, a)
+			rr += d * d
+		}
+		res[a], fac[a] = math.Sqrt(rr/tt), c
+		worst = math.Max(worst, res[a])
+	}
+	return worst, res, fac
+}
+
+// scaledBySD reports whether loadings with the given column norms are
+// orthogonal eigenvectors multiplied by the component standard deviations
+// (‖v_a‖² ≈ λ_a within 5 %), the "structure" or correlation convention.
+func scaledBySD(v *mat.Dense, norms, eigenvalues []float64) bool {
+	_, k := v.Dims()
+	var g mat.Dense
+	g.Mul(v.T(), v)
+	unitLength := true
+	for a := 0; a < k; a++ {
+		if math.Abs(norms[a]*norms[a]/eigenvalues[a]-1) > 0.05 {
+			return false
+		}
+		if math.Abs(norms[a]-1) > 0.05 {
+			unitLength = false
+		}
+		for b := 0; b < a; b++ {
+			if math.Abs(g.At(a, b)) > 0.02*norms[a]*norms[b] {
+				return false
+			}
+		}
+	}
+	return !unitLength
+}
+
+func meanSD(t mat.Matrix, a int) (mean, sd float64) {
+	n, _ := t.Dims()
+	for i := 0; i < n; i++ {
+		mean += t.At(i, a)
+	}
+	mean /= float64(n)
+	ss := 0.0
+	for i := 0; i < n; i++ {
+		d := t.At(i, a) - mean
+		ss += d * d
+	}
+	return mean, math.Sqrt(ss / float64(n-1))
+}
+
+// Subset returns the table restricted to the given variables (indices into
+// Variables, ascending); rows and provenance are shared.
+func (t *Table) Subset(vars []int) *Table {
+	n := t.Rows()
+	x := mat.NewDense(n, len(vars), nil)
+	names := make([]string, len(vars))
+	for c, j := range vars {
+		names[c] = t.Variables[j]
+		for i := 0; i < n; i++ {
+			x.Set(i, c, t.X.At(i, j))
+		}
+	}
+	out := *t
+	out.X, out.Variables = x, names
+	keep := map[int]bool{}
+	for _, j := range vars {
+		keep[j] = true
+	}
+	out.DroppedVariables = append([]DroppedVariable(nil), t.DroppedVariables...)
+	for j, name := range t.Variables {
+		if !keep[j] {
+			out.DroppedVariables = append(out.DroppedVariables, DroppedVariable{Name: name, Reason: "not in the reviewed loadings"})
+		}
+	}
+	return &out
+}

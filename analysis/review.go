@@ -1,0 +1,386 @@
+package analysis
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Their loadings, scores and variance: the tables another person reports,
+// read tolerantly and matched to the raw data.
+
+// LoadingsLayout says how a loadings table is laid out.
+type LoadingsLayout string
+
+const (
+	LayoutVariableRows    LoadingsLayout = "variables as rows, components as columns"
+	LayoutVariableColumns LoadingsLayout = "variables as columns, components as rows (transposed)"
+)
+
+// TheirLoadings are another person's loadings, rows in the order of the data
+// variables they cover.
+type TheirLoadings struct {
+	File       string
+	Layout     LoadingsLayout
+	Components []string   // their component names, in their order
+	Variables  []int      // data-variable index of each row of V, ascending
+	V          *mat.Dense // len(Variables) × k
+	Decimals   int        // most digits printed after the decimal point
+	Notes      []string
+}
+
+// nonComponentNames are numeric columns of a loadings table that are not
+// components (summaries some programs print beside the loadings).
+var nonComponentNames = []string{"mean", "sd", "std", "stdev", "scale", "communality", "communalities", "uniqueness", "h2", "u2", "com", "complexity", "weight"}
+
+// ParseLoadings reads a loadings table against the data's variables. The
+// layout is found by where the variable names are: in a column (variables as
+// rows) or in the header (variables as columns).
+func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
+	m := newNameMatcher(variables)
+	countMatches := func(cells []string) int {
+		n := 0
+		for _, c := range cells {
+			if _, ok := m.find(c); ok {
+				n++
+			}
+		}
+		return n
+	}
+	// Variables as rows: the text column with the most variable names.
+	bestCol, bestRows := -1, 0
+	for j := range t.Header {
+		if t.NumericColumn(j) {
+			continue
+		}
+		col := make([]string, len(t.Rows))
+		for i, r := range t.Rows {
+			col[i] = r[j]
+		}
+		if c := countMatches(col); c > bestRows {
+			bestCol, bestRows = j, c
+		}
+	}
+	inHeader := countMatches(t.Header)
+	if bestRows == 0 && inHeader == 0 {
+		return nil, &InputError{File: t.Name, Line: 1, Reason: fmt.Sprintf("no variable name in common with the data (the data's variables are %s); check that these are loadings of this data set", listNames(variables, 8))}
+	}
+	l := &TheirLoadings{File: t.Name}
+	type entry struct {
+		variable int
+		values   []float64
+	}
+	var entries []entry
+	var cells []string
+	if bestRows >= inHeader {
+		l.Layout = LayoutVariableRows
+		var compCols []int
+		for j, h := range t.Header {
+			switch {
+			case j == bestCol:
+			case !t.NumericColumn(j):
+				l.Notes = append(l.Notes, fmt.Sprintf("column %q is not numeric and was ignored", h))
+			case slices.Contains(nonComponentNames, strings.ToLower(h)):
+				l.Notes = append(l.Notes, fmt.Sprintf("column %q is a summary, not a component, and was ignored", h))
+			default:
+				compCols = append(compCols, j)
+				l.Components = append(l.Components, h)
+			}
+		}
+		if len(compCols) == 0 {
+			return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric component column beside the variable names"}
+		}
+		seen := map[int]bool{}
+		for i, r := range t.Rows {
+			v, ok := m.find(r[bestCol])
+			if !ok {
+				l.Notes = append(l.Notes, fmt.Sprintf("row %q (line %d) names no data variable and was ignored", r[bestCol], t.Lines[i]))
+				continue
+			}
+			if seen[v] {
+				return nil, &InputError{File: t.Name, Line: t.Lines[i], Column: bestCol + 1, Text: r[bestCol], Reason: "variable listed twice:"}
+			}
+			seen[v] = true
+			e := entry{variable: v}
+			for _, j := range compCols {
+				x, _ := t.Number(r[j])
+				e.values = append(e.values, x)
+				cells = append(cells, r[j])
+			}
+			entries = append(entries, e)
+		}
+	} else {
+		l.Layout = LayoutVariableColumns
+		var varCols []int
+		seen := map[int]bool{}
+		nameCol := -1
+		for j, h := range t.Header {
+			if v, ok := m.find(h); ok && !seen[v] {
+				seen[v] = true
+				varCols = append(varCols, j)
+				continue
+			}
+			if nameCol < 0 && !t.NumericColumn(j) {
+				nameCol = j
+				continue
+			}
+			l.Notes = append(l.Notes, fmt.Sprintf("column %q names no data variable and was ignored", h))
+		}
+		for i, r := range t.Rows {
+			name := fmt.Sprintf("row %d", i+1)
+			if nameCol >= 0 {
+				name = r[nameCol]
+			}
+			if slices.Contains(nonComponentNames, strings.ToLower(name)) {
+				l.Notes = append(l.Notes, fmt.Sprintf("row %q is a summary, not a component, and was ignored", name))
+				continue
+			}
+			for _, j := range varCols {
+				if _, ok := t.Number(r[j]); !ok {
+					return nil, &InputError{File: t.Name, Line: t.Lines[i], Column: j + 1, Name: t.Header[j], Text: r[j], Reason: "cannot read loading as a number:"}
+				}
+			}
+			l.Components = append(l.Components, name)
+		}
+		for _, j := range varCols {
+			v, _ := m.find(t.Header[j])
+			e := entry{variable: v}
+			for i, r := range t.Rows {
+				name := fmt.Sprintf("row %d", i+1)
+				if nameCol >= 0 {
+					name = r[nameCol]
+				}
+				if slices.Contains(nonComponentNames, strings.ToLower(name)) {
+					continue
+				}
+				x, _ := t.Number(r[j])
+				e.values = append(e.values, x)
+				cells = append(cells, r[j])
+			}
+			entries = append(entries, e)
+		}
+	}
+	if len(entries) < 2 {
+		return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("the loadings cover %d data variable; at least 2 are needed", len(entries))}
+	}
+	k := len(l.Components)
+	if k == 0 || k >= len(entries) {
+		return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("%d components for %d variables: a loadings table has fewer components than variables", k, len(entries))}
+	}
+	slices.SortFunc(entries, func(a, b entry) int { return a.variable - b.variable })
+	l.V = mat.NewDense(len(entries), k, nil)
+	for r, e := range entries {
+		l.Variables = append(l.Variables, e.variable)
+		l.V.SetRow(r, e.values)
+	}
+	if missing := len(variables) - len(entries); missing > 0 {
+		l.Notes = append(l.Notes, fmt.Sprintf("the loadings cover %d of the data's %d variables; the review uses those %d", len(entries), len(variables), len(entries)))
+	}
+	l.Decimals = decimals(cells)
+	return l, nil
+}
+
+// TheirScores are another person's scores, one row per data sample.
+type TheirScores struct {
+	File      string
+	T         *mat.Dense // n × k_s, rows in data order
+	Columns   []string
+	MatchedBy string // how rows were matched to samples, for the report
+	Decimals  int
+	Notes     []string
+}
+
+// ParseScores reads a scores table and matches its rows to the data's
+// samples: by id when a column holds the sample ids, otherwise by row order.
+func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
+	n := len(ids)
+	m := newNameMatcher(ids)
+	idCol, best := -1, 0
+	for j := range t.Header {
+		hits := 0
+		for _, r := range t.Rows {
+			if _, ok := m.exact[r[j]]; ok {
+				hits++
+			}
+		}
+		if hits > best && (hits*2 >= len(t.Rows) || !t.NumericColumn(j)) {
+			idCol, best = j, hits
+		}
+	}
+	// A numeric column of 1..n is as likely a component as a row number; only
+	// treat it as ids when the data's ids are not row numbers themselves.
+	if idCol >= 0 && t.NumericColumn(idCol) && best*2 < len(t.Rows) {
+		idCol = -1
+	}
+	s := &TheirScores{File: t.Name}
+	var scoreCols []int
+	for j, h := range t.Header {
+		switch {
+		case j == idCol:
+		case !t.NumericColumn(j):
+			s.Notes = append(s.Notes, fmt.Sprintf("column %q is not numeric and was ignored", h))
+		default:
+			scoreCols = append(scoreCols, j)
+		}
+	}
+	if len(scoreCols) == 0 {
+		return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric score column"}
+	}
+	if len(scoreCols) > k {
+		s.Notes = append(s.Notes, fmt.Sprintf("%d score columns for %d loadings components; the first %d are used", len(scoreCols), k, k))
+		scoreCols = scoreCols[:k]
+	}
+	for _, j := range scoreCols {
+		s.Columns = append(s.Columns, t.Header[j])
+	}
+	s.T = mat.NewDense(n, len(scoreCols), nil)
+	var cells []string
+	if idCol >= 0 {
+		s.MatchedBy = fmt.Sprintf("by sample id (column %q)", t.Header[idCol])
+		filled := make([]bool, n)
+		for i, r := range t.Rows {
+			row, ok := m.exact[r[idCol]]
+			if !ok {
+				s.Notes = append(s.Notes, fmt.Sprintf("sample %q (line %d) is not in the data and was ignored", r[idCol], t.Lines[i]))
+				continue
+			}
+			if filled[row] {
+				return nil, &InputError{File: t.Name, Line: t.Lines[i], Column: idCol + 1, Text: r[idCol], Reason: "sample listed twice:"}
+			}
+			filled[row] = true
+			for c, j := range scoreCols {
+				v, _ := t.Number(r[j])
+				s.T.Set(row, c, v)
+				cells = append(cells, r[j])
+			}
+		}
+		if missing := slices.Index(filled, false); missing >= 0 {
+			count := 0
+			for _, f := range filled {
+				if !f {
+					count++
+				}
+			}
+			return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("scores are missing for %d of the %d samples (the first is %q)", count, n, ids[missing])}
+		}
+	} else {
+		if len(t.Rows) != n {
+			return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("%d score rows for %d samples in the data, and no column of sample ids to match them by", len(t.Rows), n)}
+		}
+		s.MatchedBy = "by row order (no column holds the sample ids)"
+		for i, r := range t.Rows {
+			for c, j := range scoreCols {
+				v, _ := t.Number(r[j])
+				s.T.Set(i, c, v)
+				cells = append(cells, r[j])
+			}
+		}
+	}
+	s.Decimals = decimals(cells)
+	return s, nil
+}
+
+// VarianceKind is how a variance table states the size of each component.
+type VarianceKind string
+
+const (
+	VarianceEigenvalues VarianceKind = "eigenvalues"
+	VarianceSD          VarianceKind = "standard deviations"
+	VarianceProportions VarianceKind = "proportions of the total variance"
+	VariancePercentages VarianceKind = "percentages of the total variance"
+)
+
+// ParseVarianceValues reads the numbers of a variance table: the numeric
+// column (preferring one whose header names what it holds) or, for a table
+// of one row, that row. It returns the values and the header hint.
+func ParseVarianceValues(t *LooseTable) ([]float64, string, error) {
+	var candidates [][]float64
+	var hints []string
+	for j, h := range t.Header {
+		if !t.NumericColumn(j) {
+			continue
+		}
+		var col []float64
+		for _, r := range t.Rows {
+			v, _ := t.Number(r[j])
+			col = append(col, v)
+		}
+		candidates = append(candidates, col)
+		hints = append(hints, strings.ToLower(h))
+	}
+	if len(t.Rows) == 1 && len(candidates) > 1 {
+		// One row of values, components in the header.
+		return candidatesRow(candidates), "", nil
+	}
+	if len(candidates) == 0 {
+		return nil, "", &InputError{File: t.Name, Line: 1, Reason: "no numeric column of variances"}
+	}
+	if len(candidates) > 1 {
+		for _, pref := range []string{"percent", "%", "proportion", "prop", "eigen", "variance", "sd", "std"} {
+			for c, h := range hints {
+				if strings.Contains(h, pref) && !strings.Contains(h, "cum") {
+					return candidates[c], h, nil
+				}
+			}
+		}
+	}
+	return candidates[0], hints[0], nil
+}
+
+func candidatesRow(c [][]float64) []float64 {
+	out := make([]float64, len(c))
+	for i, col := range c {
+		out[i] = col[0]
+	}
+	return out
+}
+
+// DetectVarianceKind decides whether values are eigenvalues, standard
+// deviations, proportions or percentages, by which reading lies closest (in
+// log ratio) to the recomputed eigenvalues. It returns the kind and the
+// values as percentages of the total variance.
+func DetectVarianceKind(values, eigenvalues []float64) (VarianceKind, []float64) {
+	total := 0.0
+	for _, l := range eigenvalues {
+		total += l
+	}
+	kinds := []VarianceKind{VarianceEigenvalues, VarianceSD, VarianceProportions, VariancePercentages}
+	asPercent := func(kind VarianceKind, v float64) float64 {
+		switch kind {
+		case VarianceEigenvalues:
+			return 100 * v / total
+		case VarianceSD:
+			return 100 * v * v / total
+		case VarianceProportions:
+			return 100 * v
+		}
+		return v
+	}
+	best, bestErr := kinds[0], math.Inf(1)
+	for _, kind := range kinds {
+		worst := 0.0
+		for a, v := range values {
+			if a >= len(eigenvalues) {
+				break
+			}
+			ours := 100 * eigenvalues[a] / total
+			theirs := asPercent(kind, v)
+			if theirs <= 0 || ours <= 0 {
+				worst = math.Inf(1)
+				break
+			}
+			worst = math.Max(worst, math.Abs(math.Log(theirs/ours)))
+		}
+		if worst < bestErr {
+			best, bestErr = kind, worst
+		}
+	}
+	pct := make([]float64, len(values))
+	for a, v := range values {
+		pct[a] = asPercent(best, v)
+	}
+	return best, pct
+}

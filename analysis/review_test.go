@@ -1,0 +1,214 @@
+package analysis_test
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	. "pcqc/analysis"
+	"pcqc/internal/fixture"
+)
+
+func computeOther(t *testing.T, tab *Table, centred bool, scaling Scaling, k int) fixture.Other {
+	t.Helper()
+	o, err := fixture.Compute(tab, centred, scaling, k)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return o
+}
+
+func loose(t *testing.T, name, text string) *LooseTable {
+	t.Helper()
+	lt, err := ReadLooseTableFrom(name, strings.NewReader(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return lt
+}
+
+func usarrests(t *testing.T) *Table {
+	t.Helper()
+	tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", "usarrests.csv"), ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return tab
+}
+
+func review(t *testing.T, tab *Table, loadings, scores, variance string, claimed Scaling) *Review {
+	t.Helper()
+	l, err := ParseLoadings(loose(t, "loadings.csv", loadings), tab.Variables)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sub := tab.Subset(l.Variables)
+	var s *TheirScores
+	if scores != "" {
+		_, k := l.V.Dims()
+		if s, err = ParseScores(loose(t, "scores.csv", scores), sub.IDs, k); err != nil {
+			t.Fatal(err)
+		}
+	}
+	var vals []float64
+	var hint string
+	if variance != "" {
+		if vals, hint, err = ParseVarianceValues(loose(t, "variance.csv", variance)); err != nil {
+			t.Fatal(err)
+		}
+	}
+	r, err := CompareReview(sub, l, s, vals, hint, claimed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// Acceptance 1: correct loadings and scores from each scaling variant, with
+// sign flips and renamed columns, are matched to the right variant.
+func TestReviewFindsTheVariant(t *testing.T) {
+	tab := usarrests(t)
+	for _, sc := range []Scaling{ScaleUnit, ScaleNone, ScalePareto, ScaleRange} {
+		o := computeOther(t, tab, true, sc, 2)
+		o.Flip(1)
+		r := review(t, tab, o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("Comp.%d", a+1) }),
+			o.ScoresCSV(true, fixture.Identity(50)), o.PercentCSV(2, 0), "")
+		best := r.Variants[r.Best]
+		if !best.Centered || best.Scaling != sc {
+			t.Errorf("%s: best variant %s", sc, best.Name())
+		}
+		if best.MaxAngle > 1e-3 {
+			t.Errorf("%s: largest angle %.2g°", sc, best.MaxAngle)
+		}
+		if !r.Flipped[1] || r.Flipped[0] || r.Congruence[1] < 0.9999 {
+			t.Errorf("%s: flips %v congruence %v", sc, r.Flipped, r.Congruence)
+		}
+		if m := maxAbs(r.ScoreResiduals); m > 1e-4 {
+			t.Errorf("%s: score residual %.2g", sc, m)
+		}
+		if r.VarianceKind != VariancePercentages || maxAbs(r.VarianceDiff) > 1e-3 {
+			t.Errorf("%s: variance %s %v", sc, r.VarianceKind, r.VarianceDiff)
+		}
+		// The other variants really differ: the nearest is degrees away.
+		for i, v := range r.Variants {
+			if i != r.Best && v.MaxAngle < 0.5 {
+				t.Errorf("%s: variant %s also matches (%.3g°)", sc, v.Name(), v.MaxAngle)
+			}
+		}
+	}
+}
+
+func maxAbs(x []float64) float64 {
+	m := 0.0
+	for _, v := range x {
+		m = math.Max(m, math.Abs(v))
+	}
+	return m
+}
+
+// Acceptance 2: loadings and scores of uncentred data are recognised.
+func TestReviewRecognisesUncentredData(t *testing.T) {
+	tab := usarrests(t)
+	o := computeOther(t, tab, false, ScaleUnit, 2)
+	r := review(t, tab, o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), o.ScoresCSV(true, fixture.Identity(50)), "", "")
+	if r.Variants[r.Best].Centered {
+		t.Errorf("uncentred loadings matched %s", r.Variants[r.Best].Name())
+	}
+	if u, c := r.Variants[r.BestUncentred].MaxAngle, r.Variants[r.BestCentred].MaxAngle; u > 1e-3 || c < 5 {
+		t.Errorf("uncentred %.3g°, best centred %.3g°", u, c)
+	}
+	if r.Variants[r.ScoreBest].Centered || r.ScoreMeanShift < 1 {
+		t.Errorf("scores: best variant %s, mean shift %.3g", r.Variants[r.ScoreBest].Name(), r.ScoreMeanShift)
+	}
+}
+
+// Acceptance 3: a transposed loadings file, a semicolon file with decimal
+// commas, and scores in shuffled order with ids are all read correctly.
+func TestReviewReadsTolerantly(t *testing.T) {
+	tab := usarrests(t)
+	o := computeOther(t, tab, true, ScaleUnit, 3)
+	r := review(t, tab, o.TransposedCSV(), "", "", "")
+	if r.Loadings.Layout != LayoutVariableColumns || r.Variants[r.Best].MaxAngle > 1e-3 {
+		t.Errorf("transposed: %s, %.3g°", r.Loadings.Layout, r.Variants[r.Best].MaxAngle)
+	}
+	semicolon := strings.ReplaceAll(o.LoadingsCSV(";", func(a int) string { return fmt.Sprintf("Factor %d", a+1) }), ".", ",")
+	r = review(t, tab, semicolon, "", "", "")
+	if r.Loadings.Layout != LayoutVariableRows || r.Variants[r.Best].MaxAngle > 1e-3 || r.Loadings.Components[2] != "Factor 3" {
+		t.Errorf("semicolon: %s %v %.3g°", r.Loadings.Layout, r.Loadings.Components, r.Variants[r.Best].MaxAngle)
+	}
+	order := rand.New(rand.NewPCG(1, 2)).Perm(50)
+	r = review(t, tab, o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), o.ScoresCSV(true, order), "", "")
+	if !strings.Contains(r.Scores.MatchedBy, "sample id") || maxAbs(r.ScoreResiduals) > 1e-4 {
+		t.Errorf("shuffled scores with ids: %s, residual %.3g", r.Scores.MatchedBy, maxAbs(r.ScoreResiduals))
+	}
+}
+
+// Acceptance 4 (review side): scores in another row order without ids do
+// not follow from the loadings.
+func TestReviewDetectsScoresOutOfOrder(t *testing.T) {
+	tab := usarrests(t)
+	o := computeOther(t, tab, true, ScaleUnit, 2)
+	order := rand.New(rand.NewPCG(3, 4)).Perm(50)
+	r := review(t, tab, o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), o.ScoresCSV(false, order), "", "")
+	if !strings.Contains(r.Scores.MatchedBy, "row order") || maxAbs(r.ScoreResiduals) < 0.5 {
+		t.Errorf("shuffled scores without ids: %s, residual %.3g", r.Scores.MatchedBy, maxAbs(r.ScoreResiduals))
+	}
+}
+
+// Acceptance 5 (review side): percentages 3 points off are read as
+// percentages and measured 3 points off.
+func TestReviewVarianceOffByThreePoints(t *testing.T) {
+	tab := usarrests(t)
+	o := computeOther(t, tab, true, ScaleUnit, 2)
+	r := review(t, tab, o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), "", o.PercentCSV(2, 3), "")
+	if r.VarianceKind != VariancePercentages || math.Abs(r.VarianceDiff[1]-3) > 1e-3 || math.Abs(r.VarianceDiff[0]) > 1e-3 {
+		t.Errorf("%s %v", r.VarianceKind, r.VarianceDiff)
+	}
+	// The same shares stated as eigenvalues, standard deviations and
+	// proportions are recognised as such.
+	for _, c := range []struct {
+		kind VarianceKind
+		f    func(e, total float64) float64
+	}{
+		{VarianceEigenvalues, func(e, _ float64) float64 { return e }},
+		{VarianceSD, func(e, _ float64) float64 { return math.Sqrt(e) }},
+		{VarianceProportions, func(e, total float64) float64 { return e / total }},
+	} {
+		total := 0.0
+		for _, e := range o.Eig {
+			total += e
+		}
+		var b strings.Builder
+		b.WriteString("value\n")
+		for a := 0; a < 2; a++ {
+			b.WriteString(fmt.Sprintf("%.6f\n", c.f(o.Eig[a], total)))
+		}
+		r := review(t, tab, o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), "", b.String(), "")
+		if r.VarianceKind != c.kind || maxAbs(r.VarianceDiff) > 1e-3 {
+			t.Errorf("%s read as %s, %v", c.kind, r.VarianceKind, r.VarianceDiff)
+		}
+	}
+}
+
+// Acceptance 6 (review side): tables that do not fit the data are errors
+// that say why.
+func TestReviewRejectsMismatchedTables(t *testing.T) {
+	tab := usarrests(t)
+	o := computeOther(t, tab, true, ScaleUnit, 2)
+	_, err := ParseLoadings(loose(t, "l.csv", "var,PC1,PC2\nfoo,0.1,0.2\nbar,0.3,0.4\n"), tab.Variables)
+	var ie *InputError
+	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "no variable name in common") {
+		t.Errorf("no names in common: %v", err)
+	}
+	short := strings.Join(strings.Split(o.ScoresCSV(false, fixture.Identity(50)), "\n")[:40], "\n") + "\n"
+	l, _ := ParseLoadings(loose(t, "l.csv", o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) })), tab.Variables)
+	_, err = ParseScores(loose(t, "s.csv", short), tab.IDs, 2)
+	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "39 score rows for 50 samples") {
+		t.Errorf("wrong number of rows: %v", err)
+	}
+	_ = l
+}

@@ -1,0 +1,199 @@
+package checks
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"pcqc/analysis"
+	"pcqc/demo"
+	"pcqc/internal/fixture"
+)
+
+func usarrestsTable(t *testing.T) *analysis.Table {
+	t.Helper()
+	tab, err := analysis.ReadTable(filepath.Join("..", "testdata", "datasets", "usarrests.csv"), analysis.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return tab
+}
+
+func demoTable(t *testing.T) *analysis.Table {
+	t.Helper()
+	tab, err := analysis.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), analysis.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return tab
+}
+
+func looseTable(t *testing.T, text string) *analysis.LooseTable {
+	t.Helper()
+	lt, err := analysis.ReadLooseTableFrom("their.csv", strings.NewReader(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return lt
+}
+
+// reviewChecks runs the review of their tables against tab and returns the
+// review checks' results by id.
+func reviewChecks(t *testing.T, tab *analysis.Table, loadings, scores, variance string, claimed analysis.Scaling) map[string]Result {
+	t.Helper()
+	l, err := analysis.ParseLoadings(looseTable(t, loadings), tab.Variables)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sub := tab.Subset(l.Variables)
+	_, k := l.V.Dims()
+	var s *analysis.TheirScores
+	if scores != "" {
+		if s, err = analysis.ParseScores(looseTable(t, scores), sub.IDs, k); err != nil {
+			t.Fatal(err)
+		}
+	}
+	var vals []float64
+	var hint string
+	if variance != "" {
+		if vals, hint, err = analysis.ParseVarianceValues(looseTable(t, variance)); err != nil {
+			t.Fatal(err)
+		}
+	}
+	rv, err := analysis.CompareReview(sub, l, s, vals, hint, claimed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := analysis.Analyze(sub, analysis.Options{Scaling: rv.Variants[rv.Best].Scaling, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: k}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := map[string]Result{}
+	for _, r := range RunAll(Input{Run: res, Review: rv}) {
+		if strings.HasPrefix(r.ID, "review-") {
+			out[r.ID] = r
+		}
+	}
+	if len(out) != 8 {
+		t.Fatalf("%d review checks ran", len(out))
+	}
+	return out
+}
+
+func other(t *testing.T, tab *analysis.Table, centred bool, sc analysis.Scaling, k int) fixture.Other {
+	t.Helper()
+	o, err := fixture.Compute(tab, centred, sc, k)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return o
+}
+
+func dimName(a int) string { return fmt.Sprintf("Dim.%d", a+1) }
+
+// Acceptance 1: correct loadings and scores from each scaling variant, with
+// arbitrary sign flips and renamed columns, pass every review check and the
+// right variant is named.
+func TestReviewChecksPassOnCorrectTables(t *testing.T) {
+	for _, tab := range []*analysis.Table{usarrestsTable(t), demoTable(t)} {
+		for _, sc := range analysis.Scalings {
+			o := other(t, tab, true, sc, 3)
+			o.Flip(0)
+			o.Flip(2)
+			rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), o.ScoresCSV(true, fixture.Identity(len(o.IDs))), o.PercentCSV(3, 0), sc)
+			for id, r := range rs {
+				if r.Status != Pass {
+					t.Errorf("%s %s: %s is %s: %s", tab.File, sc, id, r.Status, r.Message)
+				}
+			}
+			if got := rs["review-scaling"].Value; got != analysis.ScalingName(sc) {
+				t.Errorf("%s %s: scaling found %v", tab.File, sc, got)
+			}
+			if !strings.Contains(rs["review-subspace"].Message, "sign reversed") {
+				t.Errorf("%s %s: sign flips not reported: %s", tab.File, sc, rs["review-subspace"].Message)
+			}
+		}
+	}
+}
+
+// Acceptance 2: loadings and scores from uncentred data fail
+// review-centering with the plain message, on USArrests and the demo.
+func TestReviewCenteringFailsOnUncentredData(t *testing.T) {
+	for _, tab := range []*analysis.Table{usarrestsTable(t), demoTable(t)} {
+		o := other(t, tab, false, analysis.ScaleUnit, 2)
+		rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), o.ScoresCSV(true, fixture.Identity(len(o.IDs))), "", analysis.ScaleUnit)
+		r := rs["review-centering"]
+		if r.Status != Fail || !strings.Contains(r.Message, "not mean-centred before the decomposition") || !strings.Contains(r.Message, "chases") && !strings.Contains(r.Message, "towards the mean") {
+			t.Errorf("%s: %s %s", tab.File, r.Status, r.Message)
+		}
+		// Loadings alone are enough to tell.
+		rs = reviewChecks(t, tab, o.LoadingsCSV(",", dimName), "", "", "")
+		if rs["review-centering"].Status != Fail {
+			t.Errorf("%s, loadings only: %s", tab.File, rs["review-centering"].Status)
+		}
+	}
+}
+
+// Acceptance 4: two components swapped warn review-order; scores from a
+// different row order without ids fail review-scores.
+func TestReviewOrderAndScoreRows(t *testing.T) {
+	tab := usarrestsTable(t)
+	o := other(t, tab, true, analysis.ScaleUnit, 3)
+	o.Swap(0, 1)
+	rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), "", "", "")
+	if r := rs["review-order"]; r.Status != Warn || !strings.Contains(r.Message, "Dim.2 carries more variance than Dim.1") {
+		t.Errorf("swapped: %s %s", r.Status, r.Message)
+	}
+	if rs["review-subspace"].Status != Pass {
+		t.Errorf("swapping keeps the subspace: %s", rs["review-subspace"].Message)
+	}
+	o = other(t, tab, true, analysis.ScaleUnit, 2)
+	order := rand.New(rand.NewPCG(5, 6)).Perm(50)
+	rs = reviewChecks(t, tab, o.LoadingsCSV(",", dimName), o.ScoresCSV(false, order), "", "")
+	if r := rs["review-scores"]; r.Status != Fail || !strings.Contains(r.Message, "row order") {
+		t.Errorf("shuffled without ids: %s %s", r.Status, r.Message)
+	}
+}
+
+// Acceptance 5: percentages off by 3 points fail review-variance.
+func TestReviewVarianceFails(t *testing.T) {
+	tab := usarrestsTable(t)
+	o := other(t, tab, true, analysis.ScaleUnit, 2)
+	rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), "", o.PercentCSV(2, 3), "")
+	if r := rs["review-variance"]; r.Status != Fail || !strings.Contains(r.Message, "3.0 percentage points") || !strings.Contains(r.Message, "percentages") {
+		t.Errorf("%s %s", r.Status, r.Message)
+	}
+	rs = reviewChecks(t, tab, o.LoadingsCSV(",", dimName), "", o.PercentCSV(2, 1), "")
+	if r := rs["review-variance"]; r.Status != Warn {
+		t.Errorf("1 point off: %s", r.Status)
+	}
+}
+
+func TestReviewScalingAndLoadingConventions(t *testing.T) {
+	tab := usarrestsTable(t)
+	o := other(t, tab, true, analysis.ScaleNone, 2)
+	rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), "", "", analysis.ScaleUnit)
+	if r := rs["review-scaling"]; r.Status != Warn || !strings.Contains(r.Message, "not the stated unit variance") {
+		t.Errorf("claimed unit, used none: %s %s", r.Status, r.Message)
+	}
+	// Loadings scaled by the components' standard deviations: orthogonal,
+	// not unit length, a convention to state.
+	o = other(t, tab, true, analysis.ScaleUnit, 2)
+	for a := 0; a < 2; a++ {
+		s := math.Sqrt(o.Eig[a])
+		for _, row := range o.Loadings {
+			row[a] *= s
+		}
+	}
+	rs = reviewChecks(t, tab, o.LoadingsCSV(",", dimName), "", "", "")
+	if r := rs["review-orthonormality"]; r.Status != Warn || !strings.Contains(r.Message, "standard deviations") {
+		t.Errorf("sd-scaled loadings: %s %s", r.Status, r.Message)
+	}
+	if rs["review-subspace"].Status != Pass {
+		t.Errorf("scaled loadings span the same subspace: %s", rs["review-subspace"].Message)
+	}
+}

@@ -1,0 +1,177 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"pcqc/analysis"
+	"pcqc/internal/fixture"
+)
+
+func writeFile(t *testing.T, dir, name, content string) string {
+	t.Helper()
+	path := filepath.Join(dir, name)
+	if err := os.WriteFile(path, []byte(content), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+var usarrestsPath = filepath.Join("..", "..", "testdata", "datasets", "usarrests.csv")
+
+func usarrestsOther(t *testing.T, centred bool, sc analysis.Scaling, k int) fixture.Other {
+	t.Helper()
+	tab, err := analysis.ReadTable(usarrestsPath, analysis.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := fixture.Compute(tab, centred, sc, k)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return o
+}
+
+type reviewSummary struct {
+	Verdict string `json:"verdict"`
+	Checks  []struct {
+		ID, Status, Message string
+	} `json:"checks"`
+	Review struct {
+		BestVariant struct {
+			Centered bool
+			Scale    string
+		} `json:"best_variant"`
+		Variants        []map[string]any `json:"variants"`
+		Findings        []string         `json:"findings"`
+		LoadingsLayout  string           `json:"loadings_layout"`
+		ScoresMatchedBy string           `json:"scores_matched_by"`
+		VarianceKind    string           `json:"variance_kind"`
+	} `json:"review"`
+}
+
+func readSummary(t *testing.T, dir string) reviewSummary {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "summary.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var s reviewSummary
+	if err := json.Unmarshal(b, &s); err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func (s reviewSummary) status(id string) string {
+	for _, c := range s.Checks {
+		if c.ID == id {
+			return c.Status
+		}
+	}
+	return "absent"
+}
+
+// Acceptance 3: a transposed loadings file, a semicolon file and scores in
+// shuffled order with ids are read correctly, and the layout found is
+// stated; acceptance 1 end to end: every review check passes.
+func TestReviewCommandReadsTheirTables(t *testing.T) {
+	dir := t.TempDir()
+	o := usarrestsOther(t, true, analysis.ScaleUnit, 2)
+	o.Flip(1)
+	order := rand.New(rand.NewPCG(7, 8)).Perm(50)
+	cases := []struct {
+		name, loadings, layout string
+	}{
+		{"rows", o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), "variables as rows"},
+		{"transposed", o.TransposedCSV(), "transposed"},
+		{"semicolon", strings.ReplaceAll(o.LoadingsCSV(";", func(a int) string { return fmt.Sprintf("Komponente %d", a+1) }), ".", ","), "variables as rows"},
+	}
+	scores := writeFile(t, dir, "scores.csv", o.ScoresCSV(true, order))
+	variance := writeFile(t, dir, "variance.csv", o.PercentCSV(2, 0))
+	for _, c := range cases {
+		loadings := writeFile(t, dir, c.name+".csv", c.loadings)
+		out := filepath.Join(dir, "out-"+c.name)
+		status, _, stderr := runPCQC(t, "review", usarrestsPath, "--loadings", loadings, "--scores", scores, "--variance", variance,
+			"--claimed-scale", "unit", "--out", out, "--bootstrap", "50", "--permutations", "20", "--format", "md")
+		if status != exitOK && status != exitChecks {
+			t.Fatalf("%s: status %d %s", c.name, status, stderr)
+		}
+		s := readSummary(t, out)
+		if !strings.Contains(s.Review.LoadingsLayout, c.layout) || !strings.Contains(s.Review.ScoresMatchedBy, "sample id") || s.Review.VarianceKind != "percentages of the total variance" {
+			t.Errorf("%s: layout %q, scores %q, variance %q", c.name, s.Review.LoadingsLayout, s.Review.ScoresMatchedBy, s.Review.VarianceKind)
+		}
+		if !s.Review.BestVariant.Centered || s.Review.BestVariant.Scale != "unit" || len(s.Review.Variants) != 8 {
+			t.Errorf("%s: best variant %+v, %d variants", c.name, s.Review.BestVariant, len(s.Review.Variants))
+		}
+		for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+			if st := s.status(id); st != "pass" {
+				t.Errorf("%s: %s is %s", c.name, id, st)
+			}
+		}
+		md, _ := os.ReadFile(filepath.Join(out, "report.md"))
+		if !strings.HasPrefix(string(md), "# Review of a PCA of usarrests.csv") || !strings.Contains(string(md), "## Review findings") ||
+			strings.Index(string(md), "## Review findings") > strings.Index(string(md), "## Verdict") {
+			t.Errorf("%s: the report does not open with the review findings", c.name)
+		}
+		if _, err := os.Stat(filepath.Join(out, "review-variants.csv")); err != nil {
+			t.Errorf("%s: review-variants.csv: %v", c.name, err)
+		}
+	}
+}
+
+// Acceptance 2 end to end: uncentred tables fail review-centering, and the
+// exit status says so.
+func TestReviewCommandFailsUncentred(t *testing.T) {
+	dir := t.TempDir()
+	o := usarrestsOther(t, false, analysis.ScaleUnit, 2)
+	loadings := writeFile(t, dir, "l.csv", o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }))
+	out := filepath.Join(dir, "out")
+	status, _, stderr := runPCQC(t, "review", usarrestsPath, "--loadings", loadings, "--out", out, "--bootstrap", "0", "--components", "2", "--format", "none")
+	if status != exitChecks {
+		t.Fatalf("status %d %s", status, stderr)
+	}
+	s := readSummary(t, out)
+	if s.status("review-centering") != "fail" || s.Verdict != "fail" || s.Review.BestVariant.Centered {
+		t.Errorf("centering %s, verdict %s, best %+v", s.status("review-centering"), s.Verdict, s.Review.BestVariant)
+	}
+	if len(s.Review.Findings) == 0 || !strings.Contains(s.Review.Findings[0], "not mean-centred") {
+		t.Errorf("findings %v", s.Review.Findings)
+	}
+}
+
+// Acceptance 6: unreadable or mismatched tables give exit status 2 and one
+// clear line, and no output folder.
+func TestReviewCommandRejectsMismatchedTables(t *testing.T) {
+	dir := t.TempDir()
+	o := usarrestsOther(t, true, analysis.ScaleUnit, 2)
+	good := writeFile(t, dir, "good.csv", o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }))
+	short := strings.Join(strings.Split(o.ScoresCSV(false, fixture.Identity(50)), "\n")[:31], "\n") + "\n"
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--loadings", writeFile(t, dir, "names.csv", "name,PC1,PC2\nalpha,0.5,0.1\nbeta,0.5,-0.2\n")}, "no variable name in common"},
+		{[]string{"--loadings", good, "--scores", writeFile(t, dir, "short.csv", short)}, "30 score rows for 50 samples"},
+		{[]string{"--loadings", writeFile(t, dir, "empty.csv", "")}, "empty file"},
+		{[]string{"--loadings", writeFile(t, dir, "ragged.csv", "v,PC1\nMurder,0.5\nAssault,0.4,0.3\n")}, "ragged row"},
+		{[]string{"--loadings", filepath.Join(dir, "absent.csv")}, "cannot open"},
+		{[]string{}, "needs --loadings"},
+		{[]string{"--loadings", good, "--claimed-scale", "zscore"}, "invalid --claimed-scale"},
+	}
+	for _, c := range cases {
+		out := filepath.Join(dir, "out")
+		status, _, stderr := runPCQC(t, append([]string{"review", usarrestsPath, "--out", out}, c.args...)...)
+		if status != exitUsage || !strings.Contains(stderr, c.want) || strings.Count(stderr, "\n") != 1 {
+			t.Errorf("%v: status %d, stderr %q (want %q)", c.args, status, stderr, c.want)
+		}
+		if _, err := os.Stat(out); !os.IsNotExist(err) {
+			t.Errorf("%v: output folder created", c.args)
+		}
+	}
+}
