@@ -1,9 +1,10 @@
 package analysis
 
 import (
+	"cmp"
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -101,9 +102,9 @@ func Skewness(x []float64) float64 {
 }
 
 // MeasureAdequacy computes the adequacy statistics of the transformed table
-// x (n × p). z is the preprocessed matrix (any scaling; the correlation
-// matrix does not depend on it).
-func MeasureAdequacy(x, z *mat.Dense) Adequacy {
+// x (n × p) that need the raw values; Bartlett's test and KMO, which need
+// only the correlations, come from the preprocessed matrix (correlationTests).
+func MeasureAdequacy(x *mat.Dense) Adequacy {
 	n, p := x.Dims()
 	a := Adequacy{
 		Variance: make([]float64, p),
@@ -126,61 +127,116 @@ func MeasureAdequacy(x, z *mat.Dense) Adequacy {
 			}
 		}
 		a.Positive[j] = pos
-		if m != 0 && sd/math.Abs(m) < NearConstantCV || modeShare(col) >= NearConstantModeShare {
+		if m != 0 && sd/math.Abs(m) < NearConstantCV || majorityShare(col) >= NearConstantModeShare {
 			a.NearConstant = append(a.NearConstant, j)
 		}
 	}
 	a.DuplicateRows = duplicateRows(x)
-	a.Bartlett, a.KMO = correlationTests(z)
 	return a
 }
 
-// modeShare returns the share of the most frequent value in x.
-func modeShare(x []float64) float64 {
-	s := append([]float64(nil), x...)
-	sort.Float64s(s)
-	best, run := 1, 1
-	for i := 1; i < len(s); i++ {
-		if s[i] == s[i-1] { // identical values as read, not a tolerance question
-			run++
-			best = max(best, run)
-		} else {
-			run = 1
+// majorityShare returns the share of x held by its majority value (one
+// occurring in more than half of the cells), or 0 when there is none. It
+// finds the candidate by the Boyer–Moore majority vote (Boyer & Moore
+// 1991), in one pass and no memory, and counts it in a second. The
+// near-constant rule needs 80 %, so only a majority can qualify.
+func majorityShare(x []float64) float64 {
+	var cand float64
+	votes := 0
+	for _, v := range x {
+		switch {
+		case votes == 0:
+			cand, votes = v, 1
+		case v == cand: // identical values as read, not a tolerance question
+			votes++
+		default:
+			votes--
 		}
 	}
-	return float64(best) / float64(len(s))
+	count := 0
+	for _, v := range x {
+		if v == cand {
+			count++
+		}
+	}
+	if 2*count <= len(x) {
+		return 0
+	}
+	return float64(count) / float64(len(x))
 }
 
-// duplicateRows groups rows with identical values (bit for bit, as read).
+// duplicateRows groups rows with identical values (bit for bit, as read),
+// groups in order of first occurrence. Rows are sorted by a 64-bit hash of
+// their values and only rows with equal hashes are compared, so memory is
+// 16 bytes a row whatever p is.
 func duplicateRows(x *mat.Dense) [][]int {
-	n, p := x.Dims()
-	groups := map[string][]int{}
-	var order []string
-	key := make([]byte, 8*p)
+	n, _ := x.Dims()
+	type hashed struct {
+		h uint64
+		i int32
+	}
+	hs := make([]hashed, n)
 	for i := 0; i < n; i++ {
-		row := x.RawRowView(i)
-		for j, v := range row {
-			if v == 0 {
-				v = 0 // fold −0 into +0
-			}
-			b := math.Float64bits(v)
-			for s := 0; s < 8; s++ {
-				key[8*j+s] = byte(b >> (8 * s))
-			}
-		}
-		k := string(key)
-		if _, ok := groups[k]; !ok {
-			order = append(order, k)
-		}
-		groups[k] = append(groups[k], i)
+		hs[i] = hashed{rowHash(x.RawRowView(i)), int32(i)}
 	}
+	slices.SortFunc(hs, func(a, b hashed) int {
+		if c := cmp.Compare(a.h, b.h); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.i, b.i)
+	})
 	var out [][]int
-	for _, k := range order {
-		if g := groups[k]; len(g) > 1 {
-			out = append(out, g)
+	for s := 0; s < n; {
+		e := s + 1
+		for e < n && hs[e].h == hs[s].h {
+			e++
+		}
+		// Within a run of equal hashes, group rows that are truly equal.
+		used := make([]bool, e-s)
+		for a := s; a < e; a++ {
+			if used[a-s] {
+				continue
+			}
+			group := []int{int(hs[a].i)}
+			for b := a + 1; b < e; b++ {
+				if !used[b-s] && sameRow(x.RawRowView(int(hs[a].i)), x.RawRowView(int(hs[b].i))) {
+					used[b-s] = true
+					group = append(group, int(hs[b].i))
+				}
+			}
+			if len(group) > 1 {
+				out = append(out, group)
+			}
+		}
+		s = e
+	}
+	slices.SortFunc(out, func(a, b []int) int { return cmp.Compare(a[0], b[0]) })
+	return out
+}
+
+// rowHash is FNV-1a over the bits of the values (−0 folded into +0).
+func rowHash(row []float64) uint64 {
+	h := uint64(14695981039346656037)
+	for _, v := range row {
+		if v == 0 {
+			v = 0
+		}
+		b := math.Float64bits(v)
+		for s := 0; s < 64; s += 8 {
+			h ^= (b >> s) & 0xff
+			h *= 1099511628211
 		}
 	}
-	return out
+	return h
+}
+
+func sameRow(a, b []float64) bool {
+	for j := range a {
+		if a[j] != b[j] && !(a[j] == 0 && b[j] == 0) {
+			return false
+		}
+	}
+	return true
 }
 
 // correlationTests computes Bartlett's test of sphericity and the KMO

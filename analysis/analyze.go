@@ -15,6 +15,9 @@ type Options struct {
 	Seed         uint64 // for every random stream
 	Threads      int    // ≤ 0: all cores
 	Progress     Progress
+	// InPlace preprocesses the table's matrix in place, saving one copy of
+	// the data: afterwards Table.X holds the preprocessed matrix (Result.Z).
+	InPlace bool
 }
 
 // Defaults for Options.
@@ -59,7 +62,14 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	z := pp.Apply(nil, t.X)
+	adequacy := MeasureAdequacy(t.X)
+	var z *mat.Dense
+	if opt.InPlace {
+		z = pp.Apply(t.X, t.X)
+	} else {
+		z = pp.Apply(nil, t.X)
+	}
+	adequacy.Bartlett, adequacy.KMO = correlationTests(z)
 	d, err := Decompose(z)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", t.File, err)
@@ -89,7 +99,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	v := r.RetainedLoadings()
 	r.Properties = MeasureProperties(z, v, r.Scores, d.Eigenvalues)
 	r.Samples = ComputeSampleStats(z, v, r.Scores, d.Eigenvalues)
-	r.Adequacy = MeasureAdequacy(t.X, z)
+	r.Adequacy = adequacy
 	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
 	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
 	return r, nil

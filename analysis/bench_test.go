@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"os"
 	"testing"
 
 	"pcqc/internal/synth"
@@ -44,3 +45,22 @@ func benchmarkAudit(b *testing.B, n, p int) {
 
 func BenchmarkAuditTall10000x50(b *testing.B) { benchmarkAudit(b, 10000, 50) }
 func BenchmarkAuditWide100x5000(b *testing.B) { benchmarkAudit(b, 100, 5000) }
+
+// BenchmarkReadTableFile reads the CSV named by PCQC_BENCH_CSV (see
+// bench/large.sh) and reports its throughput; it is skipped without one.
+func BenchmarkReadTableFile(b *testing.B) {
+	path := os.Getenv("PCQC_BENCH_CSV")
+	if path == "" {
+		b.Skip("set PCQC_BENCH_CSV to a CSV file")
+	}
+	st, err := os.Stat(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.SetBytes(st.Size())
+	for b.Loop() {
+		if _, err := ReadTable(path, ReadOptions{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

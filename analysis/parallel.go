@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"math/rand/v2"
 	"runtime"
 	"slices"
 
@@ -63,30 +64,35 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, permutations int, seed u
 	tall := n >= p
 	short := min(n, p)
 	type workspace struct {
-		buf    []float64 // short × long, row-major: Zᵀ (tall) or Z (wide)
-		gram   []float64
-		values []float64
-		sym    mat.EigenSym
+		buf     []float64 // short × long, row-major: Zᵀ (tall) or Z (wide)
+		gram    []float64
+		values  []float64
+		sym     mat.EigenSym
+		column  []float64
+		shuffle shuffleWorkspace
 	}
 	newWorkspace := func() *workspace {
-		return &workspace{buf: make([]float64, n*p), gram: make([]float64, short*short), values: make([]float64, short)}
+		w := &workspace{buf: make([]float64, n*p), gram: make([]float64, short*short), values: make([]float64, short)}
+		if tall {
+			w.column = make([]float64, n)
+		}
+		return w
 	}
 	task := func(w *workspace, b int) {
 		rng := taskRNG(seed, streamPermutation, b)
 		if tall {
-			// Rows of buf are the columns of z, each shuffled.
-			for j := 0; j < p; j++ {
+			// Rows of buf are the columns of z, each shuffled. The columns
+			// are gathered in one pass down the rows of z (reading it in
+			// order), then shuffled one by one.
+			for i := 0; i < n; i++ {
+				for j, v := range raw.Data[i*raw.Stride : i*raw.Stride+p] {
+					w.buf[j*n+i] = v
+				}
+			}
+			for j := 1; j < p; j++ {
 				row := w.buf[j*n : (j+1)*n]
-				for i := 0; i < n; i++ {
-					row[i] = raw.Data[i*raw.Stride+j]
-				}
-				if j == 0 {
-					continue
-				}
-				for i := n - 1; i > 0; i-- {
-					r := rng.IntN(i + 1)
-					row[i], row[r] = row[r], row[i]
-				}
+				shuffleInto(w.column, row, rng, &w.shuffle)
+				copy(row, w.column)
 			}
 		} else {
 			for i := 0; i < n; i++ {
@@ -129,4 +135,70 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, permutations int, seed u
 		res.Count++
 	}
 	return res
+}
+
+// shuffleWorkspace is the reusable memory of shuffleInto.
+type shuffleWorkspace struct {
+	labels []uint16
+	counts []int
+}
+
+// shuffleBuckets is log2 of the number of buckets shuffleInto uses.
+const shuffleBuckets = 10
+
+// shuffleInto writes a uniformly random permutation of src into dst.
+//
+// A Fisher–Yates shuffle of a long column jumps around memory at random, and
+// for millions of values nearly every step misses the cache. Here every
+// value first gets a random bucket label (uniform and independent), values
+// are scattered into their buckets in order, and each bucket — small enough
+// for the first-level cache — is shuffled by Fisher–Yates. Ordering by
+// (uniform label, uniform order within the label) is a uniformly random
+// permutation (Sanders 1998, Inform. Process. Lett. 67:305–309).
+func shuffleInto(dst, src []float64, rng *rand.Rand, ws *shuffleWorkspace) {
+	n := len(src)
+	const buckets = 1 << shuffleBuckets
+	if n < 16*buckets {
+		copy(dst, src)
+		fisherYates(dst, rng)
+		return
+	}
+	if cap(ws.labels) < n {
+		ws.labels = make([]uint16, n)
+	}
+	labels := ws.labels[:n]
+	if ws.counts == nil {
+		ws.counts = make([]int, buckets+1)
+	}
+	counts := ws.counts
+	clear(counts)
+	for i := 0; i < n; i += 4 {
+		r := rng.Uint64()
+		for q := 0; q < 4 && i+q < n; q++ {
+			l := uint16(r>>(16*q)) & (buckets - 1)
+			labels[i+q] = l
+			counts[l+1]++
+		}
+	}
+	for b := 1; b <= buckets; b++ {
+		counts[b] += counts[b-1]
+	}
+	starts := counts // counts[b] is now where bucket b starts
+	pos := make([]int, buckets)
+	copy(pos, starts[:buckets])
+	for i, v := range src {
+		l := labels[i]
+		dst[pos[l]] = v
+		pos[l]++
+	}
+	for b := 0; b < buckets; b++ {
+		fisherYates(dst[starts[b]:starts[b+1]], rng)
+	}
+}
+
+func fisherYates(x []float64, rng *rand.Rand) {
+	for i := len(x) - 1; i > 0; i-- {
+		r := rng.IntN(i + 1)
+		x[i], x[r] = x[r], x[i]
+	}
 }

@@ -51,6 +51,10 @@ type ReadOptions struct {
 	// Transform is applied to every variable cell as it is read, so that a
 	// value outside the transform's domain is reported with its position.
 	Transform Transform
+	// Decimal is the decimal mark of the numbers: '.' (the default) or ','
+	// (for semicolon- or tab-separated exports of spreadsheets set to a
+	// language that writes 3,14).
+	Decimal byte
 }
 
 // DroppedVariable is a column that was a candidate variable but is not used.
@@ -152,10 +156,83 @@ func ReadTable(path string, opt ReadOptions) (*Table, error) {
 		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
 	}
 	defer f.Close()
-	if st, err := f.Stat(); err == nil && st.IsDir() {
+	st, err := f.Stat()
+	if err == nil && st.IsDir() {
 		return nil, &InputError{File: path, Reason: "is a directory, not a data table"}
 	}
+	if err == nil && st.Mode().IsRegular() {
+		// A first, fast pass hashes the bytes and counts the lines, so that
+		// the matrix is allocated once at its final size instead of growing
+		// (and being copied) as rows arrive.
+		scan, err := prescan(f)
+		if err != nil {
+			return nil, &InputError{File: path, Reason: "read error: " + err.Error()}
+		}
+		if _, err := f.Seek(0, io.SeekStart); err != nil {
+			return nil, &InputError{File: path, Reason: "read error: " + err.Error()}
+		}
+		scan.file = f
+		return readTable(path, f, opt, &scan)
+	}
 	return ReadTableFrom(path, f, opt)
+}
+
+// lineEnd returns the offset just after the line-th line end at or after
+// offset start.
+func lineEnd(ra io.ReaderAt, start int64, line int) (int64, error) {
+	buf := make([]byte, 1<<20)
+	off := start
+	for seen := 0; ; {
+		n, err := ra.ReadAt(buf, off)
+		for i := 0; i < n; i++ {
+			if buf[i] == '\n' {
+				seen++
+				if seen == line {
+					return off + int64(i) + 1, nil
+				}
+			}
+		}
+		off += int64(n)
+		if err != nil {
+			return off, nil // the header is the last line
+		}
+	}
+}
+
+// scanned is what the first pass over a regular file learnt.
+type scanned struct {
+	sha256 string
+	lines  int   // line ends + 1
+	size   int64 // bytes
+	quotes bool  // a '"' occurs somewhere
+	file   io.ReaderAt
+}
+
+// prescan hashes everything r holds, counts its lines and notes whether
+// any quote occurs (quoted fields may hold line ends, which rules out
+// splitting the file at line ends).
+func prescan(r io.Reader) (scanned, error) {
+	h := sha256.New()
+	buf := make([]byte, 4<<20)
+	s := scanned{lines: 1}
+	for {
+		n, err := r.Read(buf)
+		if n > 0 {
+			h.Write(buf[:n])
+			s.lines += bytes.Count(buf[:n], []byte{'\n'})
+			s.size += int64(n)
+			if !s.quotes && bytes.IndexByte(buf[:n], '"') >= 0 {
+				s.quotes = true
+			}
+		}
+		if err == io.EOF {
+			s.sha256 = hex.EncodeToString(h.Sum(nil))
+			return s, nil
+		}
+		if err != nil {
+			return s, err
+		}
+	}
 }
 
 func unwrapPathError(err error) string {
@@ -171,6 +248,13 @@ const classifyRows = 100
 
 // ReadTableFrom reads and validates a table from r; name is used in messages.
 func ReadTableFrom(name string, r io.Reader, opt ReadOptions) (*Table, error) {
+	return readTable(name, r, opt, nil)
+}
+
+// readTable reads the table. scan, when not nil, is the first pass over a
+// regular file: it gives the hash and the line count, and lets a large file
+// without quotes be parsed in parallel.
+func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table, error) {
 	if opt.Missing == "" {
 		opt.Missing = MissingFail
 	}
@@ -181,14 +265,22 @@ func ReadTableFrom(name string, r io.Reader, opt ReadOptions) (*Table, error) {
 		return &InputError{File: name, Line: line, Column: col, Name: colName, Text: text, Reason: reason}
 	}
 
-	hash := sha256.New()
-	br := bufio.NewReaderSize(io.TeeReader(r, hash), 1<<20)
+	if opt.Decimal == 0 {
+		opt.Decimal = '.'
+	}
+	hasher := sha256.New()
+	if scan == nil {
+		r = io.TeeReader(r, hasher)
+	}
+	br := bufio.NewReaderSize(r, 1<<20)
+	bom := 0
 	if head, _ := br.Peek(3); len(head) >= 2 {
 		switch {
 		case head[0] == 0xFF && head[1] == 0xFE, head[0] == 0xFE && head[1] == 0xFF:
 			return nil, fail(1, 0, "", "", "the file is UTF-16 encoded; save it as UTF-8 (CSV UTF-8) and try again")
 		case len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF:
 			br.Discard(3)
+			bom = 3
 		}
 	}
 
@@ -202,6 +294,9 @@ func ReadTableFrom(name string, r io.Reader, opt ReadOptions) (*Table, error) {
 		if delim == 0 {
 			delim = ','
 		}
+	}
+	if opt.Decimal == ',' && delim == ',' {
+		return nil, fail(1, 0, "", "", "--decimal comma needs another field separator than the comma (semicolons or tabs)")
 	}
 
 	rr := newRecordReader(br, delim)
@@ -297,10 +392,11 @@ func ReadTableFrom(name string, r io.Reader, opt ReadOptions) (*Table, error) {
 	if len(sample) == 0 {
 		return nil, fail(headerLine, 0, "", "", "the file has a header but no data rows")
 	}
+	probe := &rowParser{decimal: opt.Decimal}
+	scratch := &rowSink{}
 	firstText := func(j int) (int, string) {
 		for i, row := range sample {
-			b := []byte(row[j])
-			if _, kind := parseCell(b); kind == cellText {
+			if _, kind := probe.cell([]byte(row[j]), scratch); kind == cellText {
 				return i, row[j]
 			}
 		}
@@ -344,95 +440,87 @@ func ReadTableFrom(name string, r io.Reader, opt ReadOptions) (*Table, error) {
 			dropHint = "<those columns>"
 		}
 		reason += fmt.Sprintf(" with --drop %s, or name a label column with --id or --group; first such cell:", dropHint)
+		if hint := probe.textHint([]byte(firstBadText)); hint != "cannot read as a number:" {
+			reason = strings.TrimSuffix(hint, ":") + "; first such cell:"
+		}
 		return nil, fail(sampleLines[firstBadRow], firstBad+1, names[firstBad], firstBadText, reason)
 	}
 
 	p := len(varCols)
-	tr := opt.Transform
-	var (
-		values     []float64
-		ids        []string
-		groups     []string
-		lines      []int
-		colMissing = make([]int, p)
-		rowMissing []bool
-		nMissing   int
-	)
-	rowNumber := 0
-	addRow := func(line int, cell func(j int) []byte) error {
-		rowNumber++
-		for k, j := range varCols {
-			raw := cell(j)
-			v, kind := parseCell(raw)
-			switch kind {
-			case cellText:
-				return fail(line, j+1, names[j], string(raw), "cannot read as a number:")
-			case cellInfinite:
-				return fail(line, j+1, names[j], string(raw), "infinite value; pcqc needs finite numbers:")
-			case cellMissing:
-				if opt.Missing == MissingFail {
-					return fail(line, j+1, names[j], string(raw), "missing value (use --missing drop or --missing mean to handle missing cells):")
-				}
-				nMissing++
-				colMissing[k]++
-				for len(rowMissing) < rowNumber {
-					rowMissing = append(rowMissing, false)
-				}
-				rowMissing[rowNumber-1] = true
-				v = math.NaN()
-			default:
-				tv, ok := tr.apply(v)
-				if !ok {
-					return fail(line, j+1, names[j], string(raw), fmt.Sprintf("value outside the domain of --transform %s (%s):", tr, tr.domain()))
-				}
-				v = tv
-			}
-			values = append(values, v)
-		}
-		if idCol >= 0 {
-			ids = append(ids, strings.TrimSpace(string(cell(idCol))))
-		} else {
-			ids = append(ids, strconv.Itoa(rowNumber))
-		}
-		if groupCol >= 0 {
-			groups = append(groups, strings.TrimSpace(string(cell(groupCol))))
-		}
-		lines = append(lines, line)
-		return nil
-	}
-	for i, row := range sample {
-		if err := addRow(sampleLines[i], func(j int) []byte { return []byte(row[j]) }); err != nil {
-			return nil, err
-		}
-	}
-	for {
-		rec, err := rr.read()
-		if err == io.EOF {
-			break
-		}
+	rp := &rowParser{file: name, names: names, varCols: varCols, idCol: idCol, groupCol: groupCol,
+		missing: opt.Missing, tr: opt.Transform, decimal: opt.Decimal}
+	var sink *rowSink
+	if scan != nil && !scan.quotes && scan.size >= parallelThreshold && opt.Delimiter != '"' {
+		// Large file without quotes: parse line ranges in parallel, each
+		// line into its own slot.
+		dataStart, err := lineEnd(scan.file, int64(bom), headerLine)
 		if err != nil {
-			return nil, readError(name, rr, err)
+			return nil, fail(0, 0, "", "", "read error: "+err.Error())
 		}
-		if err := checkWidth(name, rr.recLine, rec, names); err != nil {
+		chunks, err := splitChunks(scan.file, dataStart, scan.size, headerLine+1, 4<<20)
+		if err != nil {
+			return nil, fail(0, 0, "", "", "read error: "+err.Error())
+		}
+		sink = newRowSink(p, max(scan.lines-headerLine, 0), groupCol >= 0)
+		if err := rp.parseChunks(scan.file, chunks, headerLine, sink, delim); err != nil {
 			return nil, err
 		}
-		if err := addRow(rr.recLine, func(j int) []byte { return rec[j] }); err != nil {
-			return nil, err
+		sink.compact(idCol < 0)
+	} else {
+		rows := len(sample)
+		if scan != nil {
+			rows = max(scan.lines-headerLine, rows)
+		}
+		sink = newRowSink(p, rows, groupCol >= 0)
+		n := 0
+		for i, row := range sample {
+			rec := make([][]byte, len(row))
+			for j, c := range row {
+				rec[j] = []byte(c)
+			}
+			if err := rp.parse(rec, sampleLines[i], n+1, n, sink); err != nil {
+				return nil, err
+			}
+			n++
+		}
+		for {
+			rec, err := rr.read()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				return nil, readError(name, rr, err)
+			}
+			sink.ensure(n)
+			if err := rp.parse(rec, rr.recLine, n+1, n, sink); err != nil {
+				return nil, err
+			}
+			n++
+		}
+		sink.truncate(n)
+		if _, err := io.Copy(io.Discard, br); err != nil {
+			return nil, fail(0, 0, "", "", "read error: "+err.Error())
 		}
 	}
-	if _, err := io.Copy(io.Discard, br); err != nil {
-		return nil, fail(0, 0, "", "", "read error: "+err.Error())
-	}
+	values, ids, groups, lines, rowMissing := sink.values, sink.ids, sink.groups, sink.lines, sink.rowMissing
+	colMissing, nMissing := sink.colMissing, sink.nMissing
+	rowNumber := len(ids)
 	rowsRead := rowNumber
 
+	hash := ""
+	if scan != nil {
+		hash = scan.sha256
+	} else {
+		hash = hex.EncodeToString(hasher.Sum(nil))
+	}
 	t := &Table{
 		File:         name,
-		SHA256:       hex.EncodeToString(hash.Sum(nil)),
+		SHA256:       hash,
 		Delimiter:    delim,
 		GroupColumn:  opt.GroupColumn,
 		MissingCells: nMissing,
 		RowsRead:     rowsRead,
-		Transform:    tr,
+		Transform:    opt.Transform,
 		Missing:      opt.Missing,
 	}
 	if idCol >= 0 {
@@ -548,10 +636,12 @@ func columnRange(values []float64, n, p, k int) (lo, hi float64, ok bool) {
 		return 0, 0, false
 	}
 	lo, hi = values[k], values[k]
-	for i := 1; i < n; i++ {
-		v := values[i*p+k]
-		lo = math.Min(lo, v)
-		hi = math.Max(hi, v)
+	for i := p + k; i < n*p; i += p {
+		if v := values[i]; v < lo {
+			lo = v
+		} else if v > hi {
+			hi = v
+		}
 	}
 	return lo, hi, true
 }

@@ -256,8 +256,7 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 	}{
 		{"variance.csv", VarianceRows(res)},
 		{"loadings.csv", LoadingsRows(res)},
-		{"scores.csv", ScoresRows(res.Table, res.Scores)},
-		{"samples.csv", SamplesRows(res)},
+
 	}
 	if audit.Review != nil {
 		files = append(files, struct {
@@ -275,6 +274,12 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 		if err := writeCSV(join(f.name), f.rows); err != nil {
 			return err
 		}
+	}
+	if err := writeScores(join("scores.csv"), res.Table, res.Scores); err != nil {
+		return err
+	}
+	if err := writeSamples(join("samples.csv"), res); err != nil {
+		return err
 	}
 	return writeJSON(join("summary.json"), BuildSummary(audit, meta))
 }

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"bufio"
 	"encoding/csv"
 	"fmt"
 	"os"
@@ -22,12 +23,32 @@ func componentName(a int) string { return fmt.Sprintf("PC%d", a+1) }
 // writeCSV writes rows to path as RFC 4180 CSV (fields with commas, quotes or
 // newlines are quoted, so ids survive a round trip).
 func writeCSV(path string, rows [][]string) error {
+	return streamCSV(path, rows[0], len(rows)-1, func(i int, _ []string) []string { return rows[i+1] })
+}
+
+// streamCSV writes a header and n rows made one at a time by row (which may
+// reuse dst), so that tables of millions of rows are never held in memory.
+func streamCSV(path string, header []string, n int, row func(i int, dst []string) []string) error {
 	f, err := os.Create(path)
 	if err != nil {
 		return err
 	}
-	w := csv.NewWriter(f)
-	if err := w.WriteAll(rows); err != nil {
+	bw := bufio.NewWriterSize(f, 1<<20)
+	w := csv.NewWriter(bw)
+	w.Write(header)
+	dst := make([]string, len(header))
+	for i := 0; i < n; i++ {
+		if err := w.Write(row(i, dst[:0])); err != nil {
+			f.Close()
+			return err
+		}
+	}
+	w.Flush()
+	if err := w.Error(); err != nil {
+		f.Close()
+		return err
+	}
+	if err := bw.Flush(); err != nil {
 		f.Close()
 		return err
 	}
@@ -70,15 +91,14 @@ func VarianceRows(res *analysis.Result) [][]string {
 	return rows
 }
 
-// SamplesRows builds samples.csv: per sample T², Q, leverage and the limits
-// it passes (e.g. "t2-99 q-95"; empty when none).
-func SamplesRows(res *analysis.Result) [][]string {
+// writeSamples writes samples.csv: per sample T², Q, leverage and the
+// limits it passes (e.g. "t2-99 q-95"; empty when none).
+func writeSamples(path string, res *analysis.Result) error {
 	s := res.Samples
-	rows := [][]string{{IDHeader(res.Table), "t2", "q", "leverage", "beyond"}}
-	for i, id := range res.Table.IDs {
-		rows = append(rows, []string{id, num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " ")})
-	}
-	return rows
+	header := []string{IDHeader(res.Table), "t2", "q", "leverage", "beyond"}
+	return streamCSV(path, header, len(res.Table.IDs), func(i int, dst []string) []string {
+		return append(dst, res.Table.IDs[i], num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " "))
+	})
 }
 
 // Percentages returns each eigenvalue as a percentage of their sum.
@@ -122,24 +142,20 @@ func IDHeader(t *analysis.Table) string {
 	return "row"
 }
 
-// ScoresRows builds scores.csv: one row per sample used, in input order.
-func ScoresRows(t *analysis.Table, scores *mat.Dense) [][]string {
+// writeScores writes scores.csv: one row per sample used, in input order.
+func writeScores(path string, t *analysis.Table, scores *mat.Dense) error {
 	n, k := scores.Dims()
 	header := []string{IDHeader(t)}
 	for a := 0; a < k; a++ {
 		header = append(header, componentName(a))
 	}
-	rows := make([][]string, 0, n+1)
-	rows = append(rows, header)
-	for i := 0; i < n; i++ {
-		row := make([]string, 0, k+1)
-		row = append(row, t.IDs[i])
+	return streamCSV(path, header, n, func(i int, dst []string) []string {
+		dst = append(dst, t.IDs[i])
 		for a := 0; a < k; a++ {
-			row = append(row, num(scores.At(i, a)))
+			dst = append(dst, num(scores.At(i, a)))
 		}
-		rows = append(rows, row)
-	}
-	return rows
+		return dst
+	})
 }
 
 // StabilityRows builds stability.csv: per variable and retained component,

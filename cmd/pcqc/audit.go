@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/debug"
 	"time"
 
 	"pcqc/analysis"
@@ -35,6 +36,8 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		return 0, err
 	}
 	opt.Progress = newProgress(stderr, job.flags.quiet)
+	opt.InPlace = true // the table's raw matrix is not needed after preprocessing
+	limitMemory(job.table)
 	if job.adjust != nil {
 		job.adjust(&opt)
 	}
@@ -93,4 +96,19 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		return exitChecks, nil
 	}
 	return exitOK, nil
+}
+
+// limitMemory sets a soft limit on the heap from the size of the data
+// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 96 MiB,
+// and never below 384 MiB. The analysis itself needs about two copies (the
+// preprocessed matrix and one resampling workspace); without a limit the
+// garbage collector lets the heap grow to twice what is live before it
+// collects, which for large tables means gigabytes of garbage.
+func limitMemory(t *analysis.Table) {
+	if os.Getenv("GOMEMLIMIT") != "" {
+		return
+	}
+	n, p := t.X.Dims()
+	data := int64(8 * n * p)
+	debug.SetMemoryLimit(max(384<<20, data*9/4+96<<20))
 }

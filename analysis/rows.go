@@ -1,0 +1,322 @@
+package analysis
+
+import (
+	"bufio"
+	"bytes"
+	"fmt"
+	"io"
+	"math"
+	"runtime"
+	"strings"
+	"sync"
+)
+
+// rowParser turns the fields of one record into a row of the table.
+type rowParser struct {
+	file     string
+	names    []string
+	varCols  []int
+	idCol    int
+	groupCol int
+	missing  MissingPolicy
+	tr       Transform
+	decimal  byte // '.' or ','
+}
+
+// rowSink holds the parsed rows. Row i occupies values[i*p:(i+1)*p]; a row
+// whose line is 0 is an empty slot (see the chunked reader).
+type rowSink struct {
+	p          int
+	values     []float64
+	ids        []string
+	groups     []string
+	lines      []int
+	rowMissing []bool
+	colMissing []int
+	nMissing   int
+	scratch    []byte
+}
+
+// newRowSink allocates room for rows rows at once.
+func newRowSink(p, rows int, groups bool) *rowSink {
+	s := &rowSink{p: p, colMissing: make([]int, p),
+		values: make([]float64, rows*p), ids: make([]string, rows),
+		lines: make([]int, rows), rowMissing: make([]bool, rows)}
+	if groups {
+		s.groups = make([]string, rows)
+	}
+	return s
+}
+
+// ensure makes room for row at, growing geometrically when the number of
+// rows was not known in advance.
+func (s *rowSink) ensure(at int) {
+	if at < len(s.lines) {
+		return
+	}
+	rows := max(2*len(s.lines), at+1, 64)
+	grown := newRowSink(s.p, rows, s.groups != nil)
+	copy(grown.values, s.values)
+	copy(grown.ids, s.ids)
+	copy(grown.lines, s.lines)
+	copy(grown.rowMissing, s.rowMissing)
+	copy(grown.groups, s.groups)
+	s.values, s.ids, s.lines, s.rowMissing, s.groups = grown.values, grown.ids, grown.lines, grown.rowMissing, grown.groups
+}
+
+// truncate keeps the first rows rows.
+func (s *rowSink) truncate(rows int) {
+	s.values, s.ids, s.lines, s.rowMissing = s.values[:rows*s.p], s.ids[:rows], s.lines[:rows], s.rowMissing[:rows]
+	if s.groups != nil {
+		s.groups = s.groups[:rows]
+	}
+}
+
+func (rp *rowParser) fail(line, col int, text, reason string) error {
+	name := ""
+	if col > 0 {
+		name = rp.names[col-1]
+	}
+	return &InputError{File: rp.file, Line: line, Column: col, Name: name, Text: text, Reason: reason}
+}
+
+// cell reads one variable cell, accepting a decimal comma when asked to.
+func (rp *rowParser) cell(raw []byte, s *rowSink) (float64, cellKind) {
+	if rp.decimal == ',' && bytes.IndexByte(raw, ',') >= 0 {
+		s.scratch = append(s.scratch[:0], raw...)
+		for i, c := range s.scratch {
+			switch c {
+			case ',':
+				s.scratch[i] = '.'
+			case '.':
+				return 0, cellText // a point as well: thousands separator or a typo
+			}
+		}
+		raw = s.scratch
+	}
+	return parseCell(raw)
+}
+
+// textHint suggests what may be wrong with a cell that is not a number.
+func (rp *rowParser) textHint(raw []byte) string {
+	t := strings.TrimSpace(string(raw))
+	switch {
+	case rp.decimal == '.' && strings.Count(t, ",") == 1 && !strings.Contains(t, "."):
+		if _, kind := parseCell([]byte(strings.Replace(t, ",", ".", 1))); kind == cellNumber {
+			return "cannot read as a number (a decimal comma? use --decimal comma):"
+		}
+	case strings.Count(t, ",")+strings.Count(t, ".")+strings.Count(t, " ")+strings.Count(t, "'") > 1 || strings.Contains(t, "\u00a0"):
+		if looksGrouped(t) {
+			return "cannot read as a number (thousands separators? write numbers without digit grouping):"
+		}
+	}
+	return "cannot read as a number:"
+}
+
+// looksGrouped reports whether t reads as digits grouped by thousands
+// separators, such as 1,234,567 or 1.234,5 or 1 234.
+func looksGrouped(t string) bool {
+	digits, seps := 0, 0
+	for _, r := range t {
+		switch {
+		case r >= '0' && r <= '9':
+			digits++
+		case r == ',' || r == '.' || r == ' ' || r == '\'' || r == '\u00a0':
+			seps++
+		case r == '-' || r == '+':
+		default:
+			return false
+		}
+	}
+	return digits >= 4 && seps >= 1
+}
+
+// parse fills row `at` of the sink from the record's fields. rowNumber is
+// the 1-based data-row number (the id when there is no id column), 0 when
+// it is assigned later.
+func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) error {
+	if len(rec) != len(rp.names) {
+		return checkWidth(rp.file, line, rec, rp.names)
+	}
+	row := s.values[at*s.p : (at+1)*s.p]
+	for k, j := range rp.varCols {
+		raw := rec[j]
+		v, kind := rp.cell(raw, s)
+		switch kind {
+		case cellText:
+			return rp.fail(line, j+1, string(raw), rp.textHint(raw))
+		case cellInfinite:
+			return rp.fail(line, j+1, string(raw), "infinite value; pcqc needs finite numbers:")
+		case cellMissing:
+			if rp.missing == MissingFail {
+				return rp.fail(line, j+1, string(raw), "missing value (use --missing drop or --missing mean to handle missing cells):")
+			}
+			s.nMissing++
+			s.colMissing[k]++
+			s.rowMissing[at] = true
+			v = math.NaN()
+		default:
+			tv, ok := rp.tr.apply(v)
+			if !ok {
+				return rp.fail(line, j+1, string(raw), fmt.Sprintf("value outside the domain of --transform %s (%s):", rp.tr, rp.tr.domain()))
+			}
+			v = tv
+		}
+		row[k] = v
+	}
+	switch {
+	case rp.idCol >= 0:
+		s.ids[at] = strings.TrimSpace(string(rec[rp.idCol]))
+	case rowNumber > 0:
+		s.ids[at] = itoa(rowNumber)
+	}
+	if rp.groupCol >= 0 {
+		s.groups[at] = strings.TrimSpace(string(rec[rp.groupCol]))
+	}
+	s.lines[at] = line
+	return nil
+}
+
+// chunk is a byte range of the file holding whole lines, starting at line
+// firstLine.
+type chunk struct {
+	offset, end int64
+	firstLine   int
+}
+
+// parallelThreshold is the file size from which the rows are parsed by
+// several workers.
+const parallelThreshold = 8 << 20
+
+// parseChunks parses the data lines of a seekable file with no quotes in
+// parallel. Each physical line L (the header is line 1, or later when blank
+// lines precede it) fills slot L − headerLine − 1, so workers need no
+// coordination; blank lines leave empty slots that compact removes.
+func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int, s *rowSink, delim byte) error {
+	errs := make([]error, len(chunks))
+	var wg sync.WaitGroup
+	var mu sync.Mutex
+	next := make(chan int, len(chunks))
+	for i := range chunks {
+		next <- i
+	}
+	close(next)
+	workers := min(runtime.NumCPU(), len(chunks))
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			local := &rowSink{p: s.p, values: s.values, ids: s.ids, groups: s.groups, lines: s.lines, rowMissing: s.rowMissing, colMissing: make([]int, s.p)}
+			var buf []byte
+			for i := range next {
+				c := chunks[i]
+				size := int(c.end - c.offset)
+				if cap(buf) < size {
+					buf = make([]byte, size)
+				}
+				buf = buf[:size]
+				if _, err := ra.ReadAt(buf, c.offset); err != nil && err != io.EOF {
+					errs[i] = &InputError{File: rp.file, Line: c.firstLine, Reason: "read error: " + err.Error()}
+					continue
+				}
+				rr := newRecordReader(bufio.NewReaderSize(bytes.NewReader(buf), 1<<16), delim)
+				rr.line = c.firstLine - 1
+				for {
+					rec, err := rr.read()
+					if err == io.EOF {
+						break
+					}
+					if err != nil {
+						errs[i] = readError(rp.file, rr, err)
+						break
+					}
+					if err := rp.parse(rec, rr.recLine, 0, rr.recLine-headerLine-1, local); err != nil {
+						errs[i] = err
+						break
+					}
+				}
+			}
+			mu.Lock()
+			s.nMissing += local.nMissing
+			for k, c := range local.colMissing {
+				s.colMissing[k] += c
+			}
+			mu.Unlock()
+		}()
+	}
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
+			return err // chunks are in file order: the first error is the first in the file
+		}
+	}
+	return nil
+}
+
+// compact removes the empty slots left by blank lines and numbers the rows.
+func (s *rowSink) compact(numberRows bool) {
+	keep := 0
+	for i, line := range s.lines {
+		if line == 0 {
+			continue
+		}
+		if keep != i {
+			copy(s.values[keep*s.p:(keep+1)*s.p], s.values[i*s.p:(i+1)*s.p])
+			s.ids[keep], s.lines[keep], s.rowMissing[keep] = s.ids[i], s.lines[i], s.rowMissing[i]
+			if s.groups != nil {
+				s.groups[keep] = s.groups[i]
+			}
+		}
+		if numberRows {
+			s.ids[keep] = itoa(keep + 1)
+		}
+		keep++
+	}
+	s.values, s.ids, s.lines, s.rowMissing = s.values[:keep*s.p], s.ids[:keep], s.lines[:keep], s.rowMissing[:keep]
+	if s.groups != nil {
+		s.groups = s.groups[:keep]
+	}
+}
+
+// splitChunks cuts the data part of a file [dataStart, size) into ranges of
+// about target bytes that start and end on line boundaries, and numbers
+// their first lines. It reads only the bytes around each cut and counts
+// line ends in between.
+func splitChunks(ra io.ReaderAt, dataStart, size int64, firstLine int, target int64) ([]chunk, error) {
+	var out []chunk
+	start, line := dataStart, firstLine
+	probe := make([]byte, 64<<10)
+	count := make([]byte, 4<<20)
+	for start < size {
+		end := start + target
+		if end >= size {
+			out = append(out, chunk{start, size, line})
+			break
+		}
+		// Move the cut to just after the next line end.
+		for {
+			n, err := ra.ReadAt(probe, end)
+			if i := bytes.IndexByte(probe[:n], '\n'); i >= 0 {
+				end += int64(i) + 1
+				break
+			}
+			end += int64(n)
+			if err != nil || end >= size {
+				end = size
+				break
+			}
+		}
+		out = append(out, chunk{start, end, line})
+		// Count the line ends of this chunk for the next one's first line.
+		for off := start; off < end; {
+			n := min(int64(len(count)), end-off)
+			if _, err := ra.ReadAt(count[:n], off); err != nil && err != io.EOF {
+				return nil, err
+			}
+			line += bytes.Count(count[:n], []byte{'\n'})
+			off += n
+		}
+		start = end
+	}
+	return out, nil
+}
