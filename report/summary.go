@@ -256,7 +256,6 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 	}{
 		{"variance.csv", VarianceRows(res)},
 		{"loadings.csv", LoadingsRows(res)},
-
 	}
 	if audit.Review != nil {
 		files = append(files, struct {
