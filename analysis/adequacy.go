@@ -27,6 +27,8 @@ type Adequacy struct {
 	// DuplicateRows groups the indices of rows whose variable values are
 	// identical; only groups of two or more are kept.
 	DuplicateRows [][]int
+	// DuplicateIDs groups the indices of rows that share a sample id.
+	DuplicateIDs [][]int
 
 	Bartlett Bartlett
 	KMO      KMO
@@ -403,4 +405,27 @@ func EigenvalueSeparation(eigenvalues []float64, n, k int) []Separation {
 		out = append(out, s)
 	}
 	return out
+}
+
+// duplicateIDs groups the rows that share a sample id, in order of first
+// occurrence.
+func duplicateIDs(ids []string) [][]int {
+	first := make(map[string]int, len(ids))
+	var groups [][]int
+	where := map[string]int{}
+	for i, id := range ids {
+		j, seen := first[id]
+		if !seen {
+			first[id] = i
+			continue
+		}
+		g, ok := where[id]
+		if !ok {
+			g = len(groups)
+			where[id] = g
+			groups = append(groups, []int{j})
+		}
+		groups[g] = append(groups[g], i)
+	}
+	return groups
 }

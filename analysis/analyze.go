@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"fmt"
+	"math"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -70,6 +71,12 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 		z = pp.Apply(nil, t.X)
 	}
 	adequacy.Bartlett, adequacy.KMO = correlationTests(z)
+	adequacy.DuplicateIDs = duplicateIDs(t.IDs)
+	if opt.Scaling == ScaleNone {
+		if err := checkMagnitude(t, z); err != nil {
+			return nil, err
+		}
+	}
 	d, err := Decompose(z)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", t.File, err)
@@ -103,6 +110,22 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
 	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
 	return r, nil
+}
+
+// checkMagnitude refuses unscaled data whose squares leave the range of
+// double precision (sums of squares of values near 1e150 overflow; near
+// 1e-150 they underflow): scaled data are brought to order one first, so
+// only --scale none meets this.
+func checkMagnitude(t *Table, z *mat.Dense) error {
+	raw := z.RawMatrix()
+	big := 0.0
+	for _, v := range raw.Data {
+		big = math.Max(big, math.Abs(v))
+	}
+	if big > 1e100 || big < 1e-100 {
+		return &InputError{File: t.File, Reason: fmt.Sprintf("without scaling the centred values reach %.1e, and their squares leave the range of double precision; use --scale unit (correlation PCA) or express the data in other units", big)}
+	}
+	return nil
 }
 
 // RetainedLoadings returns the p × k loadings of the retained components.

@@ -65,9 +65,24 @@ const (
 // Statist. 25:290–302) scaled χ² approximation is used: g = θ₂/θ₁,
 // h = θ₁²/θ₂, Q_conf = g·χ²_conf(h). The method used is returned.
 func QLimit(discarded []float64, conf float64) (float64, QMethod) {
+	// The limit is homogeneous of degree one in the eigenvalues: compute it
+	// for eigenvalues scaled to a largest of 1, so that θ₂ and θ₃ neither
+	// overflow nor underflow for data in extreme units.
+	scale := 0.0
+	for _, l := range discarded {
+		scale = math.Max(scale, l)
+	}
+	if scale <= 0 {
+		return 0, QNone
+	}
+	q, method := qLimitUnit(discarded, scale, conf)
+	return q * scale, method
+}
+
+func qLimitUnit(discarded []float64, scale, conf float64) (float64, QMethod) {
 	var t1, t2, t3 float64
 	for _, l := range discarded {
-		l = math.Max(l, 0)
+		l = math.Max(l, 0) / scale
 		t1 += l
 		t2 += l * l
 		t3 += l * l * l

@@ -34,8 +34,12 @@ type rowSink struct {
 	rowMissing []bool
 	colMissing []int
 	nMissing   int
+	missingIDs int
 	scratch    []byte
 }
+
+// MissingIDPrefix names a sample whose id cell is empty: "line 12".
+const MissingIDPrefix = "line "
 
 // newRowSink allocates room for rows rows at once.
 func newRowSink(p, rows int, groups bool) *rowSink {
@@ -166,7 +170,13 @@ func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) er
 	}
 	switch {
 	case rp.idCol >= 0:
-		s.ids[at] = strings.TrimSpace(string(rec[rp.idCol]))
+		id := strings.TrimSpace(string(rec[rp.idCol]))
+		if isMissingToken([]byte(id)) {
+			// Named by its line, so that it can still be found.
+			id = MissingIDPrefix + itoa(line)
+			s.missingIDs++
+		}
+		s.ids[at] = id
 	case rowNumber > 0:
 		s.ids[at] = itoa(rowNumber)
 	}
@@ -238,6 +248,7 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 			}
 			mu.Lock()
 			s.nMissing += local.nMissing
+			s.missingIDs += local.missingIDs
 			for k, c := range local.colMissing {
 				s.colMissing[k] += c
 			}

@@ -83,6 +83,7 @@ type Table struct {
 	RowsRead     int // data rows in the file
 	RowsDropped  int // removed for missing values
 	MissingCells int // missing cells among the candidate variables
+	MissingIDs   int // samples with an empty id cell, named "line N" instead
 	ImputedCells int // missing cells replaced by column means
 
 	DroppedVariables []DroppedVariable
@@ -175,6 +176,23 @@ func ReadTable(path string, opt ReadOptions) (*Table, error) {
 		return readTable(path, f, opt, &scan)
 	}
 	return ReadTableFrom(path, f, opt)
+}
+
+// looksUTF16 reports whether the bytes look like UTF-16 text without a byte
+// order mark: zeros in most even or most odd positions.
+func looksUTF16(b []byte) bool {
+	var even, odd int
+	for i, c := range b {
+		if c == 0 {
+			if i%2 == 0 {
+				even++
+			} else {
+				odd++
+			}
+		}
+	}
+	half := len(b) / 2
+	return half > 0 && (even > half*9/10 || odd > half*9/10)
 }
 
 // lineEnd returns the offset just after the line-th line end at or after
@@ -282,6 +300,12 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 			br.Discard(3)
 			bom = 3
 		}
+	}
+	if head, _ := br.Peek(4096); bytes.IndexByte(head, 0) >= 0 {
+		if looksUTF16(head) {
+			return nil, fail(1, 0, "", "", "the file looks UTF-16 encoded (every other byte is zero); save it as UTF-8 (CSV UTF-8) and try again")
+		}
+		return nil, fail(0, 0, "", "", "the file holds NUL bytes: it looks like a binary file (a spreadsheet workbook, an image, a compressed archive), not a text table; export it as CSV")
 	}
 
 	delim := opt.Delimiter
@@ -504,6 +528,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	}
 	values, ids, groups, lines, rowMissing := sink.values, sink.ids, sink.groups, sink.lines, sink.rowMissing
 	colMissing, nMissing := sink.colMissing, sink.nMissing
+	missingIDs := sink.missingIDs
 	rowNumber := len(ids)
 	rowsRead := rowNumber
 
@@ -519,6 +544,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		Delimiter:    delim,
 		GroupColumn:  opt.GroupColumn,
 		MissingCells: nMissing,
+		MissingIDs:   missingIDs,
 		RowsRead:     rowsRead,
 		Transform:    opt.Transform,
 		Missing:      opt.Missing,

@@ -2,6 +2,7 @@ package checks
 
 import (
 	"fmt"
+	"math"
 
 	"pcqc/analysis"
 )
@@ -84,7 +85,29 @@ func (c Check) Run(in Input) Result {
 	if r.Status == "" {
 		panic(fmt.Sprintf("check %s returned no status", c.ID))
 	}
+	r.Value, r.Limit = finiteOrNil(r.Value), finiteOrNil(r.Limit)
 	return r
+}
+
+// finiteOrNil keeps NaN and ±Inf out of summary.json (JSON has no such
+// numbers) and out of the report: a measurement that is not a finite number
+// is reported as absent.
+func finiteOrNil(v any) any {
+	switch x := v.(type) {
+	case float64:
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil
+		}
+	case map[string]float64:
+		clean := map[string]float64{}
+		for k, f := range x {
+			if !math.IsNaN(f) && !math.IsInf(f, 0) {
+				clean[k] = f
+			}
+		}
+		return clean
+	}
+	return v
 }
 
 // Registry lists every check in report order.
@@ -102,6 +125,7 @@ var Registry = []Check{
 	missingValues,
 	constantVariables,
 	duplicateRows,
+	sampleIDs,
 	sampleSize,
 	scaling,
 	skewness,

@@ -211,7 +211,11 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	// Adequacy.
 	ad := res.Adequacy
 	var adequacy []string
-	if ad.Bartlett.Computed {
+	switch {
+	case ad.Bartlett.Computed && ad.Bartlett.Singular:
+		adequacy = append(adequacy, "Bartlett's test of sphericity (Bartlett 1950, 1951; the correlation matrix is singular, some variables being exact combinations of others)")
+		c.cite("bartlett1950", "bartlett1951")
+	case ad.Bartlett.Computed:
 		adequacy = append(adequacy, fmt.Sprintf("Bartlett's test of sphericity (Bartlett 1950, 1951; χ² = %s, df = %d, %s)", g4(ad.Bartlett.Chi2), ad.Bartlett.DF, pText(ad.Bartlett.P)))
 		c.cite("bartlett1950", "bartlett1951")
 	}

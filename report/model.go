@@ -492,6 +492,9 @@ func scoresBlock(res *analysis.Result) ScoresBlock {
 	group := "one colour"
 	if res.Table.GroupColumn != "" {
 		group = "coloured and shaped by " + res.Table.GroupColumn
+		if groups, _ := groupsOf(res.Table); len(groups) > maxColouredGroups {
+			group = fmt.Sprintf("drawn alike: the %d groups of %s are too many to tell apart", len(groups), res.Table.GroupColumn)
+		}
 	}
 	if res.Retained == 1 {
 		b.Figures = []Figure{{Stem: "scores-pc1", Alt: "PC1 scores in sample order",

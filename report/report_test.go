@@ -187,8 +187,19 @@ func pdftotext(t *testing.T, path string) string {
 	if err != nil {
 		t.Fatalf("pdftotext: %v", err)
 	}
-	return string(out)
+	// Drop the running footer, which a page break puts inside the text.
+	var kept []string
+	for _, line := range strings.Split(string(out), "\n") {
+		line = strings.Trim(line, "\f")
+		if footerLine.MatchString(line) {
+			continue
+		}
+		kept = append(kept, line)
+	}
+	return strings.Join(kept, "\n")
 }
+
+var footerLine = regexp.MustCompile(`^(pcqc \S+ · .* · input SHA-256 [0-9a-f]+)?\s*(page \d+ of \d+)?$`)
 
 var spaces = regexp.MustCompile(`\s+`)
 

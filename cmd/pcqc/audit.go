@@ -68,6 +68,8 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, usagef("%v", err)
 	}
+	setActiveOutput(out)
+	defer setActiveOutput(nil)
 	write := func() error {
 		for name, content := range job.extra {
 			if err := os.WriteFile(out.Path(name), content, 0o644); err != nil {
@@ -77,6 +79,7 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		if err := report.WriteTables(out.Dir(), audit, meta); err != nil {
 			return err
 		}
+		holdWriting()
 		if err := report.WriteReport(out.Dir(), audit, meta, ropt, formats); err != nil {
 			return err
 		}

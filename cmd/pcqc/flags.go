@@ -26,6 +26,7 @@ type auditFlags struct {
 	drop         string
 	missing      string
 	delim        string
+	decimal      string
 	transform    string
 	scale        string
 	components   string
@@ -52,6 +53,7 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.drop, "drop", "", "")
 	fs.StringVar(&f.missing, "missing", string(analysis.MissingFail), "")
 	fs.StringVar(&f.delim, "delim", "auto", "")
+	fs.StringVar(&f.decimal, "decimal", "point", "")
 	fs.StringVar(&f.transform, "transform", string(analysis.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
@@ -80,6 +82,8 @@ const auditFlagHelp = `Input:
                       transform), so it sits at zero after centring
                       Missing cells are empty, NA, N/A, #N/A, NaN or null.
   --delim D           auto | , | ; | tab (default auto: detected from the header)
+  --decimal MARK      point | comma (default point); comma reads 3,14 in
+                      semicolon- or tab-separated files
 
 Preprocessing (centring is always done):
   --transform T       none | log | log10 | log1p (default none)
@@ -155,6 +159,14 @@ func (f *auditFlags) readOptions() (analysis.ReadOptions, error) {
 		opt.Delimiter = '\t'
 	default:
 		return opt, usagef("invalid --delim %q: use auto, ',', ';' or tab", f.delim)
+	}
+	switch f.decimal {
+	case "point", ".":
+		opt.Decimal = '.'
+	case "comma", ",":
+		opt.Decimal = ','
+	default:
+		return opt, usagef("invalid --decimal %q: use point or comma", f.decimal)
 	}
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
@@ -255,6 +267,7 @@ func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) rep
 		{Name: "missing", Value: string(read.Missing)},
 		{Name: "delim", Value: delim},
 		{Name: "delim_used", Value: string(t.Delimiter)},
+		{Name: "decimal", Value: f.decimal},
 		{Name: "transform", Value: string(read.Transform)},
 		{Name: "scale", Value: f.scale},
 		{Name: "center", Value: true},

@@ -69,13 +69,20 @@ func main() {
 	if path := os.Getenv("PCQC_CPUPROFILE"); path != "" {
 		if f, err := os.Create(path); err == nil {
 			pprof.StartCPUProfile(f)
-			status := mainWithArgs(os.Args[1:], os.Stdout, os.Stderr)
+			status := runProcess(os.Args[1:])
 			pprof.StopCPUProfile()
 			f.Close()
 			os.Exit(status)
 		}
 	}
-	os.Exit(mainWithArgs(os.Args[1:], os.Stdout, os.Stderr))
+	os.Exit(runProcess(os.Args[1:]))
+}
+
+// runProcess runs pcqc as a process: with interrupts handled.
+func runProcess(args []string) int {
+	stop := handleInterrupts(os.Stderr)
+	defer stop()
+	return mainWithArgs(args, os.Stdout, os.Stderr)
 }
 
 // mainWithArgs runs pcqc and returns its exit status; tests call it directly.

@@ -1,0 +1,63 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"sync"
+	"syscall"
+
+	"pcqc/report"
+)
+
+// The output folder being written, so that an interrupt can remove it.
+var (
+	activeMu  sync.Mutex
+	activeOut *report.Output
+)
+
+func setActiveOutput(o *report.Output) {
+	activeMu.Lock()
+	activeOut = o
+	activeMu.Unlock()
+}
+
+// handleInterrupts makes SIGINT and SIGTERM remove the output being written
+// (its temporary folder; a folder already renamed into place is complete
+// and stays) and exit with the conventional status 128 + signal number. It
+// returns a function that stops the handling.
+func handleInterrupts(stderr io.Writer) func() {
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM)
+	done := make(chan struct{})
+	go func() {
+		select {
+		case s := <-sigs:
+			activeMu.Lock()
+			if activeOut != nil {
+				activeOut.Abort()
+			}
+			fmt.Fprintf(stderr, "\npcqc: interrupted (%v); nothing was written\n", s)
+			code := 128 + int(s.(syscall.Signal))
+			os.Exit(code)
+		case <-done:
+		}
+	}()
+	return func() {
+		signal.Stop(sigs)
+		close(done)
+	}
+}
+
+// holdWriting is a test hook: with PCQC_TEST_HOLD_WRITING=FILE set, pcqc
+// creates FILE once the tables are in the temporary folder and then waits,
+// so that a test can interrupt or kill it in the middle of writing.
+func holdWriting() {
+	path := os.Getenv("PCQC_TEST_HOLD_WRITING")
+	if path == "" {
+		return
+	}
+	os.WriteFile(path, []byte("writing\n"), 0o644)
+	select {}
+}
