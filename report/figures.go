@@ -85,7 +85,10 @@ func equalise(p *plot.Plot, c draw.Canvas) {
 }
 
 // save writes the drawing as PNG and SVG into dir/figures.
-func (d drawing) save(dir, stem string) error {
+func (d drawing) save(dir, stem string) error { return d.saveAs(dir, stem, true, true) }
+
+// saveAs writes the drawing as PNG, SVG or both into dir/figures.
+func (d drawing) saveAs(dir, stem string, pngToo, svgToo bool) error {
 	if err := os.MkdirAll(filepath.Join(dir, "figures"), 0o755); err != nil {
 		return err
 	}
@@ -118,16 +121,24 @@ func (d drawing) save(dir, stem string) error {
 		strip := draw.Crop(dc, dc.Max.X-dc.Min.X-width+vg.Points(8), 0, 0, -vg.Points(28))
 		legend.Draw(strip)
 	}
-	img := vgimg.NewWith(vgimg.UseWH(d.w, d.h), vgimg.UseDPI(figureDPI))
-	render(img)
-	if failed != nil {
-		return failed
+	if pngToo {
+		img := vgimg.NewWith(vgimg.UseWH(d.w, d.h), vgimg.UseDPI(figureDPI))
+		render(img)
+		if failed != nil {
+			return failed
+		}
+		if err := writeTo(filepath.Join(dir, "figures", stem+".png"), vgimg.PngCanvas{Canvas: img}); err != nil {
+			return err
+		}
 	}
-	if err := writeTo(filepath.Join(dir, "figures", stem+".png"), vgimg.PngCanvas{Canvas: img}); err != nil {
-		return err
+	if !svgToo {
+		return nil
 	}
 	svg := vgsvg.New(d.w, d.h)
 	render(svg)
+	if failed != nil {
+		return failed
+	}
 	return writeTo(filepath.Join(dir, "figures", stem+".svg"), svg)
 }
 
@@ -143,17 +154,21 @@ func writeTo(path string, w io.WriterTo) error {
 	return f.Close()
 }
 
-// saveFigures renders every figure of the document into dir/figures.
+// saveFigures renders every figure of the document into dir/figures, as
+// PNG (for the PDF and the Markdown) and SVG (for the HTML).
 //
 // Each figure is one pixel wider than the one before. fpdf writes image
 // objects sorted by pixel width and leaves ties in map order, which would
 // make the PDF's bytes differ from run to run; distinct widths make the
 // order, and so the file, reproducible. One pixel at 300 dpi is 0.08 mm.
-func (d *Document) saveFigures(dir string) error {
+func (d *Document) saveFigures(dir string) error { return d.saveFiguresAs(dir, true, true) }
+
+// saveFiguresAs renders the PNG files, the SVG files or both.
+func (d *Document) saveFiguresAs(dir string, pngToo, svgToo bool) error {
 	for i, job := range d.figures {
 		dr := job.drawing()
 		dr.w += vg.Length(i) * vg.Inch / figureDPI
-		if err := dr.save(dir, job.fig.Stem); err != nil {
+		if err := dr.saveAs(dir, job.fig.Stem, pngToo, svgToo); err != nil {
 			return fmt.Errorf("figure %s: %w", job.fig.Stem, err)
 		}
 	}

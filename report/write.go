@@ -60,7 +60,8 @@ func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats 
 		return nil
 	}
 	d := BuildDocument(audit, meta, opt)
-	if err := d.saveFigures(dir); err != nil {
+	// PNG for the PDF and the Markdown, SVG for the HTML: only what is asked.
+	if err := d.saveFiguresAs(dir, formats.Markdown || formats.PDF, formats.HTML); err != nil {
 		return err
 	}
 	md, err := RenderMarkdown(d)

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -69,7 +70,10 @@ func TestBadInputs(t *testing.T) {
 			var stdout, stderr bytes.Buffer
 			args := append([]string{"run", filepath.Base(abs), "--out", out}, extra...)
 			if ok {
-				args = append(args, "--format", "md", "--bootstrap", "20", "--permutations", "20", "--fail-on", "never")
+				args = append(args, "--bootstrap", "20", "--permutations", "20", "--fail-on", "never")
+				if !slices.Contains(extra, "--format") {
+					args = append(args, "--format", "none")
+				}
 			}
 			status := mainWithArgs(args, &stdout, &stderr)
 			msg := stderr.String()

@@ -90,7 +90,7 @@ func TestOutputFolderRules(t *testing.T) {
 	dir := t.TempDir()
 	data := filepath.Join("..", "..", "testdata", "datasets", "usarrests.csv")
 	out := filepath.Join(dir, "result")
-	if status, _, stderr := runPCQC(t, "run", data, "--out", out); status != exitOK {
+	if status, _, stderr := runPCQC(t, "run", data, "--out", out, "--format", "none"); status != exitOK {
 		t.Fatalf("first run: %d %s", status, stderr)
 	}
 	// A second run into the same, now non-empty folder is refused.
@@ -99,7 +99,7 @@ func TestOutputFolderRules(t *testing.T) {
 		t.Errorf("occupied folder: status %d, %q", status, stderr)
 	}
 	// With --force it is replaced; the new options show in summary.json.
-	if status, _, stderr := runPCQC(t, "run", "--force", data, "--out", out, "--scale", "none"); status != exitOK {
+	if status, _, stderr := runPCQC(t, "run", "--force", data, "--out", out, "--scale", "none", "--format", "none"); status != exitOK {
 		t.Fatalf("--force: %d %s", status, stderr)
 	}
 	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
@@ -118,7 +118,7 @@ func TestDefaultOutputFolderIsBesideTheWorkingDirectory(t *testing.T) {
 	wd, _ := os.Getwd()
 	os.Chdir(dir)
 	defer os.Chdir(wd)
-	if status, _, stderr := runPCQC(t, "run", data, "--group", "species"); status != exitOK {
+	if status, _, stderr := runPCQC(t, "run", data, "--group", "species", "--format", "none"); status != exitOK {
 		t.Fatalf("%d %s", status, stderr)
 	}
 	if _, err := os.Stat(filepath.Join(dir, "iris-pcqc", "scores.csv")); err != nil {
@@ -184,7 +184,7 @@ func TestFailOnSetsExitStatus(t *testing.T) {
 	}{{"fail", exitOK}, {"warn", exitChecks}, {"never", exitOK}}
 	for _, c := range cases {
 		out := filepath.Join(t.TempDir(), "demo")
-		status, _, stderr := runPCQC(t, "demo", "--out", out, "--fail-on", c.failOn, "--permutations", "50")
+		status, _, stderr := runPCQC(t, "demo", "--out", out, "--fail-on", c.failOn, "--permutations", "50", "--format", "none")
 		if status != c.want {
 			t.Errorf("--fail-on %s: status %d, want %d (%s)", c.failOn, status, c.want, stderr)
 		}
@@ -209,10 +209,10 @@ func TestFailOnSetsExitStatus(t *testing.T) {
 		b.WriteString("\n")
 	}
 	os.WriteFile(data, []byte(b.String()), 0o644)
-	if status, _, stderr := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o1")); status != exitChecks {
+	if status, _, stderr := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o1"), "--format", "none"); status != exitChecks {
 		t.Errorf("noise with default --fail-on: status %d (%s)", status, stderr)
 	}
-	if status, _, stderr := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o2"), "--fail-on", "never"); status != exitOK {
+	if status, _, stderr := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o2"), "--fail-on", "never", "--format", "none"); status != exitOK {
 		t.Errorf("noise with --fail-on never: status %d (%s)", status, stderr)
 	}
 	if status, _, _ := runPCQC(t, "run", data, "--out", filepath.Join(dir, "o3"), "--fail-on", "sometimes"); status != exitUsage {
@@ -225,7 +225,7 @@ func TestFailOnSetsExitStatus(t *testing.T) {
 func TestThreadsDoNotChangeOutputs(t *testing.T) {
 	dir := t.TempDir()
 	for _, threads := range []string{"1", "2"} {
-		if status, _, stderr := runPCQC(t, "demo", "--out", filepath.Join(dir, threads), "--threads", threads, "--bootstrap", "100", "--seed", "7"); status != exitOK {
+		if status, _, stderr := runPCQC(t, "demo", "--out", filepath.Join(dir, threads), "--threads", threads, "--bootstrap", "100", "--seed", "7", "--format", "none"); status != exitOK {
 			t.Fatalf("threads %s: %d %s", threads, status, stderr)
 		}
 	}
@@ -244,7 +244,7 @@ func TestThreadsDoNotChangeOutputs(t *testing.T) {
 
 func TestBootstrapOffSkipsStability(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "o")
-	if status, _, stderr := runPCQC(t, "demo", "--out", out, "--bootstrap", "0"); status != exitOK {
+	if status, _, stderr := runPCQC(t, "demo", "--out", out, "--bootstrap", "0", "--format", "none"); status != exitOK {
 		t.Fatalf("%d %s", status, stderr)
 	}
 	if _, err := os.Stat(filepath.Join(out, "stability.csv")); !os.IsNotExist(err) {

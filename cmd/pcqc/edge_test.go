@@ -83,7 +83,7 @@ func TestNumericalEdgeCases(t *testing.T) {
 			dir := t.TempDir()
 			data := edgeTable(t, dir, "data.csv", c.n, c.p, c.f)
 			out := filepath.Join(dir, "out")
-			args := append([]string{"run", data, "--out", out, "--bootstrap", "30", "--permutations", "30", "--format", "md,html"}, c.args...)
+			args := append([]string{"run", data, "--out", out, "--bootstrap", "30", "--permutations", "30", "--format", "html"}, c.args...)
 			status, _, stderr := runPCQC(t, args...)
 			if c.fail != "" {
 				if status != exitUsage || !strings.Contains(stderr, c.fail) {
@@ -99,7 +99,7 @@ func TestNumericalEdgeCases(t *testing.T) {
 			if err := json.Unmarshal(b, &summary); err != nil {
 				t.Fatalf("summary.json: %v", err)
 			}
-			for _, name := range []string{"summary.json", "report.md", "variance.csv", "loadings.csv", "scores.csv", "samples.csv"} {
+			for _, name := range []string{"summary.json", "report.html", "variance.csv", "loadings.csv", "scores.csv", "samples.csv"} {
 				content, err := os.ReadFile(filepath.Join(out, name))
 				if err != nil {
 					t.Fatalf("%s: %v", name, err)
