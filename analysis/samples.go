@@ -97,13 +97,13 @@ func ComputeSampleStats(z *mat.Dense, v, t mat.Matrix, eigenvalues []float64) Sa
 			}
 		}
 	}
-	s.Limits = ModelLimits(n, k, eigenvalues)
+	s.Limits = TrainingLimits(n, k, eigenvalues)
 	return s
 }
 
-// ModelLimits returns the control limits for the samples of a model with k
+// TrainingLimits returns the control limits for the samples of a model with k
 // components built from n samples with the given eigenvalues (all of them).
-func ModelLimits(n, k int, eigenvalues []float64) Limits {
+func TrainingLimits(n, k int, eigenvalues []float64) Limits {
 	var l Limits
 	l.T2_95, l.T2_99 = T2LimitModel(n, k, Conf95), T2LimitModel(n, k, Conf99)
 	var discarded []float64

@@ -55,6 +55,15 @@ type ReadOptions struct {
 	// (for semicolon- or tab-separated exports of spreadsheets set to a
 	// language that writes 3,14).
 	Decimal byte
+
+	// For new samples scored against a saved model (apply): MinRows is the
+	// fewest rows accepted (default 3, which a PCA needs); KeepConstant
+	// keeps constant columns (a stuck sensor is what monitoring must see);
+	// ImputeWith, one value per column of Columns, replaces missing cells
+	// under MissingMean instead of the batch's own means.
+	MinRows      int
+	KeepConstant bool
+	ImputeWith   []float64
 }
 
 // DroppedVariable is a column that was a candidate variable but is not used.
@@ -588,10 +597,15 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 						cnt++
 					}
 				}
-				if cnt == 0 {
+				var mean float64
+				switch {
+				case opt.ImputeWith != nil:
+					mean = opt.ImputeWith[k]
+				case cnt == 0:
 					return nil, fail(0, varCols[k]+1, names[varCols[k]], "", "every value of this column is missing; drop it with --drop:")
+				default:
+					mean = sum / float64(cnt)
 				}
-				mean := sum / float64(cnt)
 				for i := 0; i < n; i++ {
 					if math.IsNaN(values[i*p+k]) {
 						values[i*p+k] = mean
@@ -602,18 +616,25 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		}
 	}
 	n := len(ids)
-	if n < 3 {
-		reason := fmt.Sprintf("fewer than 3 usable rows (%d read", rowsRead)
+	minRows := opt.MinRows
+	if minRows <= 0 {
+		minRows = 3
+	}
+	if n < minRows {
+		reason := fmt.Sprintf("fewer than %d usable rows (%d read", minRows, rowsRead)
 		if t.RowsDropped > 0 {
 			reason += fmt.Sprintf(", %d dropped for missing values", t.RowsDropped)
 		}
-		return nil, fail(0, 0, "", "", reason+"); a PCA needs at least 3 samples")
+		if minRows == 3 {
+			return nil, fail(0, 0, "", "", reason+"); a PCA needs at least 3 samples")
+		}
+		return nil, fail(0, 0, "", "", reason+")")
 	}
 
 	// Constant columns carry no component and cannot be unit-scaled.
 	keepCols := make([]int, 0, p)
 	for k := 0; k < p; k++ {
-		if lo, hi, ok := columnRange(values, n, p, k); ok && isConstant(lo, hi) {
+		if lo, hi, ok := columnRange(values, n, p, k); ok && isConstant(lo, hi) && !opt.KeepConstant {
 			t.DroppedVariables = append(t.DroppedVariables, DroppedVariable{
 				Name:   names[varCols[k]],
 				Reason: fmt.Sprintf("constant: every value is %s", strconv.FormatFloat(lo, 'g', -1, 64)),
@@ -627,7 +648,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 			t.DroppedVariables = append(t.DroppedVariables, DroppedVariable{Name: names[j], Reason: "left out with --drop"})
 		}
 	}
-	if len(keepCols) < 2 {
+	if len(keepCols) < 2 && !opt.KeepConstant {
 		reason := fmt.Sprintf("fewer than 2 variables to analyse (%d candidate", p)
 		if p != 1 {
 			reason += "s"
@@ -753,4 +774,38 @@ func TableFromMatrix(name string, x *mat.Dense, variables, ids []string) *Table 
 	}
 	return &Table{File: name, X: x, Variables: variables, IDs: ids, Lines: lines,
 		RowsRead: n, Transform: TransformNone, Missing: MissingFail}
+}
+
+// ReadHeader returns the column names of a table file, as ReadTable would
+// name them, so that callers can choose columns before reading.
+func ReadHeader(path string, delimiter byte) ([]string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+	}
+	defer f.Close()
+	br := bufio.NewReaderSize(f, 1<<20)
+	if head, _ := br.Peek(3); len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF {
+		br.Discard(3)
+	}
+	if delimiter == 0 {
+		peek, _ := br.Peek(br.Size())
+		if i := bytes.IndexByte(peek, '\n'); i >= 0 {
+			peek = peek[:i]
+		}
+		if delimiter = detectDelimiter(peek); delimiter == 0 {
+			delimiter = ','
+		}
+	}
+	header, err := newRecordReader(br, delimiter).read()
+	if err != nil {
+		return nil, &InputError{File: path, Reason: "cannot read the header"}
+	}
+	names := make([]string, len(header))
+	for j, h := range header {
+		if names[j] = strings.TrimSpace(string(h)); names[j] == "" {
+			names[j] = fmt.Sprintf("column_%d", j+1)
+		}
+	}
+	return names, nil
 }

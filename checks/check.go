@@ -62,9 +62,19 @@ type Result struct {
 
 // Input is everything the checks may read.
 type Input struct {
-	Run    *analysis.Result
-	Review *analysis.Review // set by review mode only
+	Run    *analysis.Result      // the audit (run, demo, review)
+	Review *analysis.Review      // set by review mode only
+	Apply  *analysis.Application // set by apply mode only; Run is then nil
 }
+
+// Mode says which kind of run a check belongs to.
+type Mode int
+
+const (
+	ModeAudit  Mode = iota // every audit of a table (run, demo, review)
+	ModeReview             // review mode: another person's tables
+	ModeApply              // apply mode: new samples against a saved model
+)
 
 // Check is one entry of the registry.
 type Check struct {
@@ -72,10 +82,11 @@ type Check struct {
 	Title string
 	// Source of the threshold: a publication, or "common practice".
 	Source string
-	// Review marks the checks of review mode, run only when Input.Review
-	// is set.
-	Review bool
-	judge  func(in Input) Result
+	// Mode says when the check runs: audit checks on every audit, review
+	// checks when Input.Review is set, apply checks (and only they) when
+	// Input.Apply is set.
+	Mode  Mode
+	judge func(in Input) Result
 }
 
 // Run evaluates the check, filling in its identity.
@@ -146,13 +157,21 @@ var Registry = []Check{
 	dominance,
 	// Stability: would the loadings come out the same on another sample?
 	loadingStability,
+	// Apply mode: new samples against a saved model.
+	applyVariables,
+	applyShift,
+	applyOutliersT2,
+	applyOutliersQ,
 }
 
 // RunAll evaluates every registered check.
 func RunAll(in Input) []Result {
 	out := make([]Result, 0, len(Registry))
 	for _, c := range Registry {
-		if c.Review && in.Review == nil {
+		switch {
+		case in.Apply != nil && c.Mode != ModeApply,
+			in.Apply == nil && c.Mode == ModeApply,
+			c.Mode == ModeReview && in.Review == nil:
 			continue
 		}
 		out = append(out, c.Run(in))

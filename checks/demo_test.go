@@ -56,7 +56,7 @@ func TestEveryCheckReportsAllFields(t *testing.T) {
 	_, results := demoResult(t)
 	var audit []Check
 	for _, c := range Registry {
-		if !c.Review {
+		if c.Mode == ModeAudit {
 			audit = append(audit, c)
 		}
 	}

@@ -9,7 +9,7 @@ var reviewCentering = Check{
 	ID:     "review-centering",
 	Title:  "Their data were mean-centred",
 	Source: "principal angles (Björck & Golub 1973) between their loadings and centred and uncentred recomputations; score means (common practice: beyond 0.1 sd)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		c, u := rv.Variants[rv.BestCentred], rv.Variants[rv.BestUncentred]

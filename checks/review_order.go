@@ -9,7 +9,7 @@ var reviewOrder = Check{
 	ID:     "review-order",
 	Title:  "Their components are in order of variance",
 	Source: "fact of the trade (components are numbered by decreasing variance)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		names := rv.Loadings.Components

@@ -10,7 +10,7 @@ var reviewOrthonormality = Check{
 	ID:     "review-orthonormality",
 	Title:  "Their loadings are orthonormal",
 	Source: "fact of the trade; allowance for printed precision 2√p · half a unit of the last printed digit (common practice)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		p, _ := rv.Loadings.V.Dims()

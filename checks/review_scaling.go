@@ -10,7 +10,7 @@ var reviewScaling = Check{
 	ID:     "review-scaling",
 	Title:  "Their scaling is the stated one",
 	Source: "the preprocessing variant with the smallest largest principal angle; a match within 5° (common practice)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		best := rv.Variants[rv.Best]

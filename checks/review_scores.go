@@ -10,7 +10,7 @@ var reviewScores = Check{
 	ID:     "review-scores",
 	Title:  "Their scores follow from their loadings",
 	Source: "relative residual ‖t − c·Zv‖/‖t‖ per component: pass ≤ 0.01, fail > 0.05 (common practice)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		limit := fmt.Sprintf("≤ %g (fail above %g)", ScoreResidualPass, ScoreResidualFail)

@@ -9,7 +9,7 @@ var reviewSubspace = Check{
 	ID:     "review-subspace",
 	Title:  "Their components span the recomputed ones",
 	Source: "largest principal angle (Björck & Golub 1973): pass < 1°, warn < 5°, fail otherwise (common practice); Tucker's congruence per component",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		best := rv.Variants[rv.Best]

@@ -6,7 +6,7 @@ var reviewUncorrelated = Check{
 	ID:     "review-uncorrelated",
 	Title:  "Their scores are uncorrelated",
 	Source: "fact of the trade; allowance for printed precision: pass ≤ 0.02, fail > 0.1 (common practice)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		limit := fmt.Sprintf("≤ %g (fail above %g)", ReviewCorrelationPass, ReviewCorrelationFail)

@@ -10,7 +10,7 @@ var reviewVariance = Check{
 	ID:     "review-variance",
 	Title:  "Their shares of variance are right",
 	Source: "difference in percentage points: warn above 0.5, fail above 2 (common practice)",
-	Review: true,
+	Mode:   ModeReview,
 	judge: func(in Input) Result {
 		rv := in.Review
 		limit := fmt.Sprintf("≤ %g points (fail above %g)", VarianceWarnPP, VarianceFailPP)

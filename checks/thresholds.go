@@ -111,3 +111,11 @@ const (
 )
 
 const sourceReviewPractice = "common practice"
+
+// Apply mode.
+const (
+	// ShiftLimit: a new batch whose mean lies more than 3 training standard
+	// deviations from the training mean has drifted or changed units
+	// (common practice: the 3-sigma rule of control charts, Shewhart 1931).
+	ShiftLimit = 3.0
+)

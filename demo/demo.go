@@ -31,6 +31,11 @@
 //     ordinary. Sample ids ST07-2025-03, ST07-2025-04, ST08-2025-03.
 //   - A unit mix-up: the July 2024 water temperature of ST05 was entered in
 //     degrees Fahrenheit. Sample id ST05-2024-07.
+//
+// A second, later batch (September 2025 to February 2026, the same twelve
+// stations, 72 samples) follows the same model but for one planted drift:
+// from October 2025 on, the conductivity probes read 450 µS/cm high after a
+// faulty recalibration. pcqc demo applies the survey's model to it.
 package demo
 
 import (
@@ -67,6 +72,14 @@ var Variables = []string{
 
 // Processes is the number of planted latent processes.
 const Processes = 3
+
+// DriftVariable, DriftFrom and DriftOffset describe the planted drift of
+// the later batch: from that month on the variable reads DriftOffset high.
+const (
+	DriftVariable = "conductivity_uS_cm"
+	DriftFrom     = "2025-10"
+	DriftOffset   = 450.0
+)
 
 // SpillSamples and UnitMixUpSample are the planted anomalies in the survey.
 var (
@@ -131,10 +144,16 @@ func summer(m int) float64 { // 0 in mid-January, 1 in mid-July
 
 // Survey returns the main survey table (240 samples) as CSV bytes.
 func Survey() []byte {
-	return generate(months(month{2024, 1}, 20), 20240601)
+	return generate(months(month{2024, 1}, 20), 20240601, false)
 }
 
-func generate(visits []month, seed uint64) []byte {
+// LaterBatch returns the later batch (72 samples, September 2025 to
+// February 2026) as CSV bytes, with the planted conductivity drift.
+func LaterBatch() []byte {
+	return generate(months(month{2025, 9}, 6), 20251201, true)
+}
+
+func generate(visits []month, seed uint64, drift bool) []byte {
 	rng := rand.New(rand.NewPCG(seed, 0x9e3779b97f4a7c15))
 	norm := rng.NormFloat64
 	var b bytes.Buffer
@@ -173,6 +192,9 @@ func generate(visits []month, seed uint64) []byte {
 				oxygen = 4.0 + 0.8*rng.Float64()
 			case id == UnitMixUpSample:
 				temp = temp*9/5 + 32
+			}
+			if drift && m.String() >= DriftFrom {
+				conductivity += DriftOffset
 			}
 
 			fmt.Fprintf(&b, "%s,%s", id, st.code)

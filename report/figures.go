@@ -161,11 +161,11 @@ func writeTo(path string, w io.WriterTo) error {
 // objects sorted by pixel width and leaves ties in map order, which would
 // make the PDF's bytes differ from run to run; distinct widths make the
 // order, and so the file, reproducible. One pixel at 300 dpi is 0.08 mm.
-func (d *Document) saveFigures(dir string) error { return d.saveFiguresAs(dir, true, true) }
+func (d *Document) saveFigures(dir string) error { return saveFigures(d.figures, dir, true, true) }
 
-// saveFiguresAs renders the PNG files, the SVG files or both.
-func (d *Document) saveFiguresAs(dir string, pngToo, svgToo bool) error {
-	for i, job := range d.figures {
+// saveFigures renders the PNG files, the SVG files or both.
+func saveFigures(figures []figureJob, dir string, pngToo, svgToo bool) error {
+	for i, job := range figures {
 		dr := job.drawing()
 		dr.w += vg.Length(i) * vg.Inch / figureDPI
 		if err := dr.saveAs(dir, job.fig.Stem, pngToo, svgToo); err != nil {
@@ -392,7 +392,12 @@ func flaggedSamples(res *analysis.Result) []int {
 const labelledSamples = 15
 
 func sampleLabels(res *analysis.Result, x, y []float64) *plotter.Labels {
-	flagged := flaggedSamples(res)
+	return labelPoints(res.Table.IDs, flaggedSamples(res), x, y)
+}
+
+// labelPoints names the flagged points (most extreme first, at most
+// labelledSamples of them).
+func labelPoints(ids []string, flagged []int, x, y []float64) *plotter.Labels {
 	if len(flagged) > labelledSamples {
 		flagged = flagged[:labelledSamples]
 	}
@@ -400,7 +405,7 @@ func sampleLabels(res *analysis.Result, x, y []float64) *plotter.Labels {
 	var names []string
 	for _, i := range flagged {
 		lx, ly = append(lx, x[i]), append(ly, y[i])
-		names = append(names, shorten(res.Table.IDs[i], maxLabelRunes))
+		names = append(names, shorten(ids[i], maxLabelRunes))
 	}
 	if len(names) == 0 {
 		return nil
@@ -565,9 +570,14 @@ func biplotFigure(res *analysis.Result) drawing {
 
 func t2qFigure(res *analysis.Result) drawing {
 	s := res.Samples
-	pl := newPlot("Hotelling T² against Q residual", "Hotelling T²", "Q residual")
+	return t2qDrawing("Hotelling T² against Q residual", s.T2, s.Q, s.Limits, flaggedSamples(res), res.Table.IDs)
+}
+
+// t2qDrawing plots T² against Q with the 95 % and 99 % limits, flagged
+// samples marked and named.
+func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []int, ids []string) drawing {
+	pl := newPlot(title, "Hotelling T²", "Q residual")
 	pl.Add(guides{})
-	l := s.Limits
 	if !math.IsNaN(l.T2_95) {
 		pl.Add(refLine{vertical: true, at: l.T2_95, style: lineStyle(accent95, 1, 4, 2), label: "T² 95 %"})
 		pl.Add(refLine{vertical: true, at: l.T2_99, style: lineStyle(accent99, 1), label: "T² 99 %"})
@@ -577,15 +587,15 @@ func t2qFigure(res *analysis.Result) drawing {
 		pl.Add(refLine{at: l.Q99, style: lineStyle(accent99, 1), label: "Q 99 %"})
 	}
 	flagged := map[int]bool{}
-	for _, i := range flaggedSamples(res) {
+	for _, i := range flaggedIdx {
 		flagged[i] = true
 	}
 	var ix, iy, fx, fy []float64
-	for i := range s.T2 {
+	for i := range t2 {
 		if flagged[i] {
-			fx, fy = append(fx, s.T2[i]), append(fy, s.Q[i])
+			fx, fy = append(fx, t2[i]), append(fy, q[i])
 		} else {
-			ix, iy = append(ix, s.T2[i]), append(iy, s.Q[i])
+			ix, iy = append(ix, t2[i]), append(iy, q[i])
 		}
 	}
 	inside, _ := plotter.NewScatter(xy{ix, iy})
@@ -598,7 +608,7 @@ func t2qFigure(res *analysis.Result) drawing {
 		pl.Add(out)
 		pl.Legend.Add("beyond a 99 % limit", out)
 	}
-	if lab := sampleLabels(res, s.T2, s.Q); lab != nil {
+	if lab := labelPoints(ids, flaggedIdx, t2, q); lab != nil {
 		pl.Add(lab)
 	}
 	pl.X.Min, pl.Y.Min = 0, 0

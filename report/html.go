@@ -27,7 +27,7 @@ func parseMarkdown(src []byte) ast.Node {
 
 // RenderHTML renders the parsed report as a self-contained page: the CSS is
 // inline and the figures are the SVG files beside the report.
-func RenderHTML(src []byte, doc ast.Node, d *Document) ([]byte, error) {
+func RenderHTML(src []byte, doc ast.Node, d Page) ([]byte, error) {
 	// The Markdown names the PNG figures (for the PDF and for Markdown
 	// viewers); the HTML page uses their SVG twins.
 	ast.Walk(doc, func(n ast.Node, entering bool) (ast.WalkStatus, error) {
@@ -50,7 +50,7 @@ func RenderHTML(src []byte, doc ast.Node, d *Document) ([]byte, error) {
 	err = page.Execute(&out, struct {
 		Title, Version, Date, ShortHash string
 		Body                            template.HTML
-	}{d.Title, d.Version, d.Date, shortHash(d.Data.SHA256), template.HTML(body.String())})
+	}{d.Title, d.Version, d.Date, shortHash(d.SHA256), template.HTML(body.String())})
 	return out.Bytes(), err
 }
 

@@ -102,7 +102,10 @@ func markdownTable(header []string, rows [][]string) string {
 }
 
 // RenderMarkdown fills the report template with the document.
-func RenderMarkdown(d *Document) ([]byte, error) {
+func RenderMarkdown(d *Document) ([]byte, error) { return renderTemplate("report.md.tmpl", d) }
+
+// renderTemplate fills one of the Markdown templates.
+func renderTemplate(name string, data any) ([]byte, error) {
 	figureNo := 0
 	funcs := template.FuncMap{
 		"md":    escapeMarkdown,
@@ -127,12 +130,12 @@ func RenderMarkdown(d *Document) ([]byte, error) {
 			return fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
 		},
 	}
-	t, err := template.New("report.md.tmpl").Funcs(funcs).ParseFS(templates.FS, "report.md.tmpl")
+	t, err := template.New(name).Funcs(funcs).ParseFS(templates.FS, name)
 	if err != nil {
 		return nil, err
 	}
 	var b bytes.Buffer
-	if err := t.Execute(&b, d); err != nil {
+	if err := t.Execute(&b, data); err != nil {
 		return nil, err
 	}
 	return b.Bytes(), nil

@@ -66,6 +66,12 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{lorenzoseva2006, author = {Lorenzo-Seva, Urbano and ten Berge, Jos M. F.}, title = {Tucker's congruence coefficient as a meaningful index of factor similarity}, journal = {Methodology}, volume = {2}, number = {2}, pages = {57--64}, year = {2006}}`},
 	"schonemann1966": {Citation: "Schönemann, P. H. (1966). A generalized solution of the orthogonal Procrustes problem. Psychometrika 31: 1–10.",
 		BibTeX: `@article{schonemann1966, author = {Sch{\"o}nemann, Peter H.}, title = {A generalized solution of the orthogonal {Procrustes} problem}, journal = {Psychometrika}, volume = {31}, number = {1}, pages = {1--10}, year = {1966}}`},
+	"westerhuis2000": {Citation: "Westerhuis, J. A., Gurden, S. P. & Smilde, A. K. (2000). Generalized contribution plots in multivariate statistical process monitoring. Chemometrics and Intelligent Laboratory Systems 51: 95–114.",
+		BibTeX: `@article{westerhuis2000, author = {Westerhuis, Johan A. and Gurden, Stephen P. and Smilde, Age K.}, title = {Generalized contribution plots in multivariate statistical process monitoring}, journal = {Chemometrics and Intelligent Laboratory Systems}, volume = {51}, number = {1}, pages = {95--114}, year = {2000}}`},
+	"miller1998": {Citation: "Miller, P., Swanson, R. E. & Heckler, C. E. (1998). Contribution plots: a missing link in multivariate quality control. Applied Mathematics and Computer Science 8: 775–792.",
+		BibTeX: `@article{miller1998, author = {Miller, Paige and Swanson, Ronald E. and Heckler, Charles E.}, title = {Contribution plots: a missing link in multivariate quality control}, journal = {Applied Mathematics and Computer Science}, volume = {8}, number = {4}, pages = {775--792}, year = {1998}}`},
+	"shewhart1931": {Citation: "Shewhart, W. A. (1931). Economic Control of Quality of Manufactured Product. Van Nostrand, New York.",
+		BibTeX: `@book{shewhart1931, author = {Shewhart, Walter A.}, title = {Economic Control of Quality of Manufactured Product}, publisher = {Van Nostrand}, address = {New York}, year = {1931}}`},
 	"gabriel1971": {Citation: "Gabriel, K. R. (1971). The biplot graphic display of matrices with application to principal component analysis. Biometrika 58: 453–467.",
 		BibTeX: `@article{gabriel1971, author = {Gabriel, K. Ruben}, title = {The biplot graphic display of matrices with application to principal component analysis}, journal = {Biometrika}, volume = {58}, number = {3}, pages = {453--467}, year = {1971}}`},
 }

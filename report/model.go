@@ -202,26 +202,12 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	}
 
 	// Verdict and checks.
-	verdict := checks.Verdict(results)
-	counts := map[checks.Status]int{}
-	for _, r := range results {
-		counts[r.Status]++
-		d.Checks = append(d.Checks, CheckRow{
-			ID: r.ID, Title: r.Title, Word: statusWord(r.Status), Symbol: r.Status.Symbol(),
-			Measured: formatMeasure(r.Value), Limit: formatMeasure(r.Limit),
-			Meaning: firstSentence(r.Message), Message: r.Message, Source: r.Source,
-		})
-	}
-	d.Verdict = VerdictBlock{
-		Word: strings.ToUpper(string(verdict)), Symbol: verdict.Symbol(),
-		Counts: fmt.Sprintf("%d pass, %d warn, %d fail, %d skip", counts[checks.Pass], counts[checks.Warn], counts[checks.Fail], counts[checks.Skip]),
-	}
-	switch verdict {
-	case checks.Pass:
+	d.Verdict, d.Checks = verdictBlock(results)
+	if checks.Verdict(results) == checks.Pass {
 		d.Verdict.Sentence = "Every check passed: the decomposition is correct and no diagnostic calls for attention."
-	case checks.Warn:
+	} else if checks.Verdict(results) == checks.Warn {
 		d.Verdict.Sentence = "The decomposition is correct, but some diagnostics call for attention before the results are interpreted; see the warnings below."
-	case checks.Fail:
+	} else {
 		d.Verdict.Sentence = "At least one check failed: the results should not be interpreted until the failing checks are understood."
 	}
 

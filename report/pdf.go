@@ -55,9 +55,22 @@ type pdfWriter struct {
 // are read from dir/figures). The same document and date give the same
 // bytes: the creation and modification dates are fixed and the catalogue
 // is sorted.
-func RenderPDF(src []byte, doc ast.Node, d *Document, dir string) ([]byte, error) {
-	out, _, err := renderPDF(src, doc, d, dir)
+func RenderPDF(src []byte, doc ast.Node, page Page, dir string) ([]byte, error) {
+	out, _, err := renderPDF(src, doc, page, dir)
 	return out, err
+}
+
+// Page is what every page of a rendering shows beyond the Markdown: the
+// document's title, author, date and version for the metadata, and the
+// input file and its hash for the footer.
+type Page struct {
+	Title, Author, Date, Version string
+	File, SHA256                 string
+}
+
+// page returns the page information of an audit document.
+func (d *Document) page() Page {
+	return Page{Title: d.Title, Author: d.Author, Date: d.Date, Version: d.Version, File: d.Data.File, SHA256: d.Data.SHA256}
 }
 
 // pdfStats describes a rendered PDF, for tests.
@@ -65,7 +78,7 @@ type pdfStats struct {
 	headerRepeats, images int
 }
 
-func renderPDF(src []byte, doc ast.Node, d *Document, dir string) ([]byte, pdfStats, error) {
+func renderPDF(src []byte, doc ast.Node, d Page, dir string) ([]byte, pdfStats, error) {
 	w, err := newPDFWriter(src, d, dir)
 	if err != nil {
 		return nil, pdfStats{}, err
@@ -91,7 +104,7 @@ func reportTime(date string) time.Time {
 	return t.UTC()
 }
 
-func newPDFWriter(src []byte, d *Document, dir string) (*pdfWriter, error) {
+func newPDFWriter(src []byte, d Page, dir string) (*pdfWriter, error) {
 	pdf := fpdf.New("P", "mm", "A4", "")
 	pdf.SetCatalogSort(true)
 	stamp := reportTime(d.Date)
@@ -111,7 +124,7 @@ func newPDFWriter(src []byte, d *Document, dir string) (*pdfWriter, error) {
 	pdf.SetCellMargin(0) // padding is the writer's business
 	pdf.SetAutoPageBreak(true, pdfMargin+4)
 	pdf.AliasNbPages("{nb}")
-	footer := fmt.Sprintf("pcqc %s · %s · input SHA-256 %s", d.Version, d.Data.File, shortHash(d.Data.SHA256))
+	footer := fmt.Sprintf("pcqc %s · %s · input SHA-256 %s", d.Version, d.File, shortHash(d.SHA256))
 	pdf.SetFooterFunc(func() {
 		pdf.SetY(-pdfMargin + 4)
 		pdf.SetFont("sans", "", 7)

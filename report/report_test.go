@@ -265,7 +265,7 @@ func TestLongTablesInPDF(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	pdf, stats, err := renderPDF(md, parseMarkdown(md), d, dir)
+	pdf, stats, err := renderPDF(md, parseMarkdown(md), d.page(), dir)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -282,7 +282,7 @@ func TestLongTablesInPDF(t *testing.T) {
 
 func TestWrapCellKeepsTextInside(t *testing.T) {
 	d := &Document{Title: "t", Date: "2026-01-02", Version: "test", Data: DataBlock{SHA256: "00"}}
-	w, err := newPDFWriter(nil, d, t.TempDir())
+	w, err := newPDFWriter(nil, d.page(), t.TempDir())
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -22,13 +22,14 @@ func rgb(hex uint32) color.RGBA {
 }
 
 var (
-	inkColor   = rgb(0x2B2F36) // axes, text
-	guideColor = rgb(0xE4E6EA) // horizontal guides
-	mutedColor = rgb(0x8A9099) // secondary lines, unflagged points
-	accent95   = rgb(0xC9843A) // 95 % limits
-	accent99   = rgb(0x9C2F22) // 99 % limits, flagged samples
-	mainColor  = rgb(0x1F4E8C) // the observed series
-	barColor   = rgb(0x8FB0DB) // bars: light enough for dark whiskers
+	inkColor      = rgb(0x2B2F36) // axes, text
+	guideColor    = rgb(0xE4E6EA) // horizontal guides
+	mutedColor    = rgb(0x8A9099) // secondary lines, unflagged points
+	trainingColor = rgb(0xC3C8CF) // training samples behind new ones
+	accent95      = rgb(0xC9843A) // 95 % limits
+	accent99      = rgb(0x9C2F22) // 99 % limits, flagged samples
+	mainColor     = rgb(0x1F4E8C) // the observed series
+	barColor      = rgb(0x8FB0DB) // bars: light enough for dark whiskers
 
 	// groupPalette, ordered so that neighbours differ most in lightness.
 	groupPalette = []color.RGBA{

@@ -60,12 +60,21 @@ func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats 
 		return nil
 	}
 	d := BuildDocument(audit, meta, opt)
-	// PNG for the PDF and the Markdown, SVG for the HTML: only what is asked.
-	if err := d.saveFiguresAs(dir, formats.Markdown || formats.PDF, formats.HTML); err != nil {
-		return err
-	}
 	md, err := RenderMarkdown(d)
 	if err != nil {
+		return err
+	}
+	if err := writeRenderings(dir, md, d.figures, d.page(), formats); err != nil {
+		return err
+	}
+	return os.WriteFile(filepath.Join(dir, "references.bib"), BibTeX(d.References), 0o644)
+}
+
+// writeRenderings draws the figures and writes the Markdown source, the PDF
+// and the HTML that formats ask for.
+func writeRenderings(dir string, md []byte, figures []figureJob, page Page, formats Formats) error {
+	// PNG for the PDF and the Markdown, SVG for the HTML: only what is asked.
+	if err := saveFigures(figures, dir, formats.Markdown || formats.PDF, formats.HTML); err != nil {
 		return err
 	}
 	if formats.Markdown {
@@ -76,7 +85,7 @@ func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats 
 	doc := parseMarkdown(md)
 	// The PDF first: the HTML rendering points the image nodes at SVG.
 	if formats.PDF {
-		pdf, err := RenderPDF(md, doc, d, dir)
+		pdf, err := RenderPDF(md, doc, page, dir)
 		if err != nil {
 			return err
 		}
@@ -85,7 +94,7 @@ func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats 
 		}
 	}
 	if formats.HTML {
-		html, err := RenderHTML(md, doc, d)
+		html, err := RenderHTML(md, doc, page)
 		if err != nil {
 			return err
 		}
@@ -93,5 +102,5 @@ func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats 
 			return err
 		}
 	}
-	return os.WriteFile(filepath.Join(dir, "references.bib"), BibTeX(d.References), 0o644)
+	return nil
 }

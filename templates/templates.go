@@ -5,7 +5,8 @@ package templates
 
 import "embed"
 
-// FS holds report.md.tmpl and page.html.tmpl.
+// FS holds report.md.tmpl (an audit), apply.md.tmpl (new samples against a
+// saved model) and page.html.tmpl.
 //
-//go:embed report.md.tmpl page.html.tmpl
+//go:embed report.md.tmpl apply.md.tmpl page.html.tmpl
 var FS embed.FS

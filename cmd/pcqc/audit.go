@@ -19,7 +19,10 @@ type auditJob struct {
 	review *analysis.Review // review mode: the comparison with their tables
 	// adjust, when set, changes the analysis options before the analysis
 	// (review mode keeps their number of components and scaling).
-	adjust   func(*analysis.Options)
+	adjust func(*analysis.Options)
+	// extend, when set, writes more into the output folder after the audit
+	// (the demo's later batch).
+	extend   func(dir string, res *analysis.Result, meta report.Meta, formats report.Formats, ropt report.ReportOptions) error
 	invented string // the demo's note that its data are invented
 	title    string // the default title, when --title is not given
 	read     analysis.ReadOptions
@@ -80,8 +83,16 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 			return err
 		}
 		holdWriting()
+		if err := report.WriteModel(out.Dir(), res, Version); err != nil {
+			return err
+		}
 		if err := report.WriteReport(out.Dir(), audit, meta, ropt, formats); err != nil {
 			return err
+		}
+		if job.extend != nil {
+			if err := job.extend(out.Dir(), res, meta, formats, ropt); err != nil {
+				return err
+			}
 		}
 		return out.Commit()
 	}

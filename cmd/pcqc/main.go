@@ -51,7 +51,7 @@ type command struct {
 var commands []*command
 
 func init() {
-	commands = []*command{runCommand, reviewCommand, demoCommand, versionCommand, helpCommand}
+	commands = []*command{runCommand, reviewCommand, applyCommand, demoCommand, versionCommand, helpCommand}
 }
 
 func lookupCommand(name string) *command {

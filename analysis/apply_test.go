@@ -1,0 +1,188 @@
+package analysis
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"pcqc/internal/synth"
+)
+
+// Acceptance 1: applying a model to its own training data reproduces the
+// training scores (to 1e-10) and the same T² and Q.
+func TestApplyReproducesTraining(t *testing.T) {
+	for _, sc := range Scalings {
+		x, _ := synth.LowRank(synth.RNG(3, 70), 200, 8, []float64{4, 2, 1}, 0.5)
+		synth.Stretch(synth.RNG(4, 70), x)
+		raw := mat.DenseCopyOf(x)
+		res, err := Analyze(TableFromMatrix("train", x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := NewModel(res, "test")
+		app := Apply(m, TableFromMatrix("again", raw, nil, nil))
+		if len(app.Missing) > 0 {
+			t.Fatalf("missing %v", app.Missing)
+		}
+		scale := mat.Norm(res.Scores, math.Inf(1))
+		var d mat.Dense
+		d.Sub(app.Scores, res.Scores)
+		if e := mat.Norm(&d, math.Inf(1)) / scale; e > 1e-10 {
+			t.Errorf("%s: scores differ by %.2g (relative)", sc, e)
+		}
+		for i := range app.T2 {
+			if math.Abs(app.T2[i]-res.Samples.T2[i]) > 1e-9*math.Max(1, res.Samples.T2[i]) ||
+				math.Abs(app.Q[i]-res.Samples.Q[i]) > 1e-9*math.Max(1, res.Samples.Q[i]) {
+				t.Fatalf("%s sample %d: T² %g vs %g, Q %g vs %g", sc, i, app.T2[i], res.Samples.T2[i], app.Q[i], res.Samples.Q[i])
+			}
+		}
+		for _, s := range app.Shift {
+			if math.Abs(s) > 1e-10 {
+				t.Errorf("%s: the training data are shifted from themselves by %g", sc, s)
+			}
+		}
+	}
+}
+
+// Acceptance 2: new samples from the training distribution pass the 95 %
+// new-observation T² limit about 5 % of the time (three binomial standard
+// errors; seeded simulation).
+func TestApplyLimitCalibration(t *testing.T) {
+	const p, n0, n = 6, 100, 4000
+	spectrum := []float64{6, 3, 1.5, 0.5, 0.3, 0.2}
+	for seed := uint64(1); seed <= 3; seed++ {
+		rng := synth.RNG(seed, 71)
+		var qr mat.QR
+		qr.Factorize(synth.Gaussian(rng, p, p))
+		var q mat.Dense
+		qr.QTo(&q)
+		cov := mat.NewSymDense(p, nil)
+		for i := 0; i < p; i++ {
+			for j := i; j < p; j++ {
+				s := 0.0
+				for a := 0; a < p; a++ {
+					s += q.At(i, a) * spectrum[a] * q.At(j, a)
+				}
+				cov.SetSym(i, j, s)
+			}
+		}
+		// The new-observation limit accounts for the uncertainty of a model
+		// built from n0 samples; check it over many training sets.
+		beyond, total := 0, 0
+		for rep := 0; rep < 10; rep++ {
+			train := synth.WithCovariance(rng, n0, cov)
+			res, err := Analyze(TableFromMatrix("train", train, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+			if err != nil {
+				t.Fatal(err)
+			}
+			m := NewModel(res, "test")
+			app := Apply(m, TableFromMatrix("new", synth.WithCovariance(rng, n/10, cov), nil, nil))
+			for _, v := range app.T2 {
+				if v > m.Limits.T2_95 {
+					beyond++
+				}
+				total++
+			}
+		}
+		share := float64(beyond) / float64(total)
+		se := math.Sqrt(0.05 * 0.95 / float64(total))
+		if math.Abs(share-0.05) > 3*se {
+			t.Errorf("seed %d: %.4f of new samples beyond the 95 %% limit, want 0.05 ± %.4f", seed, share, 3*se)
+		}
+	}
+}
+
+// Acceptance 3: a shift planted in one variable is blamed on it by the
+// contributions of the flagged samples; a missing variable is reported.
+func TestApplyBlamesTheShiftedVariable(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(5, 72), 300, 8, []float64{3, 2}, 0.5)
+	res, err := Analyze(TableFromMatrix("train", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := NewModel(res, "test")
+	fresh, _ := synth.LowRank(synth.RNG(5, 72), 300, 8, []float64{3, 2}, 0.5) // same loadings
+	newX := mat.DenseCopyOf(fresh.Slice(0, 60, 0, 8))
+	const shifted = 5
+	sd := res.Prep.SDs[shifted]
+	for i := 30; i < 60; i++ {
+		newX.Set(i, shifted, newX.At(i, shifted)+4*sd)
+	}
+	app := Apply(m, TableFromMatrix("new", newX, nil, nil))
+	if len(app.Flagged) < 20 {
+		t.Fatalf("only %d samples flagged", len(app.Flagged))
+	}
+	for _, c := range app.Contributions {
+		if c.Sample < 30 {
+			continue // an ordinary sample beyond the limit by chance
+		}
+		if worst := argmax(c.Q); worst != shifted {
+			t.Errorf("sample %d: Q blamed on v%d, not v%d", c.Sample, worst+1, shifted+1)
+		}
+		sumT2, sumQ := 0.0, 0.0
+		for j := range c.T2 {
+			sumT2 += c.T2[j]
+			sumQ += c.Q[j]
+		}
+		if math.Abs(sumT2-app.T2[c.Sample]) > 1e-9*app.T2[c.Sample] || math.Abs(sumQ-app.Q[c.Sample]) > 1e-9*app.Q[c.Sample] {
+			t.Errorf("contributions do not add up: %g vs %g, %g vs %g", sumT2, app.T2[c.Sample], sumQ, app.Q[c.Sample])
+		}
+	}
+	if s := app.Shift[shifted]; s < 1.5 {
+		t.Errorf("batch shift of v%d is %.2f sd", shifted+1, s)
+	}
+	// Drop a model variable from the new data.
+	names := []string{"v1", "v2", "v3", "v4", "v5", "v6", "v7", "w8"}
+	app = Apply(m, TableFromMatrix("new", newX, names, nil))
+	if !reflect.DeepEqual(app.Missing, []string{"v8"}) || !reflect.DeepEqual(app.Extra, []string{"w8"}) || app.Scores != nil {
+		t.Errorf("missing %v extra %v", app.Missing, app.Extra)
+	}
+}
+
+func argmax(x []float64) int {
+	best := 0
+	for i, v := range x {
+		if v > x[best] {
+			best = i
+		}
+	}
+	return best
+}
+
+// Acceptance 4: model.json loads back identically; a model of a newer
+// format is refused with a clear message.
+func TestModelRoundTrip(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(6, 73), 80, 5, []float64{2, 1}, 0.5)
+	res, err := Analyze(TableFromMatrix("train", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := NewModel(res, "1.2.3")
+	path := filepath.Join(t.TempDir(), "model.json")
+	if err := m.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	back, err := LoadModel(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(m, back) {
+		t.Errorf("model changed on a round trip:\n%+v\n%+v", m, back)
+	}
+	b, _ := os.ReadFile(path)
+	newer := strings.Replace(string(b), `"format": 1`, `"format": 2`, 1)
+	os.WriteFile(path, []byte(newer), 0o644)
+	if _, err := LoadModel(path); err == nil || !strings.Contains(err.Error(), "newer than the format 1") {
+		t.Errorf("newer format: %v", err)
+	}
+	damaged := strings.Replace(string(b), `"retained": 2`, `"retained": 9`, 1)
+	os.WriteFile(path, []byte(damaged), 0o644)
+	if _, err := LoadModel(path); err == nil || !strings.Contains(err.Error(), "damaged") {
+		t.Errorf("damaged model: %v", err)
+	}
+}

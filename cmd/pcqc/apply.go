@@ -1,0 +1,228 @@
+package main
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"time"
+
+	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis"
+	"pcqc/checks"
+	"pcqc/report"
+)
+
+var applyCommand = &command{
+	name:    "apply",
+	summary: "score new samples against the model of an earlier run",
+	usage:   "pcqc apply AUDIT_DIR NEW_DATA [--out DIR] [--id COL] [--group COL] [flags]",
+	help: `Apply reads model.json from AUDIT_DIR, a folder written by pcqc run, and
+scores the samples of NEW_DATA against it: they are preprocessed with the
+training means and scales (never re-estimated), projected on the training
+loadings, and judged by Hotelling T² against the limit for new observations,
+k(n²−1)/(n(n−k))·F(k, n−k), and by Q against the training limits. For every
+sample beyond a 99 % limit, contributions.csv gives each variable's
+contribution to its T² and its Q; the report shows the new samples on the
+training score plot and the contributions of the worst of them.
+
+The variables are found by name; columns the model does not know are
+ignored. The transform, scaling and components come from the model, so
+--transform, --scale, --components, --columns and --drop are refused, as are
+--bootstrap and --permutations (apply resamples nothing). With
+--missing mean, missing cells get the training means.
+
+The output folder defaults to <NEW_DATA name>-apply.
+
+Input, output and report flags as for run:
+  --id COL, --group COL, --missing fail|drop|mean, --delim D, --decimal MARK,
+  --out DIR, --force, --format LIST, --title TEXT, --author TEXT,
+  --date YYYY-MM-DD, --fail-on LEVEL, --quiet
+`,
+	run: runApply,
+}
+
+// modelFixedFlags are the flags whose meaning the saved model fixes.
+var modelFixedFlags = []string{"transform", "scale", "components", "columns", "drop", "bootstrap", "permutations", "seed"}
+
+func runApply(args []string, stdout, stderr io.Writer) (int, error) {
+	fs := flag.NewFlagSet("apply", flag.ContinueOnError)
+	var f auditFlags
+	f.register(fs, "")
+	pos, err := parseArgs(fs, args)
+	if errors.Is(err, flag.ErrHelp) {
+		printCommandHelp(stdout, lookupCommand("apply"))
+		return exitOK, nil
+	}
+	if err != nil {
+		return 0, err
+	}
+	if err := requireArgs("apply", pos, 2, "an audit folder and a data file"); err != nil {
+		return 0, err
+	}
+	f.set = markSet(fs)
+	for _, name := range modelFixedFlags {
+		if f.set[name] {
+			return 0, usagef("--%s is fixed by the saved model; apply takes the model as it is", name)
+		}
+	}
+	auditDir, data := pos[0], pos[1]
+	if f.out == "" {
+		f.out = analysis.StemName(data) + "-apply"
+	}
+	read, err := f.readOptions()
+	if err != nil {
+		return 0, err
+	}
+	level, err := f.failLevel()
+	if err != nil {
+		return 0, err
+	}
+	formats, ropt, err := f.reportOptions(time.Now())
+	if err != nil {
+		return 0, err
+	}
+	if err := report.CheckTarget(f.out, f.force); err != nil {
+		return 0, usagef("%v", err)
+	}
+	model, err := analysis.LoadModel(filepath.Join(auditDir, "model.json"))
+	if err != nil {
+		return 0, err
+	}
+	t, others, err := readForModel(data, model, read)
+	if err != nil {
+		return 0, err
+	}
+	app := analysis.Apply(model, t)
+	app.Extra = append(app.Extra, others...)
+	run := report.ApplyRun{
+		App:            app,
+		Checks:         checks.RunAll(checks.Input{Apply: app}),
+		TrainingScores: trainingScores(auditDir),
+		AuditDir:       auditDir,
+	}
+	meta := report.Meta{Version: Version, Command: append([]string{"pcqc", "apply"}, args...), Options: f.applyOptions(read, t)}
+
+	out, err := report.Begin(f.out, f.force)
+	if err != nil {
+		return 0, usagef("%v", err)
+	}
+	setActiveOutput(out)
+	defer setActiveOutput(nil)
+	write := func() error {
+		if err := report.WriteApplyTables(out.Dir(), run, meta); err != nil {
+			return err
+		}
+		if err := report.WriteApplyReport(out.Dir(), run, meta, ropt, formats); err != nil {
+			return err
+		}
+		return out.Commit()
+	}
+	if err := write(); err != nil {
+		out.Abort()
+		return 0, &outputError{err}
+	}
+	printApplySummary(stdout, run, out.Target())
+	if level != "" && checks.Reached(run.Checks, level) {
+		return exitChecks, nil
+	}
+	return exitOK, nil
+}
+
+// readForModel reads the new data: the model's variables that the file has
+// (so that other columns, numeric or not, do not get in the way), the
+// model's transform, any number of rows, constant columns kept, and
+// training means for missing cells. It also returns the file's other
+// columns, which are ignored.
+func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*analysis.Table, []string, error) {
+	header, err := analysis.ReadHeader(path, read.Delimiter)
+	if err != nil {
+		return nil, nil, err
+	}
+	index := map[string]int{}
+	for j, v := range m.Variables {
+		index[v] = j
+	}
+	var present []string
+	var means []float64
+	for _, h := range header {
+		if j, ok := index[h]; ok && h != read.IDColumn && h != read.GroupColumn {
+			present = append(present, h)
+			means = append(means, m.Means[j])
+		}
+	}
+	if len(present) == 0 {
+		return nil, nil, &analysis.InputError{File: path, Line: 1, Reason: fmt.Sprintf("none of the model's variables (%s) is a column of the new data", listVariables(m.Variables))}
+	}
+	read.Columns = present
+	read.Transform = m.Transform
+	read.MinRows = 1
+	read.KeepConstant = true
+	read.ImputeWith = means
+	t, err := analysis.ReadTable(path, read)
+	if err != nil {
+		return nil, nil, err
+	}
+	known := map[string]bool{t.IDColumn: true, t.GroupColumn: true}
+	for _, v := range m.Variables {
+		known[v] = true
+	}
+	var others []string
+	for _, h := range header {
+		if !known[h] {
+			others = append(others, h)
+		}
+	}
+	return t, others, nil
+}
+
+func listVariables(v []string) string {
+	if len(v) > 8 {
+		return fmt.Sprintf("%s … and %d more", v[:8], len(v)-8)
+	}
+	return fmt.Sprint(v)
+}
+
+// trainingScores reads the training scores the audit folder holds, for the
+// background of the score plot; nil when it has none.
+func trainingScores(dir string) *mat.Dense {
+	path := filepath.Join(dir, "scores.csv")
+	if _, err := os.Stat(path); err != nil {
+		return nil
+	}
+	t, err := analysis.ReadTable(path, analysis.ReadOptions{MinRows: 1, KeepConstant: true})
+	if err != nil {
+		return nil
+	}
+	return t.X
+}
+
+func (f *auditFlags) applyOptions(read analysis.ReadOptions, t *analysis.Table) report.Options {
+	return report.Options{
+		{Name: "id", Value: t.IDColumn},
+		{Name: "group", Value: t.GroupColumn},
+		{Name: "missing", Value: string(read.Missing)},
+		{Name: "delim", Value: f.delim},
+		{Name: "delim_used", Value: string(t.Delimiter)},
+		{Name: "decimal", Value: f.decimal},
+		{Name: "fail_on", Value: f.failOn},
+		{Name: "format", Value: f.format},
+		{Name: "title", Value: f.title},
+		{Name: "author", Value: f.author},
+		{Name: "date", Value: f.date},
+	}
+}
+
+func printApplySummary(w io.Writer, run report.ApplyRun, target string) {
+	app := run.App
+	if app.Scores == nil {
+		fmt.Fprintf(w, "pcqc: the new data lack model variables %v; nothing scored; verdict %s\n", app.Missing, checks.Verdict(run.Checks))
+	} else {
+		fmt.Fprintf(w, "pcqc: %d new samples scored against %d components; %d beyond a 99 %% limit; verdict %s\n",
+			app.Table.Rows(), app.Model.Retained, len(app.Flagged), checks.Verdict(run.Checks))
+	}
+	fmt.Fprintf(w, "pcqc: wrote %s\n", target)
+}
