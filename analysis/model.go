@@ -20,19 +20,19 @@ const ModelFormat = 1
 // scales, the retained loadings, every eigenvalue, the number of training
 // samples and the control limits. It is written to model.json by run.
 type Model struct {
-	Format      int          `json:"format"`
-	Tool        ModelTool    `json:"tool"`
-	Input       ModelInput   `json:"input"`
-	Variables   []string     `json:"variables"`
-	Transform   Transform    `json:"transform"`
-	Scaling     Scaling      `json:"scaling"`
-	Means       []float64    `json:"means"`  // of the transformed training values
-	Scales      []float64    `json:"scales"` // the divisors used
-	SDs         []float64    `json:"sds"`    // training standard deviations of the transformed values
-	Retained    int          `json:"retained"`
-	Loadings    [][]float64  `json:"loadings"` // p rows of k values
-	Eigenvalues []float64    `json:"eigenvalues"`
-	Limits      ModelLimits  `json:"limits"`
+	Format      int         `json:"format"`
+	Tool        ModelTool   `json:"tool"`
+	Input       ModelInput  `json:"input"`
+	Variables   []string    `json:"variables"`
+	Transform   Transform   `json:"transform"`
+	Scaling     Scaling     `json:"scaling"`
+	Means       []float64   `json:"means"`  // of the transformed training values
+	Scales      []float64   `json:"scales"` // the divisors used
+	SDs         []float64   `json:"sds"`    // training standard deviations of the transformed values
+	Retained    int         `json:"retained"`
+	Loadings    [][]float64 `json:"loadings"` // p rows of k values
+	Eigenvalues []float64   `json:"eigenvalues"`
+	Limits      ModelLimits `json:"limits"`
 }
 
 // ModelTool names the software that wrote the model.
