@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -52,18 +51,10 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	fs := flag.NewFlagSet("apply", flag.ContinueOnError)
 	var f auditFlags
 	f.register(fs, "")
-	pos, err := parseArgs(fs, args)
-	if errors.Is(err, flag.ErrHelp) {
-		printCommandHelp(stdout, lookupCommand("apply"))
-		return exitOK, nil
+	pos, helped, err := parseCommand("apply", fs, &f, args, 2, "an audit folder and a data file", stdout)
+	if helped || err != nil {
+		return exitOK, err
 	}
-	if err != nil {
-		return 0, err
-	}
-	if err := requireArgs("apply", pos, 2, "an audit folder and a data file"); err != nil {
-		return 0, err
-	}
-	f.set = markSet(fs)
 	for _, name := range modelFixedFlags {
 		if f.set[name] {
 			return 0, usagef("--%s is fixed by the saved model; apply takes the model as it is", name)
@@ -73,21 +64,12 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-apply"
 	}
-	read, err := f.readOptions()
+	read, err := f.validate()
 	if err != nil {
 		return 0, err
 	}
-	level, err := f.failLevel()
-	if err != nil {
-		return 0, err
-	}
-	formats, ropt, err := f.reportOptions(time.Now())
-	if err != nil {
-		return 0, err
-	}
-	if err := report.CheckTarget(f.out, f.force); err != nil {
-		return 0, usagef("%v", err)
-	}
+	level, _ := f.failLevel()
+	formats, ropt, _ := f.reportOptions(time.Now())
 	model, err := analysis.LoadModel(filepath.Join(auditDir, "model.json"))
 	if err != nil {
 		return 0, err

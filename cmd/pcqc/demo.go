@@ -2,13 +2,11 @@ package main
 
 import (
 	"bytes"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
-	"time"
 
 	"pcqc/analysis"
 	"pcqc/checks"
@@ -41,39 +39,18 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
 	var f auditFlags
 	f.register(fs, "pcqc-demo")
-	pos, err := parseArgs(fs, args)
-	if errors.Is(err, flag.ErrHelp) {
-		printCommandHelp(stdout, lookupCommand("demo"))
-		return exitOK, nil
+	if _, helped, err := parseCommand("demo", fs, &f, args, 0, "no arguments", stdout); helped || err != nil {
+		return exitOK, err
 	}
-	if err != nil {
-		return 0, err
-	}
-	if err := requireArgs("demo", pos, 0, "no arguments"); err != nil {
-		return 0, err
-	}
-	f.set = markSet(fs)
 	if !f.set["id"] {
 		f.id = demo.SampleID
 	}
 	if !f.set["group"] {
 		f.group = demo.Station
 	}
-	read, err := f.readOptions()
+	read, err := f.validate()
 	if err != nil {
 		return 0, err
-	}
-	if _, err := f.analysisOptions(); err != nil {
-		return 0, err
-	}
-	if _, err := f.failLevel(); err != nil {
-		return 0, err
-	}
-	if _, _, err := f.reportOptions(time.Now()); err != nil {
-		return 0, err
-	}
-	if err := report.CheckTarget(f.out, f.force); err != nil {
-		return 0, usagef("%v", err)
 	}
 	data := demo.Survey()
 	t, err := analysis.ReadTableFrom(demoDataName, bytes.NewReader(data), read)

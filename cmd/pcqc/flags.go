@@ -330,3 +330,44 @@ func plural(n int) string {
 	}
 	return "s"
 }
+
+// parseCommand parses a command's flags and its nArgs positional arguments
+// (what names them in the error). When -h is given it prints the help and
+// reports helped.
+func parseCommand(name string, fs *flag.FlagSet, f *auditFlags, args []string, nArgs int, what string, stdout io.Writer) (pos []string, helped bool, err error) {
+	pos, err = parseArgs(fs, args)
+	if errors.Is(err, flag.ErrHelp) {
+		printCommandHelp(stdout, lookupCommand(name))
+		return nil, true, nil
+	}
+	if err != nil {
+		return nil, false, err
+	}
+	if err := requireArgs(name, pos, nArgs, what); err != nil {
+		return nil, false, err
+	}
+	f.set = markSet(fs)
+	return pos, false, nil
+}
+
+// validate checks every flag value, and that the output folder may be
+// written, before any work is done; it returns the input options.
+func (f *auditFlags) validate() (analysis.ReadOptions, error) {
+	read, err := f.readOptions()
+	if err != nil {
+		return read, err
+	}
+	if _, err := f.analysisOptions(); err != nil {
+		return read, err
+	}
+	if _, err := f.failLevel(); err != nil {
+		return read, err
+	}
+	if _, _, err := f.reportOptions(time.Now()); err != nil {
+		return read, err
+	}
+	if err := report.CheckTarget(f.out, f.force); err != nil {
+		return read, usagef("%v", err)
+	}
+	return read, nil
+}

@@ -1,14 +1,11 @@
 package main
 
 import (
-	"errors"
 	"flag"
 	"io"
 	"path/filepath"
-	"time"
 
 	"pcqc/analysis"
-	"pcqc/report"
 )
 
 var reviewCommand = &command{
@@ -52,21 +49,13 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	fs.StringVar(&scoresPath, "scores", "", "")
 	fs.StringVar(&variancePath, "variance", "", "")
 	fs.StringVar(&claimed, "claimed-scale", "", "")
-	pos, err := parseArgs(fs, args)
-	if errors.Is(err, flag.ErrHelp) {
-		printCommandHelp(stdout, lookupCommand("review"))
-		return exitOK, nil
-	}
-	if err != nil {
-		return 0, err
-	}
-	if err := requireArgs("review", pos, 1, "one data file"); err != nil {
-		return 0, err
+	pos, helped, err := parseCommand("review", fs, &f, args, 1, "one data file", stdout)
+	if helped || err != nil {
+		return exitOK, err
 	}
 	if loadingsPath == "" {
 		return 0, usagef("needs --loadings FILE (their loadings); see 'pcqc help review'")
 	}
-	f.set = markSet(fs)
 	var claimedScale analysis.Scaling
 	if claimed != "" {
 		if claimedScale, err = oneOf("claimed-scale", claimed, analysis.Scalings); err != nil {
@@ -77,21 +66,9 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-review"
 	}
-	read, err := f.readOptions()
+	read, err := f.validate()
 	if err != nil {
 		return 0, err
-	}
-	if _, err := f.analysisOptions(); err != nil {
-		return 0, err
-	}
-	if _, err := f.failLevel(); err != nil {
-		return 0, err
-	}
-	if _, _, err := f.reportOptions(time.Now()); err != nil {
-		return 0, err
-	}
-	if err := report.CheckTarget(f.out, f.force); err != nil {
-		return 0, usagef("%v", err)
 	}
 	t, err := analysis.ReadTable(data, read)
 	if err != nil {

@@ -6,10 +6,8 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"time"
 
 	"pcqc/analysis"
-	"pcqc/report"
 )
 
 var runCommand = &command{
@@ -37,38 +35,17 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	fs := flag.NewFlagSet("run", flag.ContinueOnError)
 	var f auditFlags
 	f.register(fs, "")
-	pos, err := parseArgs(fs, args)
-	if errors.Is(err, flag.ErrHelp) {
-		printCommandHelp(stdout, lookupCommand("run"))
-		return exitOK, nil
+	pos, helped, err := parseCommand("run", fs, &f, args, 1, "one data file", stdout)
+	if helped || err != nil {
+		return exitOK, err
 	}
-	if err != nil {
-		return 0, err
-	}
-	if err := requireArgs("run", pos, 1, "one data file"); err != nil {
-		return 0, err
-	}
-	f.set = markSet(fs)
 	data := pos[0]
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-pcqc"
 	}
-	read, err := f.readOptions()
+	read, err := f.validate()
 	if err != nil {
 		return 0, err
-	}
-	if _, err := f.analysisOptions(); err != nil {
-		return 0, err
-	}
-	if _, err := f.failLevel(); err != nil {
-		return 0, err
-	}
-	if _, _, err := f.reportOptions(time.Now()); err != nil {
-		return 0, err
-	}
-	// Refuse an occupied output folder before any work is done.
-	if err := report.CheckTarget(f.out, f.force); err != nil {
-		return 0, usagef("%v", err)
 	}
 	if _, err := os.Stat(data); err != nil {
 		return 0, &analysis.InputError{File: data, Reason: "cannot open: " + pathReason(err)}
