@@ -105,7 +105,7 @@ func Apply(m *Model, t *Table) *Application {
 	for j := 0; j < p; j++ {
 		app.Shift[j] = (ColumnMean(t.X, idx[j]) - m.Means[j]) / m.SDs[j]
 	}
-	app.Flagged = flaggedNew(app)
+	app.Flagged = RankBeyond99(app.T2, app.Q, app.Limits.T2_99, app.Limits.Q99)
 	for _, i := range app.Flagged {
 		app.Contributions = append(app.Contributions, app.contribution(i, v))
 	}
@@ -145,21 +145,23 @@ func (app *Application) contribution(i int, v *mat.Dense) Contribution {
 	return c
 }
 
-// flaggedNew returns the samples beyond a 99 % limit, worst first.
-func flaggedNew(app *Application) []int {
+// RankBeyond99 returns the indices of the samples whose Hotelling T² or Q
+// residual passes its 99 % limit, worst first: a sample's severity is the
+// larger of T²/limit and Q/limit, and ties keep the input order. A limit that
+// is zero or not a number is ignored.
+func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
 	type ranked struct {
 		i     int
 		score float64
 	}
 	var out []ranked
-	l := app.Limits
-	for i := range app.T2 {
+	for i := range t2 {
 		score := 0.0
-		if l.T2_99 > 0 {
-			score = app.T2[i] / l.T2_99
+		if t2Limit99 > 0 {
+			score = t2[i] / t2Limit99
 		}
-		if l.Q99 > 0 {
-			score = math.Max(score, app.Q[i]/l.Q99)
+		if qLimit99 > 0 && i < len(q) {
+			score = math.Max(score, q[i]/qLimit99)
 		}
 		if score > 1 {
 			out = append(out, ranked{i, score})

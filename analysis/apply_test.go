@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
 
@@ -184,5 +185,30 @@ func TestModelRoundTrip(t *testing.T) {
 	os.WriteFile(path, []byte(damaged), 0o644)
 	if _, err := LoadModel(path); err == nil || !strings.Contains(err.Error(), "damaged") {
 		t.Errorf("damaged model: %v", err)
+	}
+}
+
+// A sample is flagged when either statistic passes its 99 % limit, and the
+// worst ratio to its limit comes first (common practice for listing
+// outliers); a missing limit does not flag anything on its own.
+func TestRankBeyond99(t *testing.T) {
+	cases := []struct {
+		name        string
+		t2, q       []float64
+		t2Lim, qLim float64
+		want        []int
+	}{
+		{"none", []float64{1, 2}, []float64{1, 2}, 10, 10, []int{}},
+		{"t2 only", []float64{5, 30, 12}, []float64{0, 0, 0}, 10, 10, []int{1, 2}},
+		{"q worse than t2", []float64{11, 1}, []float64{1, 40}, 10, 10, []int{1, 0}},
+		{"tie keeps order", []float64{20, 20}, []float64{0, 0}, 10, 10, []int{0, 1}},
+		{"no q limit", []float64{1}, []float64{1e9}, 10, math.NaN(), []int{}},
+		{"no t2 limit", []float64{1e9}, []float64{1}, 0, 10, []int{}},
+	}
+	for _, c := range cases {
+		got := RankBeyond99(c.t2, c.q, c.t2Lim, c.qLim)
+		if !slices.Equal(got, c.want) {
+			t.Errorf("%s: got %v, want %v", c.name, got, c.want)
+		}
 	}
 }

@@ -352,40 +352,10 @@ func groupsOf(t *analysis.Table) ([]string, []int) {
 }
 
 // flaggedSamples returns the samples beyond a 99 % limit of T² or Q, most
-// extreme first (by the larger of T²/limit and Q/limit).
+// severe first.
 func flaggedSamples(res *analysis.Result) []int {
 	s := res.Samples
-	type ranked struct {
-		i     int
-		score float64
-	}
-	var out []ranked
-	for i := range s.T2 {
-		score := 0.0
-		if !math.IsNaN(s.Limits.T2_99) && s.Limits.T2_99 > 0 {
-			score = s.T2[i] / s.Limits.T2_99
-		}
-		if s.Limits.Q99 > 0 {
-			score = math.Max(score, s.Q[i]/s.Limits.Q99)
-		}
-		if score > 1 {
-			out = append(out, ranked{i, score})
-		}
-	}
-	slices.SortStableFunc(out, func(a, b ranked) int {
-		switch {
-		case a.score > b.score:
-			return -1
-		case a.score < b.score:
-			return 1
-		}
-		return 0
-	})
-	idx := make([]int, len(out))
-	for k, r := range out {
-		idx[k] = r.i
-	}
-	return idx
+	return analysis.RankBeyond99(s.T2, s.Q, s.Limits.T2_99, s.Limits.Q99)
 }
 
 // labelledSamples is how many flagged samples a figure names at most.
