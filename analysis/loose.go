@@ -37,13 +37,8 @@ func ReadLooseTable(path string) (*LooseTable, error) {
 // ReadLooseTableFrom reads a loose table from r; name is used in messages.
 func ReadLooseTableFrom(name string, r io.Reader) (*LooseTable, error) {
 	br := bufio.NewReaderSize(r, 1<<20)
-	if head, _ := br.Peek(3); len(head) >= 2 {
-		switch {
-		case head[0] == 0xFF && head[1] == 0xFE, head[0] == 0xFE && head[1] == 0xFF:
-			return nil, &InputError{File: name, Line: 1, Reason: "the file is UTF-16 encoded; save it as UTF-8 and try again"}
-		case len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF:
-			br.Discard(3)
-		}
+	if _, line, reason := sniffEncoding(br); reason != "" {
+		return nil, &InputError{File: name, Line: line, Reason: reason}
 	}
 	peek, _ := br.Peek(br.Size())
 	if i := bytes.IndexByte(peek, '\n'); i >= 0 {

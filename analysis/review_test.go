@@ -212,3 +212,27 @@ func TestReviewRejectsMismatchedTables(t *testing.T) {
 	}
 	_ = l
 }
+
+// Loadings and scores files get the same encoding checks as the data table:
+// a UTF-16 or binary file is refused with a reason, a UTF-8 byte order mark is
+// skipped (common practice for spreadsheet exports).
+func TestLooseTableEncoding(t *testing.T) {
+	cases := []struct {
+		name, text, reason string
+	}{
+		{"utf16", "\xff\xfev\x00a\x00r\x00\n\x00", "UTF-16"},
+		{"utf16 no mark", "v\x00a\x00r\x00,\x00P\x00C\x001\x00\n\x00x\x00,\x001\x00\n\x00", "UTF-16"},
+		{"binary", "PK\x03\x04\x00\x00\x08\x00\x00\x00xl/workbook.xml\x00", "binary"},
+	}
+	for _, c := range cases {
+		_, err := ReadLooseTableFrom(c.name, strings.NewReader(c.text))
+		var ie *InputError
+		if !errors.As(err, &ie) || !strings.Contains(ie.Reason, c.reason) {
+			t.Errorf("%s: got %v, want an input error about %s", c.name, err, c.reason)
+		}
+	}
+	lt := loose(t, "bom", "\xef\xbb\xbfvariable,PC1\nx,0.5\n")
+	if lt.Header[0] != "variable" {
+		t.Errorf("byte order mark kept: header %q", lt.Header)
+	}
+}

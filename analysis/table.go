@@ -187,6 +187,28 @@ func ReadTable(path string, opt ReadOptions) (*Table, error) {
 	return ReadTableFrom(path, f, opt)
 }
 
+// sniffEncoding looks at the start of a text table: it skips a UTF-8 byte
+// order mark (returning its length) and, when the bytes are UTF-16 or binary,
+// returns the line to blame and the reason to refuse them.
+func sniffEncoding(br *bufio.Reader) (bom, line int, reason string) {
+	if head, _ := br.Peek(3); len(head) >= 2 {
+		switch {
+		case head[0] == 0xFF && head[1] == 0xFE, head[0] == 0xFE && head[1] == 0xFF:
+			return 0, 1, "the file is UTF-16 encoded; save it as UTF-8 (CSV UTF-8) and try again"
+		case len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF:
+			br.Discard(3)
+			bom = 3
+		}
+	}
+	if head, _ := br.Peek(4096); bytes.IndexByte(head, 0) >= 0 {
+		if looksUTF16(head) {
+			return bom, 1, "the file looks UTF-16 encoded (every other byte is zero); save it as UTF-8 (CSV UTF-8) and try again"
+		}
+		return bom, 0, "the file holds NUL bytes: it looks like a binary file (a spreadsheet workbook, an image, a compressed archive), not a text table; export it as CSV"
+	}
+	return bom, 0, ""
+}
+
 // looksUTF16 reports whether the bytes look like UTF-16 text without a byte
 // order mark: zeros in most even or most odd positions.
 func looksUTF16(b []byte) bool {
@@ -300,21 +322,9 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		r = io.TeeReader(r, hasher)
 	}
 	br := bufio.NewReaderSize(r, 1<<20)
-	bom := 0
-	if head, _ := br.Peek(3); len(head) >= 2 {
-		switch {
-		case head[0] == 0xFF && head[1] == 0xFE, head[0] == 0xFE && head[1] == 0xFF:
-			return nil, fail(1, 0, "", "", "the file is UTF-16 encoded; save it as UTF-8 (CSV UTF-8) and try again")
-		case len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF:
-			br.Discard(3)
-			bom = 3
-		}
-	}
-	if head, _ := br.Peek(4096); bytes.IndexByte(head, 0) >= 0 {
-		if looksUTF16(head) {
-			return nil, fail(1, 0, "", "", "the file looks UTF-16 encoded (every other byte is zero); save it as UTF-8 (CSV UTF-8) and try again")
-		}
-		return nil, fail(0, 0, "", "", "the file holds NUL bytes: it looks like a binary file (a spreadsheet workbook, an image, a compressed archive), not a text table; export it as CSV")
+	bom, line, reason := sniffEncoding(br)
+	if reason != "" {
+		return nil, fail(line, 0, "", "", reason)
 	}
 
 	delim := opt.Delimiter
