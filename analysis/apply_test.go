@@ -58,20 +58,7 @@ func TestApplyLimitCalibration(t *testing.T) {
 	spectrum := []float64{6, 3, 1.5, 0.5, 0.3, 0.2}
 	for seed := uint64(1); seed <= 3; seed++ {
 		rng := synth.RNG(seed, 71)
-		var qr mat.QR
-		qr.Factorize(synth.Gaussian(rng, p, p))
-		var q mat.Dense
-		qr.QTo(&q)
-		cov := mat.NewSymDense(p, nil)
-		for i := 0; i < p; i++ {
-			for j := i; j < p; j++ {
-				s := 0.0
-				for a := 0; a < p; a++ {
-					s += q.At(i, a) * spectrum[a] * q.At(j, a)
-				}
-				cov.SetSym(i, j, s)
-			}
-		}
+		cov, _ := synth.SpectrumCovariance(rng, spectrum)
 		// The new-observation limit accounts for the uncertainty of a model
 		// built from n0 samples; check it over many training sets.
 		beyond, total := 0, 0

@@ -123,20 +123,7 @@ func TestBootstrapCoverageOnPlantedData(t *testing.T) {
 	// 0.5 …: covariance PCA (no scaling) has the columns of Q as its true
 	// loadings.
 	spectrum := []float64{8, 3, 0.5, 0.4, 0.3, 0.2}
-	var qr mat.QR
-	qr.Factorize(synth.Gaussian(synth.RNG(1, 52), p, p))
-	var q mat.Dense
-	qr.QTo(&q)
-	cov := mat.NewSymDense(p, nil)
-	for i := 0; i < p; i++ {
-		for j := i; j < p; j++ {
-			s := 0.0
-			for a := 0; a < p; a++ {
-				s += q.At(i, a) * spectrum[a] * q.At(j, a)
-			}
-			cov.SetSym(i, j, s)
-		}
-	}
+	cov, q := synth.SpectrumCovariance(synth.RNG(1, 52), spectrum)
 	covered, total := 0, 0
 	for rep := 0; rep < reps; rep++ {
 		x := synth.WithCovariance(synth.RNG(uint64(rep+1), 53), n, cov)

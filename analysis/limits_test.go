@@ -5,7 +5,6 @@ import (
 	"slices"
 	"testing"
 
-	"gonum.org/v1/gonum/mat"
 
 	"pcqc/internal/synth"
 )
@@ -104,24 +103,9 @@ func TestQLimitEqualEigenvalues(t *testing.T) {
 func TestLimitsCalibratedOnGaussianData(t *testing.T) {
 	const n, k = 4000, 3
 	spectrum := []float64{9, 5, 3, 1, 0.8, 0.6, 0.5, 0.4, 0.3, 0.2}
-	p := len(spectrum)
 	for seed := uint64(1); seed <= 3; seed++ {
 		rng := synth.RNG(seed, 10)
-		// Σ = Q diag(spectrum) Qᵀ with a random orthogonal Q.
-		var qr mat.QR
-		qr.Factorize(synth.Gaussian(rng, p, p))
-		var q mat.Dense
-		qr.QTo(&q)
-		cov := mat.NewSymDense(p, nil)
-		for i := 0; i < p; i++ {
-			for j := i; j < p; j++ {
-				s := 0.0
-				for a := 0; a < p; a++ {
-					s += q.At(i, a) * spectrum[a] * q.At(j, a)
-				}
-				cov.SetSym(i, j, s)
-			}
-		}
+		cov, _ := synth.SpectrumCovariance(rng, spectrum)
 		x := synth.WithCovariance(rng, n, cov)
 		res, err := Analyze(TableFromMatrix("gauss", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: k}})
 		if err != nil {

@@ -46,6 +46,28 @@ func LowRank(rng *rand.Rand, n, p int, sd []float64, noise float64) (x, loadings
 	return x, loadings
 }
 
+// SpectrumCovariance returns Σ = Q diag(spectrum) Qᵀ with a random
+// orthogonal Q (from the QR factorisation of a Gaussian matrix), and Q: its
+// columns are the true principal axes, the spectrum the true eigenvalues.
+func SpectrumCovariance(rng *rand.Rand, spectrum []float64) (cov *mat.SymDense, axes *mat.Dense) {
+	p := len(spectrum)
+	var qr mat.QR
+	qr.Factorize(Gaussian(rng, p, p))
+	axes = new(mat.Dense)
+	qr.QTo(axes)
+	cov = mat.NewSymDense(p, nil)
+	for i := 0; i < p; i++ {
+		for j := i; j < p; j++ {
+			s := 0.0
+			for a := 0; a < p; a++ {
+				s += axes.At(i, a) * spectrum[a] * axes.At(j, a)
+			}
+			cov.SetSym(i, j, s)
+		}
+	}
+	return cov, axes
+}
+
 // WithCovariance returns n samples from N(0, Σ) for the given covariance
 // (symmetric positive definite), through its Cholesky factor.
 func WithCovariance(rng *rand.Rand, n int, cov *mat.SymDense) *mat.Dense {
