@@ -5,7 +5,6 @@ import (
 	"slices"
 	"testing"
 
-
 	"pcqc/internal/synth"
 )
 
