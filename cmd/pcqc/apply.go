@@ -183,19 +183,17 @@ func trainingScores(dir string) *mat.Dense {
 }
 
 func (f *auditFlags) applyOptions(read analysis.ReadOptions, t *analysis.Table) report.Options {
-	return report.Options{
-		{Name: "id", Value: t.IDColumn},
-		{Name: "group", Value: t.GroupColumn},
-		{Name: "missing", Value: string(read.Missing)},
-		{Name: "delim", Value: f.delim},
-		{Name: "delim_used", Value: string(t.Delimiter)},
-		{Name: "decimal", Value: f.decimal},
-		{Name: "fail_on", Value: f.failOn},
-		{Name: "format", Value: f.format},
-		{Name: "title", Value: f.title},
-		{Name: "author", Value: f.author},
-		{Name: "date", Value: f.date},
+	// The model fixes the variables, preprocessing and components; apply
+	// records the rest of run's options, in the same order.
+	fromModel := map[string]bool{"columns": true, "drop": true, "transform": true, "scale": true, "center": true,
+		"components": true, "permutations": true, "bootstrap": true, "seed": true}
+	var opts report.Options
+	for _, o := range f.effective(read, t) {
+		if !fromModel[o.Name] {
+			opts = append(opts, o)
+		}
 	}
+	return opts
 }
 
 func printApplySummary(w io.Writer, run report.ApplyRun, target string) {
