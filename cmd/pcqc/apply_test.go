@@ -11,9 +11,8 @@ import (
 )
 
 type applySummary struct {
-	Verdict string `json:"verdict"`
-	Checks  []struct{ ID, Status, Message string }
-	Batch   struct {
+	summaryChecks
+	Batch struct {
 		MissingVariables []string `json:"missing_variables"`
 		Flagged          []string `json:"flagged"`
 		Shift            []struct {
@@ -21,28 +20,6 @@ type applySummary struct {
 			ShiftSD  float64 `json:"shift_sd"`
 		} `json:"shift"`
 	} `json:"batch"`
-}
-
-func readApplySummary(t *testing.T, dir string) applySummary {
-	t.Helper()
-	b, err := os.ReadFile(filepath.Join(dir, "summary.json"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	var s applySummary
-	if err := json.Unmarshal(b, &s); err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
-
-func (s applySummary) status(id string) string {
-	for _, c := range s.Checks {
-		if c.ID == id {
-			return c.Status
-		}
-	}
-	return "absent"
 }
 
 // The demo applies the survey's model to its later batch: the planted
@@ -58,9 +35,9 @@ func TestDemoAppliesToTheLaterBatch(t *testing.T) {
 			t.Errorf("%s: %v", name, err)
 		}
 	}
-	s := readApplySummary(t, sub)
-	if s.status("apply-shift") != "warn" || !strings.Contains(checkMessage(s, "apply-shift"), demo.DriftVariable) {
-		t.Errorf("apply-shift %s: %s", s.status("apply-shift"), checkMessage(s, "apply-shift"))
+	s := readSummaryFile[applySummary](t, sub)
+	if s.status("apply-shift") != "warn" || !strings.Contains(s.message("apply-shift"), demo.DriftVariable) {
+		t.Errorf("apply-shift %s: %s", s.status("apply-shift"), s.message("apply-shift"))
 	}
 	if s.status("apply-outliers-q") != "warn" || len(s.Batch.Flagged) < 30 {
 		t.Errorf("outliers-q %s, %d flagged", s.status("apply-outliers-q"), len(s.Batch.Flagged))
@@ -94,15 +71,6 @@ func TestDemoAppliesToTheLaterBatch(t *testing.T) {
 	}
 }
 
-func checkMessage(s applySummary, id string) string {
-	for _, c := range s.Checks {
-		if c.ID == id {
-			return c.Message
-		}
-	}
-	return ""
-}
-
 func TestApplyCommand(t *testing.T) {
 	dir := t.TempDir()
 	audit := filepath.Join(dir, "audit")
@@ -117,7 +85,7 @@ func TestApplyCommand(t *testing.T) {
 	if status, _, stderr := runPCQC(t, "apply", audit, usarrestsPath, "--out", out, "--format", "md"); status != exitOK {
 		t.Fatalf("%d %s", status, stderr)
 	}
-	s := readApplySummary(t, out)
+	s := readSummaryFile[applySummary](t, out)
 	if s.status("apply-variables") != "pass" || s.status("apply-shift") != "pass" {
 		t.Errorf("self: %+v", s.Checks)
 	}
@@ -153,9 +121,9 @@ func TestApplyCommand(t *testing.T) {
 	if status != exitChecks || !strings.Contains(stdout, "lack model variables") {
 		t.Fatalf("missing variable: %d %s %s", status, stdout, stderr)
 	}
-	s = readApplySummary(t, out)
-	if s.status("apply-variables") != "fail" || !strings.Contains(checkMessage(s, "apply-variables"), "UrbanPop") || len(s.Batch.MissingVariables) != 1 {
-		t.Errorf("missing variable: %s %s", s.status("apply-variables"), checkMessage(s, "apply-variables"))
+	s = readSummaryFile[applySummary](t, out)
+	if s.status("apply-variables") != "fail" || !strings.Contains(s.message("apply-variables"), "UrbanPop") || len(s.Batch.MissingVariables) != 1 {
+		t.Errorf("missing variable: %s %s", s.status("apply-variables"), s.message("apply-variables"))
 	}
 	if s.status("apply-outliers-t2") != "skip" {
 		t.Errorf("outliers checked without the variables: %s", s.status("apply-outliers-t2"))

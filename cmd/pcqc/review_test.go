@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"math/rand/v2"
 	"os"
@@ -38,10 +37,7 @@ func usarrestsOther(t *testing.T, centred bool, sc analysis.Scaling, k int) fixt
 }
 
 type reviewSummary struct {
-	Verdict string `json:"verdict"`
-	Checks  []struct {
-		ID, Status, Message string
-	} `json:"checks"`
+	summaryChecks
 	Review struct {
 		BestVariant struct {
 			Centered bool
@@ -53,28 +49,6 @@ type reviewSummary struct {
 		ScoresMatchedBy string           `json:"scores_matched_by"`
 		VarianceKind    string           `json:"variance_kind"`
 	} `json:"review"`
-}
-
-func readSummary(t *testing.T, dir string) reviewSummary {
-	t.Helper()
-	b, err := os.ReadFile(filepath.Join(dir, "summary.json"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	var s reviewSummary
-	if err := json.Unmarshal(b, &s); err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
-
-func (s reviewSummary) status(id string) string {
-	for _, c := range s.Checks {
-		if c.ID == id {
-			return c.Status
-		}
-	}
-	return "absent"
 }
 
 // Acceptance 3: a transposed loadings file, a semicolon file and scores in
@@ -106,7 +80,7 @@ func TestReviewCommandReadsTheirTables(t *testing.T) {
 		if status != exitOK && status != exitChecks {
 			t.Fatalf("%s: status %d %s", c.name, status, stderr)
 		}
-		s := readSummary(t, out)
+		s := readSummaryFile[reviewSummary](t, out)
 		if !strings.Contains(s.Review.LoadingsLayout, c.layout) || !strings.Contains(s.Review.ScoresMatchedBy, "sample id") || s.Review.VarianceKind != "percentages of the total variance" {
 			t.Errorf("%s: layout %q, scores %q, variance %q", c.name, s.Review.LoadingsLayout, s.Review.ScoresMatchedBy, s.Review.VarianceKind)
 		}
@@ -143,7 +117,7 @@ func TestReviewCommandFailsUncentred(t *testing.T) {
 	if status != exitChecks {
 		t.Fatalf("status %d %s", status, stderr)
 	}
-	s := readSummary(t, out)
+	s := readSummaryFile[reviewSummary](t, out)
 	if s.status("review-centering") != "fail" || s.Verdict != "fail" || s.Review.BestVariant.Centered {
 		t.Errorf("centering %s, verdict %s, best %+v", s.status("review-centering"), s.Verdict, s.Review.BestVariant)
 	}
