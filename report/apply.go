@@ -235,13 +235,11 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 		d.Ignored = strings.Join(app.Extra, ", ")
 	}
 	d.MissingVariables = strings.Join(app.Missing, ", ")
-	for _, o := range meta.Options {
-		d.Options = append(d.Options, [2]string{o.Name, optionText(o.Value)})
-	}
+	d.Options = optionRows(meta.Options)
 	d.Cautions = []string{
 		"Statistical flags support expert judgement; they do not replace it. A flagged sample is a sample to look at, not a sample to reject.",
 		"The limits come from the training data; a model built on too few or unrepresentative samples flags too much or too little.",
-		"Where the results bear on health, safety or regulation, local rules and accredited practice decide, not this report.",
+		regulationCaution,
 	}
 	d.Methods, d.References = applyMethods(run, meta)
 	if !d.Scored {

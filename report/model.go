@@ -219,13 +219,11 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	d.Outliers = outliersBlock(res)
 	d.Stability = stabilityBlock(res)
 	d.Methods, d.References = methods(res, meta)
-	for _, o := range meta.Options {
-		d.Options = append(d.Options, [2]string{o.Name, optionText(o.Value)})
-	}
+	d.Options = optionRows(meta.Options)
 	d.Cautions = []string{
 		"Statistical flags support expert judgement; they do not replace it. A flagged sample is a sample to look at, not a sample to delete.",
 		"The thresholds are conventions, each cited beside the check that uses it; data near a threshold deserve the same care on either side of it.",
-		"Where the results bear on health, safety or regulation, local rules and accredited practice decide, not this report.",
+		regulationCaution,
 	}
 
 	// Figures in report order.
@@ -379,6 +377,18 @@ func componentsBlock(res *analysis.Result) ComponentsBlock {
 	b.Scree = Figure{Stem: "scree", Alt: "Scree plot",
 		Caption: "Scree plot: observed eigenvalues (filled: retained), the 95th percentile of the eigenvalues of column-permuted data, the broken-stick expectation, and the cumulative share of variance on the right axis."}
 	return b
+}
+
+// regulationCaution closes the cautions of every report.
+const regulationCaution = "Where the results bear on health, safety or regulation, local rules and accredited practice decide, not this report."
+
+// optionRows lists the options as name and value text, for the report.
+func optionRows(opts Options) [][2]string {
+	rows := make([][2]string, 0, len(opts))
+	for _, o := range opts {
+		rows = append(rows, [2]string{o.Name, optionText(o.Value)})
+	}
+	return rows
 }
 
 func plural(n int) string {
