@@ -110,8 +110,6 @@ const (
 	ReviewOrthonormalityFail = 0.05
 )
 
-const sourceReviewPractice = "common practice"
-
 // Apply mode.
 const (
 	// ShiftLimit: a new batch whose mean lies more than 3 training standard

@@ -84,9 +84,6 @@ func equalise(p *plot.Plot, c draw.Canvas) {
 	}
 }
 
-// save writes the drawing as PNG and SVG into dir/figures.
-func (d drawing) save(dir, stem string) error { return d.saveAs(dir, stem, true, true) }
-
 // saveAs writes the drawing as PNG, SVG or both into dir/figures.
 func (d drawing) saveAs(dir, stem string, pngToo, svgToo bool) error {
 	if err := os.MkdirAll(filepath.Join(dir, "figures"), 0o755); err != nil {

@@ -130,7 +130,6 @@ const (
 )
 
 func f3(x float64) string { return strconv.FormatFloat(x, 'f', 3, 64) }
-func f4(x float64) string { return strconv.FormatFloat(x, 'f', 4, 64) }
 func pctText(x float64) string {
 	return strconv.FormatFloat(x, 'f', 1, 64) + " %"
 }
