@@ -26,7 +26,10 @@ type Progress func(stage string, done, total int)
 
 // parallelFor runs task(w, i) for i in [0, count) on up to threads workers;
 // each worker owns one workspace made by newWorkspace. Results must be
-// written by index, which makes them independent of scheduling.
+// written by index, which makes them independent of scheduling. A panic in
+// a worker (a bug) stops the remaining tasks and is raised again in the
+// caller's goroutine, where the command can report it instead of the
+// runtime printing every goroutine's stack.
 func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W, i int), stage string, progress Progress) {
 	if threads <= 0 {
 		threads = runtime.NumCPU()
@@ -34,10 +37,12 @@ func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W
 	threads = max(1, min(threads, count))
 	var next, done atomic.Int64
 	var wg sync.WaitGroup
+	var failed workerPanic
 	for t := 0; t < threads; t++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			defer failed.catch(&next, count)
 			w := newWorkspace()
 			for {
 				i := int(next.Add(1) - 1)
@@ -53,6 +58,30 @@ func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W
 		}()
 	}
 	wg.Wait()
+	failed.raise()
+}
+
+// workerPanic keeps the first panic of a group of workers.
+type workerPanic struct {
+	once  sync.Once
+	value any
+	set   bool
+}
+
+// catch, deferred in a worker, records a panic and makes the other workers
+// run out of tasks (next is moved past count).
+func (p *workerPanic) catch(next *atomic.Int64, count int) {
+	if r := recover(); r != nil {
+		p.once.Do(func() { p.value, p.set = r, true })
+		next.Store(int64(count))
+	}
+}
+
+// raise panics again with the recorded value, in the caller's goroutine.
+func (p *workerPanic) raise() {
+	if p.set {
+		panic(p.value)
+	}
 }
 
 // percentile returns the q-th percentile (0 ≤ q ≤ 100) of sorted values by

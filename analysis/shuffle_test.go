@@ -52,3 +52,20 @@ func TestShuffleIntoIsAUniformPermutation(t *testing.T) {
 		t.Errorf("%d adjacent pairs survived the shuffle", adjacent)
 	}
 }
+
+// A panic in one worker is raised again in the caller, so that the command
+// can report it, and the other workers stop taking tasks.
+func TestParallelForRaisesWorkerPanicInCaller(t *testing.T) {
+	var got any
+	func() {
+		defer func() { got = recover() }()
+		parallelFor(1000, 4, func() int { return 0 }, func(_ int, i int) {
+			if i == 17 {
+				panic("task 17 failed")
+			}
+		}, "test", nil)
+	}()
+	if got != "task 17 failed" {
+		t.Errorf("recovered %v", got)
+	}
+}

@@ -64,7 +64,8 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-apply"
 	}
-	read, err := f.validate()
+	reads := []string{filepath.Join(auditDir, "model.json"), filepath.Join(auditDir, "scores.csv"), data}
+	read, err := f.validate(reads...)
 	if err != nil {
 		return 0, err
 	}
@@ -88,11 +89,10 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	meta := report.Meta{Version: Version, Command: append([]string{"pcqc", "apply"}, args...), Options: f.applyOptions(read, t)}
 
-	out, err := report.Begin(f.out, f.force)
+	out, err := f.beginOutput(reads)
 	if err != nil {
-		return 0, usagef("%v", err)
+		return 0, err
 	}
-	setActiveOutput(out)
 	defer setActiveOutput(nil)
 	write := func() error {
 		if err := report.WriteApplyTables(out.Dir(), run, meta); err != nil {
@@ -105,9 +105,10 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	if err := write(); err != nil {
 		out.Abort()
-		return 0, &outputError{err}
+		return 0, writeFailure(err)
 	}
-	printApplySummary(stdout, run, out.Target())
+	printApplySummary(stdout, run)
+	reportWritten(stdout, stderr, out)
 	if level != "" && checks.Reached(run.Checks, level) {
 		return exitChecks, nil
 	}
@@ -196,7 +197,7 @@ func (f *auditFlags) applyOptions(read analysis.ReadOptions, t *analysis.Table) 
 	return opts
 }
 
-func printApplySummary(w io.Writer, run report.ApplyRun, target string) {
+func printApplySummary(w io.Writer, run report.ApplyRun) {
 	app := run.App
 	if app.Scores == nil {
 		fmt.Fprintf(w, "pcqc: the new data lack model variables %v; nothing scored; verdict %s\n", app.Missing, checks.Verdict(run.Checks))
@@ -204,5 +205,4 @@ func printApplySummary(w io.Writer, run report.ApplyRun, target string) {
 		fmt.Fprintf(w, "pcqc: %d new samples scored against %d components; %d beyond a 99 %% limit; verdict %s\n",
 			app.Table.Rows(), app.Model.Retained, len(app.Flagged), checks.Verdict(run.Checks))
 	}
-	fmt.Fprintf(w, "pcqc: wrote %s\n", target)
 }

@@ -28,6 +28,7 @@ type auditJob struct {
 	read     analysis.ReadOptions
 	table    *analysis.Table
 	command  []string
+	reads    []string          // the files read, which the output folder may not hold
 	extra    map[string][]byte // file name → content, written beside the tables
 }
 
@@ -67,11 +68,10 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		Options: job.flags.effective(job.read, job.table),
 	}
 
-	out, err := report.Begin(job.flags.out, job.flags.force)
+	out, err := job.flags.beginOutput(job.reads)
 	if err != nil {
-		return 0, usagef("%v", err)
+		return 0, err
 	}
-	setActiveOutput(out)
 	defer setActiveOutput(nil)
 	write := func() error {
 		for name, content := range job.extra {
@@ -98,14 +98,14 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 	}
 	if err := write(); err != nil {
 		out.Abort()
-		return 0, &outputError{err}
+		return 0, writeFailure(err)
 	}
 
 	verdict := checks.Verdict(results)
 	level, _ := job.flags.failLevel()
 	fmt.Fprintf(stdout, "pcqc: %d samples × %d variables, %d component%s retained (%s); verdict %s\n",
 		job.table.Rows(), len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
-	fmt.Fprintf(stdout, "pcqc: wrote %s\n", out.Target())
+	reportWritten(stdout, stderr, out)
 	if level != "" && checks.Reached(results, level) {
 		return exitChecks, nil
 	}

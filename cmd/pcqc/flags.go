@@ -12,6 +12,7 @@ import (
 
 	"pcqc/analysis"
 	"pcqc/checks"
+	"pcqc/outdir"
 	"pcqc/report"
 )
 
@@ -119,7 +120,11 @@ Exit status:
 
 Output:
   --out DIR           output folder
-  --force             replace an existing, non-empty output folder
+  --force             replace an existing, non-empty output folder that pcqc
+                      wrote (it holds pcqc's stamp, .pcqc-output.json, and
+                      nothing else); a folder holding anything else, the
+                      current or home folder, and any folder holding an
+                      input file are refused whatever the flags
 `
 
 // splitList reads a comma-separated flag value.
@@ -283,6 +288,26 @@ func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) rep
 	}
 }
 
+// outputOptions says how the output folder may be written.
+func (f *auditFlags) outputOptions(reads []string) outdir.Options {
+	return outdir.Options{Force: f.force, Reads: reads, Version: Version}
+}
+
+// beginOutput starts writing the output folder, after checking it once
+// more, and registers it for removal on an interrupt or an internal error.
+func (f *auditFlags) beginOutput(reads []string) (*outdir.Output, error) {
+	out, err := outdir.Begin(f.out, f.outputOptions(reads))
+	var refused *outdir.RefusedError
+	if errors.As(err, &refused) {
+		return nil, err
+	}
+	if err != nil {
+		return nil, &outputError{err}
+	}
+	setActiveOutput(out)
+	return out, nil
+}
+
 // parseArgs parses flags that may appear before, between or after the
 // positional arguments (`pcqc run data.csv --scale none`), the way users
 // type them. Everything after "--" is positional.
@@ -351,8 +376,9 @@ func parseCommand(name string, fs *flag.FlagSet, f *auditFlags, args []string, n
 }
 
 // validate checks every flag value, and that the output folder may be
-// written, before any work is done; it returns the input options.
-func (f *auditFlags) validate() (analysis.ReadOptions, error) {
+// written, before any work is done; it returns the input options. reads
+// are the files the command reads, which the output folder may not hold.
+func (f *auditFlags) validate(reads ...string) (analysis.ReadOptions, error) {
 	read, err := f.readOptions()
 	if err != nil {
 		return read, err
@@ -366,8 +392,8 @@ func (f *auditFlags) validate() (analysis.ReadOptions, error) {
 	if _, _, err := f.reportOptions(time.Now()); err != nil {
 		return read, err
 	}
-	if err := report.CheckTarget(f.out, f.force); err != nil {
-		return read, usagef("%v", err)
+	if err := outdir.Check(f.out, f.outputOptions(reads)); err != nil {
+		return read, err
 	}
 	return read, nil
 }

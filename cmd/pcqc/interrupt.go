@@ -8,36 +8,42 @@ import (
 	"sync"
 	"syscall"
 
-	"pcqc/report"
+	"pcqc/outdir"
 )
 
 // The output folder being written, so that an interrupt can remove it.
 var (
 	activeMu  sync.Mutex
-	activeOut *report.Output
+	activeOut *outdir.Output
 )
 
-func setActiveOutput(o *report.Output) {
+func setActiveOutput(o *outdir.Output) {
 	activeMu.Lock()
 	activeOut = o
 	activeMu.Unlock()
 }
 
-// handleInterrupts makes SIGINT and SIGTERM remove the output being written
+// abortActiveOutput removes the output being written, if any.
+func abortActiveOutput() {
+	activeMu.Lock()
+	defer activeMu.Unlock()
+	if activeOut != nil {
+		activeOut.Abort()
+	}
+}
+
+// handleInterrupts makes SIGINT, SIGTERM and SIGHUP (a closed terminal) remove the output being written
 // (its temporary folder; a folder already renamed into place is complete
 // and stays) and exit with the conventional status 128 + signal number. It
 // returns a function that stops the handling.
 func handleInterrupts(stderr io.Writer) func() {
 	sigs := make(chan os.Signal, 1)
-	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM)
+	signal.Notify(sigs, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
 	done := make(chan struct{})
 	go func() {
 		select {
 		case s := <-sigs:
-			activeMu.Lock()
-			if activeOut != nil {
-				activeOut.Abort()
-			}
+			abortActiveOutput()
 			fmt.Fprintf(stderr, "\npcqc: interrupted (%v); nothing was written\n", s)
 			code := 128 + int(s.(syscall.Signal))
 			os.Exit(code)

@@ -66,7 +66,7 @@ func fileHash(t *testing.T, path string) [32]byte {
 // An interrupted run leaves no partial output folder and no temporary
 // folder, and never touches its input.
 func TestInterruptLeavesNothing(t *testing.T) {
-	for _, sig := range []syscall.Signal{syscall.SIGINT, syscall.SIGTERM} {
+	for _, sig := range []syscall.Signal{syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP} {
 		t.Run(sig.String(), func(t *testing.T) {
 			dir := t.TempDir()
 			data := filepath.Join(dir, "input.csv")
@@ -124,10 +124,9 @@ func TestKilledRunIsCleanedUpByTheNext(t *testing.T) {
 func TestForceReplacesAtomically(t *testing.T) {
 	dir := t.TempDir()
 	out := filepath.Join(dir, "result")
-	if status, _, stderr := runPCQC(t, "run", usarrestsPath, "--out", out, "--bootstrap", "0", "--format", "none"); status != exitOK {
+	if status, _, stderr := runPCQC(t, "run", usarrestsPath, "--out", out, "--bootstrap", "0", "--format", "md"); status != exitOK {
 		t.Fatal(stderr)
 	}
-	os.WriteFile(filepath.Join(out, "left-over.txt"), []byte("old"), 0o644)
 	stop := make(chan struct{})
 	missing := make(chan string, 1)
 	go func() {
@@ -156,8 +155,10 @@ func TestForceReplacesAtomically(t *testing.T) {
 		t.Errorf("the output folder was missing during a --force replace: %s", m)
 	default:
 	}
-	if _, err := os.Stat(filepath.Join(out, "left-over.txt")); !os.IsNotExist(err) {
-		t.Error("files of the old folder survive --force")
+	for _, old := range []string{"report.md", "figures"} { // written by the first run only
+		if _, err := os.Stat(filepath.Join(out, old)); !os.IsNotExist(err) {
+			t.Errorf("%s of the old folder survives --force", old)
+		}
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 1 {
 		var names []string

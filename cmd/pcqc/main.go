@@ -11,10 +11,16 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"runtime/pprof"
+	"strconv"
+	"strings"
+	"syscall"
+	"unicode/utf8"
 
 	"pcqc/analysis"
+	"pcqc/outdir"
 )
 
 // Version is the pcqc version, written into every output.
@@ -25,7 +31,10 @@ const (
 	exitOK     = 0 // success, and no check reached the --fail-on level
 	exitChecks = 1 // outputs written, but a check reached the --fail-on level
 	exitUsage  = 2 // usage or input error; nothing written
-	exitOutput = 3 // the outputs could not be written
+	exitOutput = 3 // the outputs could not be written (disk full, permissions)
+	// exitInternal is a fault in pcqc itself, never in the user's input or
+	// system: EX_SOFTWARE of BSD's sysexits.h, "an internal software error".
+	exitInternal = 70
 )
 
 // usageError is a mistake in the command line.
@@ -35,10 +44,47 @@ func (e *usageError) Error() string { return e.msg }
 
 func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
 
-// outputError is a failure to write the outputs.
+// outputError is a failure of the file system to take the outputs.
 type outputError struct{ err error }
 
 func (e *outputError) Error() string { return e.err.Error() }
+
+// internalError is a fault in pcqc: a result it could not render or
+// encode. It is reported as such, never as a disk or input problem.
+type internalError struct{ err error }
+
+func (e *internalError) Error() string {
+	return "internal error: " + e.err.Error() + "; nothing was written. " + pleaseReport
+}
+
+const pleaseReport = "Please report this, with the command line, as a pcqc bug"
+
+// writeFailure sorts an error met while writing the outputs: the file
+// system's refusals (no space, no permission, a vanished folder) are
+// output errors (exit status 3); anything else is pcqc's own fault.
+func writeFailure(err error) error {
+	var pe *fs.PathError
+	var le *os.LinkError
+	var se *os.SyscallError
+	var errno syscall.Errno
+	var refused *outdir.RefusedError
+	switch {
+	case errors.As(err, &refused):
+		return err
+	case errors.As(err, &pe), errors.As(err, &le), errors.As(err, &se), errors.As(err, &errno):
+		return &outputError{err}
+	}
+	return &internalError{err}
+}
+
+// reportWritten tells where the output went, and where files of a replaced
+// folder that pcqc had not listed were kept.
+func reportWritten(stdout, stderr io.Writer, out *outdir.Output) {
+	fmt.Fprintf(stdout, "pcqc: wrote %s\n", out.Target())
+	if kept := out.Leftover(); kept != "" {
+		fmt.Fprintf(stderr, "pcqc: the replaced folder held files pcqc did not write; they were kept in %s\n", escapeControls(kept))
+	}
+}
 
 type command struct {
 	name    string
@@ -86,7 +132,22 @@ func runProcess(args []string) int {
 }
 
 // mainWithArgs runs pcqc and returns its exit status; tests call it directly.
-func mainWithArgs(args []string, stdout, stderr io.Writer) int {
+// A panic, which is always a bug, becomes one line on stderr and the
+// status exitInternal, after the output being written is removed; panics
+// in worker goroutines reach here too (analysis re-raises them in the
+// caller).
+func mainWithArgs(args []string, stdout, stderr io.Writer) (status int) {
+	defer func() {
+		if r := recover(); r != nil {
+			abortActiveOutput()
+			name := "pcqc"
+			if len(args) > 0 && lookupCommand(args[0]) != nil {
+				name += " " + args[0]
+			}
+			fmt.Fprintf(stderr, "%s: internal error: %s; nothing was written. %s\n", name, oneLine(fmt.Sprint(r)), pleaseReport)
+			status = exitInternal
+		}
+	}()
 	if len(args) == 0 {
 		printTopHelp(stderr)
 		return exitUsage
@@ -108,23 +169,50 @@ func statusFor(err error) int {
 	var ue *usageError
 	var ie *analysis.InputError
 	var oe *outputError
+	var internal *internalError
+	var refused *outdir.RefusedError
 	switch {
-	case errors.As(err, &ue), errors.As(err, &ie):
+	case errors.As(err, &ue), errors.As(err, &ie), errors.As(err, &refused):
 		return exitUsage
+	case errors.As(err, &internal):
+		return exitInternal
 	case errors.As(err, &oe):
 		return exitOutput
 	}
 	return exitUsage
 }
 
-// oneLine keeps an error message on one line of stderr.
+// oneLine keeps an error message on one line of stderr, with every other
+// control character escaped.
 func oneLine(s string) string {
-	out := []rune{}
-	for _, r := range s {
-		if r == '\n' || r == '\r' {
-			r = ' '
+	return escapeControls(strings.NewReplacer("\r\n", " ", "\n", " ", "\r", " ").Replace(s))
+}
+
+// escapeControls writes control characters as Go escapes (\x1b, \u202e),
+// so that text from a user's file cannot drive the terminal (ESC and OSC
+// sequences) or reorder what it shows (bidirectional overrides). Invalid
+// UTF-8 is escaped byte by byte.
+func escapeControls(s string) string {
+	var b strings.Builder
+	for i, w := 0, 0; i < len(s); i += w {
+		r, size := utf8.DecodeRuneInString(s[i:])
+		w = size
+		switch {
+		case r == utf8.RuneError && size == 1:
+			fmt.Fprintf(&b, "\\x%02x", s[i])
+		case isControl(r):
+			q := strconv.QuoteRune(r)
+			b.WriteString(q[1 : len(q)-1])
+		default:
+			b.WriteRune(r)
 		}
-		out = append(out, r)
 	}
-	return string(out)
+	return b.String()
+}
+
+// isControl reports the characters escaped on stderr: C0 (but tab), DEL,
+// C1, and the bidirectional embedding, override and isolate controls.
+func isControl(r rune) bool {
+	return (r < 0x20 && r != '\t') || (r >= 0x7f && r < 0xa0) ||
+		(r >= 0x202a && r <= 0x202e) || (r >= 0x2066 && r <= 0x2069)
 }

@@ -66,7 +66,8 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-review"
 	}
-	read, err := f.validate()
+	reads := []string{data, loadingsPath, scoresPath, variancePath}
+	read, err := f.validate(reads...)
 	if err != nil {
 		return 0, err
 	}
@@ -129,6 +130,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 		read:    read,
 		table:   t,
 		command: append([]string{"pcqc", "review"}, args...),
+		reads:   reads,
 		review:  rv,
 		adjust:  adjust,
 		title:   "Review of a PCA of " + filepath.Base(data),

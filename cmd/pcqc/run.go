@@ -21,11 +21,13 @@ singular value decomposition, checks the result, and writes the output folder
 
 The output folder is written complete or not at all: files are written to a
 temporary folder beside it and renamed into place. An existing non-empty
-output folder is refused unless --force is given.
+output folder is refused unless --force is given, and even then unless pcqc
+wrote it (see --force below).
 
 Exit status: 0 success, 1 a check reached the --fail-on level (the
 outputs are written), 2 usage or input error (nothing is written), 3 the
-outputs could not be written.
+file system refused the outputs, 70 an internal error (a bug; please
+report it), 129/130/143 interrupted.
 
 ` + auditFlagHelp,
 	run: runRun,
@@ -43,7 +45,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-pcqc"
 	}
-	read, err := f.validate()
+	read, err := f.validate(data)
 	if err != nil {
 		return 0, err
 	}
@@ -54,7 +56,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
-	return runAudit(auditJob{flags: &f, read: read, table: t, command: append([]string{"pcqc", "run"}, args...)}, stdout, stderr)
+	return runAudit(auditJob{flags: &f, read: read, table: t, reads: []string{data}, command: append([]string{"pcqc", "run"}, args...)}, stdout, stderr)
 }
 
 func pathReason(err error) string {

@@ -1,4 +1,4 @@
-package report
+package outdir
 
 import "golang.org/x/sys/unix"
 

@@ -1,6 +1,6 @@
 //go:build !unix
 
-package report
+package outdir
 
 // processAlive cannot tell on this system; stale folders are then kept.
 func processAlive(pid int) bool { return true }
