@@ -5,7 +5,6 @@ import (
 	"bytes"
 	"fmt"
 	"io"
-	"os"
 	"strconv"
 	"strings"
 	"unicode"
@@ -24,14 +23,15 @@ type LooseTable struct {
 	Lines     []int // line of each row
 }
 
-// ReadLooseTable reads the named file.
+// ReadLooseTable reads the named file, which must be a regular file of at
+// most TheirTable.Max bytes (see OpenRegular).
 func ReadLooseTable(path string) (*LooseTable, error) {
-	f, err := os.Open(path)
+	r, err := OpenRegular(path, TheirTable)
 	if err != nil {
-		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+		return nil, err
 	}
-	defer f.Close()
-	return ReadLooseTableFrom(path, f)
+	defer r.Close()
+	return ReadLooseTableFrom(path, r)
 }
 
 // ReadLooseTableFrom reads a loose table from r; name is used in messages.
