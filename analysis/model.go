@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"bufio"
 	"bytes"
 	"encoding/json"
 	"errors"
@@ -10,6 +11,7 @@ import (
 	"math"
 	"os"
 	"slices"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -407,4 +409,84 @@ func (m *Model) LoadingsMatrix() *mat.Dense {
 // Preprocessing returns the model's preprocessing.
 func (m *Model) Preprocessing() Preprocessing {
 	return Preprocessing{Transform: m.Transform, Scaling: m.Scaling, Means: m.Means, Scales: m.Scales, SDs: m.SDs}
+}
+
+// ReadTrainingScores reads the training scores on the first two components
+// from an audit folder's scores.csv, which run writes as the id column and
+// then PC1, PC2, …; apply draws them behind the new samples. It returns nil
+// when the model has one component (that plot has no training background)
+// or the file is missing (the folder may have been pruned). Anything else
+// that is wrong is an InputError: a path that is not a regular file or is
+// larger than TrainingScoresFile.Max, a file that is not such a table, one
+// whose rows are not the model's training samples, or a score that the
+// model cannot have produced: the scores on component a have sum of
+// squares (n−1)λ_a, so no |t_ia| exceeds √((n−1)λ_a) (beyond rounding,
+// allowed as 1e-6 of it and of √((n−1)Σλ)).
+func ReadTrainingScores(path string, m *Model) (*mat.Dense, error) {
+	if m.Retained < 2 {
+		return nil, nil
+	}
+	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
+		return nil, nil
+	}
+	r, err := OpenRegular(path, TrainingScoresFile)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	damaged := func(line, col int, name, text, reason string) error {
+		return &InputError{File: path, Line: line, Column: col, Name: name, Text: text, Reason: "damaged audit folder: " + reason}
+	}
+	br := bufio.NewReaderSize(r, 1<<20)
+	peek, _ := br.Peek(br.Size())
+	if i := bytes.IndexByte(peek, '\n'); i >= 0 {
+		peek = peek[:i+1]
+	}
+	header, err := newRecordReader(bufio.NewReader(bytes.NewReader(peek)), ',').read()
+	if err != nil {
+		return nil, damaged(1, 0, "", "", "scores.csv has no header of the id and PC1, PC2, …")
+	}
+	want := []string{"PC1", "PC2"}
+	cols := make([]int, len(want))
+	for c, name := range want {
+		cols[c] = slices.IndexFunc(header, func(h []byte) bool { return strings.TrimSpace(string(h)) == name })
+		if cols[c] < 1 {
+			return nil, damaged(1, 0, "", "", fmt.Sprintf("scores.csv has no %s column after its id column, though the model retains %d components", name, m.Retained))
+		}
+	}
+	t, err := ReadTableFrom(path, br, ReadOptions{Delimiter: ',', Columns: want, MinRows: 1, KeepConstant: true})
+	if err != nil {
+		var ie *InputError
+		if errors.As(err, &ie) {
+			// The reader's advice (flags such as --drop) is for data
+			// tables; what remains says what is wrong with the file.
+			reason, _, _ := strings.Cut(ie.Reason, "; ")
+			reason, _, _ = strings.Cut(reason, " (use ")
+			reason = "damaged audit folder: scores.csv is not as run writes it: " + strings.TrimSuffix(reason, ":")
+			if ie.Text != "" {
+				reason += ":"
+			}
+			ie.Reason = reason
+		}
+		return nil, err
+	}
+	n := m.Input.Rows
+	if t.Rows() != n {
+		return nil, damaged(0, 0, "", "", fmt.Sprintf("scores.csv has %d samples, but the model was trained on %d (is it from another run?)", t.Rows(), n))
+	}
+	total := 0.0
+	for _, l := range m.Eigenvalues {
+		total += l
+	}
+	slack := 1e-6 * math.Sqrt(float64(n-1)*total)
+	for c, name := range want {
+		bound := math.Sqrt(float64(n-1)*m.Eigenvalues[c])*(1+1e-6) + slack
+		for i := 0; i < n; i++ {
+			if v := t.X.At(i, c); !(math.Abs(v) <= bound) {
+				return nil, damaged(t.Lines[i], cols[c]+1, name, strconv.FormatFloat(v, 'g', -1, 64),
+					fmt.Sprintf("a training score beyond the ±%.4g the model's eigenvalue allows:", bound))
+			}
+		}
+	}
+	return t.X, nil
 }
