@@ -10,6 +10,7 @@ import (
 	"io/fs"
 	"math"
 	"os"
+	"regexp"
 	"slices"
 	"strconv"
 	"strings"
@@ -146,11 +147,7 @@ func decodeModel(name string, b []byte) (*Model, error) {
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&m); err != nil {
-		line, col, reason := jsonErrorPosition(b, err)
-		if line == 0 {
-			line, col = offsetPosition(b, dec.InputOffset())
-		}
-		return nil, damaged(line, col, reason)
+		return nil, damaged(jsonErrorPosition(b, err))
 	}
 	if err := m.validate(); err != nil {
 		return nil, damaged(0, 0, err.Error())
@@ -177,7 +174,14 @@ func jsonErrorPosition(b []byte, err error) (line, col int, reason string) {
 	case errors.Is(err, io.ErrUnexpectedEOF), errors.Is(err, io.EOF):
 		return 0, 0, "the file ends before the model does (truncated?)"
 	}
-	return 0, 0, strings.TrimPrefix(err.Error(), "json: ")
+	reason = strings.TrimPrefix(err.Error(), "json: ")
+	// An unknown field has no offset of its own: find its key.
+	if quoted, ok := strings.CutPrefix(reason, "unknown field "); ok {
+		if key := regexp.MustCompile(regexp.QuoteMeta(quoted) + `\s*:`).FindIndex(b); key != nil {
+			line, col = offsetPosition(b, int64(key[0]+1))
+		}
+	}
+	return line, col, reason
 }
 
 // offsetPosition returns the 1-based line and column (in bytes) of byte

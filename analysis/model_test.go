@@ -173,7 +173,7 @@ func TestDamagedModelsAreRefused(t *testing.T) {
 		{"NaN", text(`"t2_95": `, `"t2_95": NaN, "x": `), "damaged model: not valid JSON"},
 		{"overflowing number", text(`"retained": 2`, `"retained": 2, "means": [1e400]`), "damaged model: means holds number 1e400 where a float64 belongs"},
 		{"string for number", text(`"retained": 2`, `"retained": "two"`), "damaged model: retained holds string where a int belongs"},
-		{"unknown field", text(`"retained": 2`, `"retained": 2, "rotation": "varimax"`), `damaged model: unknown field "rotation"`},
+		{"unknown field", text(`"retained": 2`, `"retained": 2, "rotation": "varimax"`), `model.json:42:18: damaged model: unknown field "rotation"`},
 		{"no format", text(`"format": 1`, `"formats": 1`), "damaged model: no format number"},
 		{"empty", "", "damaged model: not valid JSON: unexpected end of JSON input"},
 		{"null", "null", "damaged model: no format number"},
