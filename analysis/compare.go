@@ -171,7 +171,10 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []
 		mat.Col(col, a, ours)
 		phi := TuckerCongruence(theirs, col)
 		r.Congruence[a], r.Flipped[a] = math.Abs(phi), phi < 0
-		bestPhi := -1.0
+		// A column congruent with none of ours (a zero column) keeps its
+		// own place rather than being called our first component.
+		bestPhi := 0.0
+		r.MatchOf[a] = a
 		for b := 0; b < min(mAll, k+2); b++ {
 			mat.Col(col, b, &all)
 			if f := math.Abs(TuckerCongruence(theirs, col)); f > bestPhi {
@@ -221,7 +224,14 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []
 		for a := 0; a < k; a++ {
 			mat.Col(theirs, a, l.V)
 			dir := mat.NewVecDense(p, theirs)
-			dir.ScaleVec(1/mat.Norm(dir, 2), dir)
+			norm := mat.Norm(dir, 2)
+			if !(norm > NegligibleNorm) {
+				// A zero (or denormal) column is no direction: the data
+				// carry no variance along it, and dividing by its length
+				// would give NaN.
+				continue
+			}
+			dir.ScaleVec(1/norm, dir)
 			u.MulVec(best.z, dir)
 			_, sd := meanSD(u, 0)
 			r.ComponentVariance[a] = sd * sd
@@ -243,6 +253,13 @@ func variantMatrix(x *mat.Dense, centred bool, scaling Scaling) (*mat.Dense, err
 	}
 	return pp.Apply(nil, x), nil
 }
+
+// NegligibleNorm is the length below which a column of loadings counts as
+// zero: it cannot be a unit vector, nor one scaled by a component's
+// standard deviation, at any printed precision (the same 1e-100 below which
+// unscaled data are refused, see checkMagnitude). Denormal values such as
+// 5e-324 fall far below it.
+const NegligibleNorm = 1e-100
 
 // orthonormalBasis returns an orthonormal basis of the columns of v (thin
 // QR), so that loadings given with other column norms compare by subspace.
@@ -314,7 +331,9 @@ func scaledBySD(v *mat.Dense, norms, eigenvalues []float64) bool {
 	g.Mul(v.T(), v)
 	unitLength := true
 	for a := 0; a < k; a++ {
-		if math.Abs(norms[a]*norms[a]/eigenvalues[a]-1) > 0.05 {
+		// Written so that a zero eigenvalue or column, whose ratio is NaN,
+		// answers no rather than slipping past a "> 0.05" test.
+		if !(norms[a] > NegligibleNorm && eigenvalues[a] > 0 && math.Abs(norms[a]*norms[a]/eigenvalues[a]-1) <= 0.05) {
 			return false
 		}
 		if math.Abs(norms[a]-1) > 0.05 {

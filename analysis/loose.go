@@ -5,7 +5,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
-	"os"
+	"math"
 	"strconv"
 	"strings"
 	"unicode"
@@ -24,14 +24,15 @@ type LooseTable struct {
 	Lines     []int // line of each row
 }
 
-// ReadLooseTable reads the named file.
+// ReadLooseTable reads the named file, which must be a regular file of at
+// most TheirTable.Max bytes (see OpenRegular).
 func ReadLooseTable(path string) (*LooseTable, error) {
-	f, err := os.Open(path)
+	r, err := OpenRegular(path, TheirTable)
 	if err != nil {
-		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+		return nil, err
 	}
-	defer f.Close()
-	return ReadLooseTableFrom(path, f)
+	defer r.Close()
+	return ReadLooseTableFrom(path, r)
 }
 
 // ReadLooseTableFrom reads a loose table from r; name is used in messages.
@@ -91,42 +92,126 @@ func ReadLooseTableFrom(name string, r io.Reader) (*LooseTable, error) {
 }
 
 // Number reads a cell of a loose table; with semicolons as delimiter a
-// decimal comma is accepted too.
+// decimal comma is accepted too. Only finite numbers are numbers; see
+// numberLike for what counts when telling number columns from text.
 func (t *LooseTable) Number(cell string) (float64, bool) {
-	v, kind := parseCell([]byte(cell))
-	if kind == cellNumber {
-		return v, true
-	}
-	if t.Delimiter != ',' && strings.Count(cell, ",") == 1 && !strings.Contains(cell, ".") {
-		v, kind = parseCell([]byte(strings.Replace(cell, ",", ".", 1)))
-		return v, kind == cellNumber
-	}
-	return 0, false
+	v, kind := t.parse(cell)
+	return v, kind == cellNumber
 }
 
-// NumericColumn reports whether every cell of column j is a number.
+func (t *LooseTable) parse(cell string) (float64, cellKind) {
+	v, kind := parseCell([]byte(cell))
+	if kind == cellText && t.Delimiter != ',' && strings.Count(cell, ",") == 1 && !strings.Contains(cell, ".") {
+		v, kind = parseCell([]byte(strings.Replace(cell, ",", ".", 1)))
+	}
+	return v, kind
+}
+
+// numberLike reports whether a cell is written as a number, finite or not:
+// a column of numbers with one "Inf" or "1e999" among them is a column of
+// numbers with a bad cell, to be refused where it is used rather than
+// ignored as text.
+func (t *LooseTable) numberLike(cell string) bool {
+	_, kind := t.parse(cell)
+	return kind == cellNumber || kind == cellInfinite
+}
+
+// NumericColumn reports whether every cell of column j is written as a
+// number (see numberLike).
 func (t *LooseTable) NumericColumn(j int) bool {
 	for _, r := range t.Rows {
-		if _, ok := t.Number(r[j]); !ok {
+		if !t.numberLike(r[j]) {
 			return false
 		}
 	}
 	return true
 }
 
-// decimals returns the most digits after the decimal point among the cells.
+// MaxMagnitude is the largest |value| accepted in another person's loadings,
+// scores or variances. As for unscaled data (see checkMagnitude), the review
+// squares and multiplies these numbers, and beyond 1e100 the sums of their
+// squares leave double precision.
+const MaxMagnitude = 1e100
+
+// value reads the cell of row i, column j for the computation: a number no
+// larger than MaxMagnitude in magnitude. Anything else is an InputError
+// with the file, line, column, name and cell, saying what the table should
+// hold there (what, e.g. "loading").
+func (t *LooseTable) value(i, j int, what string) (float64, error) {
+	cell := t.Rows[i][j]
+	v, kind := t.parse(cell)
+	fail := func(reason string) error {
+		return &InputError{File: t.Name, Line: t.Lines[i], Column: j + 1, Name: t.Header[j], Text: cell, Reason: reason}
+	}
+	switch {
+	case kind == cellInfinite:
+		return 0, fail(fmt.Sprintf("the %s is infinite or beyond double precision:", what))
+	case kind != cellNumber:
+		return 0, fail(fmt.Sprintf("cannot read the %s as a number:", what))
+	case math.Abs(v) > MaxMagnitude:
+		return 0, fail(fmt.Sprintf("the %s is beyond ±1e100, where its square leaves double precision:", what))
+	}
+	return v, nil
+}
+
+// decimals returns the most digits printed after the decimal point among
+// the cells (see printedDecimals).
 func decimals(cells []string) int {
 	best := 0
 	for _, c := range cells {
-		c = strings.ToLower(c)
-		if i := strings.IndexAny(c, "e"); i >= 0 {
-			c = c[:i]
-		}
-		if i := strings.IndexAny(c, ".,"); i >= 0 {
-			best = max(best, len(c)-i-1)
-		}
+		best = max(best, printedDecimals(c))
 	}
 	return best
+}
+
+// maxDecimals bounds printedDecimals: half a unit of the 400th decimal is
+// zero in double precision already.
+const maxDecimals = 400
+
+// printedDecimals returns the decimal places a number is printed to: the
+// digits after the decimal point (or comma) of its mantissa, shifted by its
+// exponent, so that "1.234e-05" has 8 (a unit of 1e-8) and "1.5e+03" none.
+// Hexadecimal numbers give 0 (their precision is not decimal).
+func printedDecimals(cell string) int {
+	c := strings.TrimLeft(strings.ToLower(strings.TrimSpace(cell)), "+-")
+	if strings.HasPrefix(c, "0x") {
+		return 0
+	}
+	mantissa, exp := c, 0
+	if i := strings.IndexByte(c, 'e'); i >= 0 {
+		mantissa = c[:i]
+		e, err := strconv.Atoi(c[i+1:])
+		switch {
+		case err == nil:
+			exp = e
+		case strings.HasPrefix(c[i+1:], "-"):
+			exp = -maxDecimals // an exponent beyond int: far below any unit
+		default:
+			exp = maxDecimals
+		}
+	}
+	d := 0
+	if i := strings.IndexAny(mantissa, ".,"); i >= 0 {
+		d = len(mantissa) - i - 1
+	}
+	return min(max(d-max(exp, -maxDecimals), 0), maxDecimals)
+}
+
+// ignoredNote says in one note what was ignored, naming at most three of the
+// items, so that a table of 200,000 rows that match nothing gives one line
+// rather than 200,000. one and many are the noun ("row", "rows") and why the
+// sentence for one and for many ("names no data variable", "name no data
+// variable").
+func ignoredNote(items []string, one, many, whyOne, whyMany string) string {
+	const shown = 3
+	if len(items) == 1 {
+		return fmt.Sprintf("%s %s %s and was ignored", one, items[0], whyOne)
+	}
+	list := strings.Join(items[:min(len(items), shown)], ", ")
+	if len(items) > shown {
+		return fmt.Sprintf("%d %s %s and were ignored, e.g. %s", len(items), many, whyMany, list)
+	}
+	return fmt.Sprintf("%d %s %s and were ignored: %s", len(items), many, whyMany, list)
 }
 
 // nameKey folds a name for loose matching: lower case, letters and digits

@@ -78,17 +78,24 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 	if bestRows >= inHeader {
 		l.Layout = LayoutVariableRows
 		var compCols []int
+		var text, summaries, unmatched []string
 		for j, h := range t.Header {
 			switch {
 			case j == bestCol:
 			case !t.NumericColumn(j):
-				l.Notes = append(l.Notes, fmt.Sprintf("column %q is not numeric and was ignored", h))
+				text = append(text, quoteText(h))
 			case slices.Contains(nonComponentNames, strings.ToLower(h)):
-				l.Notes = append(l.Notes, fmt.Sprintf("column %q is a summary, not a component, and was ignored", h))
+				summaries = append(summaries, quoteText(h))
 			default:
 				compCols = append(compCols, j)
 				l.Components = append(l.Components, h)
 			}
+		}
+		if len(text) > 0 {
+			l.Notes = append(l.Notes, ignoredNote(text, "column", "columns", "is not numeric", "are not numeric"))
+		}
+		if len(summaries) > 0 {
+			l.Notes = append(l.Notes, ignoredNote(summaries, "column", "columns", "is a summary, not a component,", "are summaries, not components,"))
 		}
 		if len(compCols) == 0 {
 			return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric component column beside the variable names"}
@@ -97,7 +104,7 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 		for i, r := range t.Rows {
 			v, ok := m.find(r[bestCol])
 			if !ok {
-				l.Notes = append(l.Notes, fmt.Sprintf("row %q (line %d) names no data variable and was ignored", r[bestCol], t.Lines[i]))
+				unmatched = append(unmatched, fmt.Sprintf("%s (line %d)", quoteText(r[bestCol]), t.Lines[i]))
 				continue
 			}
 			if seen[v] {
@@ -106,15 +113,22 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 			seen[v] = true
 			e := entry{variable: v}
 			for _, j := range compCols {
-				x, _ := t.Number(r[j])
+				x, err := t.value(i, j, "loading")
+				if err != nil {
+					return nil, err
+				}
 				e.values = append(e.values, x)
 				cells = append(cells, r[j])
 			}
 			entries = append(entries, e)
 		}
+		if len(unmatched) > 0 {
+			l.Notes = append(l.Notes, ignoredNote(unmatched, "row", "rows", "names no data variable", "name no data variable"))
+		}
 	} else {
 		l.Layout = LayoutVariableColumns
 		var varCols []int
+		var unmatched, summaries []string
 		seen := map[int]bool{}
 		nameCol := -1
 		for j, h := range t.Header {
@@ -127,40 +141,41 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 				nameCol = j
 				continue
 			}
-			l.Notes = append(l.Notes, fmt.Sprintf("column %q names no data variable and was ignored", h))
+			unmatched = append(unmatched, quoteText(h))
 		}
+		if len(unmatched) > 0 {
+			l.Notes = append(l.Notes, ignoredNote(unmatched, "column", "columns", "names no data variable", "name no data variable"))
+		}
+		var compRows []int
 		for i, r := range t.Rows {
 			name := fmt.Sprintf("row %d", i+1)
 			if nameCol >= 0 {
 				name = r[nameCol]
 			}
 			if slices.Contains(nonComponentNames, strings.ToLower(name)) {
-				l.Notes = append(l.Notes, fmt.Sprintf("row %q is a summary, not a component, and was ignored", name))
+				summaries = append(summaries, fmt.Sprintf("%s (line %d)", quoteText(name), t.Lines[i]))
 				continue
 			}
-			for _, j := range varCols {
-				if _, ok := t.Number(r[j]); !ok {
-					return nil, &InputError{File: t.Name, Line: t.Lines[i], Column: j + 1, Name: t.Header[j], Text: r[j], Reason: "cannot read loading as a number:"}
-				}
-			}
+			compRows = append(compRows, i)
 			l.Components = append(l.Components, name)
 		}
-		for _, j := range varCols {
-			v, _ := m.find(t.Header[j])
-			e := entry{variable: v}
-			for i, r := range t.Rows {
-				name := fmt.Sprintf("row %d", i+1)
-				if nameCol >= 0 {
-					name = r[nameCol]
+		if len(summaries) > 0 {
+			l.Notes = append(l.Notes, ignoredNote(summaries, "row", "rows", "is a summary, not a component,", "are summaries, not components,"))
+		}
+		values := make([][]float64, len(varCols))
+		for _, i := range compRows {
+			for c, j := range varCols {
+				x, err := t.value(i, j, "loading")
+				if err != nil {
+					return nil, err
 				}
-				if slices.Contains(nonComponentNames, strings.ToLower(name)) {
-					continue
-				}
-				x, _ := t.Number(r[j])
-				e.values = append(e.values, x)
-				cells = append(cells, r[j])
+				values[c] = append(values[c], x)
+				cells = append(cells, t.Rows[i][j])
 			}
-			entries = append(entries, e)
+		}
+		for c, j := range varCols {
+			v, _ := m.find(t.Header[j])
+			entries = append(entries, entry{variable: v, values: values[c]})
 		}
 	}
 	if len(entries) < 2 {
@@ -217,14 +232,18 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 	}
 	s := &TheirScores{File: t.Name}
 	var scoreCols []int
+	var text []string
 	for j, h := range t.Header {
 		switch {
 		case j == idCol:
 		case !t.NumericColumn(j):
-			s.Notes = append(s.Notes, fmt.Sprintf("column %q is not numeric and was ignored", h))
+			text = append(text, quoteText(h))
 		default:
 			scoreCols = append(scoreCols, j)
 		}
+	}
+	if len(text) > 0 {
+		s.Notes = append(s.Notes, ignoredNote(text, "column", "columns", "is not numeric", "are not numeric"))
 	}
 	if len(scoreCols) == 0 {
 		return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric score column"}
@@ -241,10 +260,11 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 	if idCol >= 0 {
 		s.MatchedBy = fmt.Sprintf("by sample id (column %q)", t.Header[idCol])
 		filled := make([]bool, n)
+		var unknown []string
 		for i, r := range t.Rows {
 			row, ok := m.exact[r[idCol]]
 			if !ok {
-				s.Notes = append(s.Notes, fmt.Sprintf("sample %q (line %d) is not in the data and was ignored", r[idCol], t.Lines[i]))
+				unknown = append(unknown, fmt.Sprintf("%s (line %d)", quoteText(r[idCol]), t.Lines[i]))
 				continue
 			}
 			if filled[row] {
@@ -252,10 +272,16 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 			}
 			filled[row] = true
 			for c, j := range scoreCols {
-				v, _ := t.Number(r[j])
+				v, err := t.value(i, j, "score")
+				if err != nil {
+					return nil, err
+				}
 				s.T.Set(row, c, v)
 				cells = append(cells, r[j])
 			}
+		}
+		if len(unknown) > 0 {
+			s.Notes = append(s.Notes, ignoredNote(unknown, "sample", "samples", "is not in the data", "are not in the data"))
 		}
 		if missing := slices.Index(filled, false); missing >= 0 {
 			count := 0
@@ -273,7 +299,10 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 		s.MatchedBy = "by row order (no column holds the sample ids)"
 		for i, r := range t.Rows {
 			for c, j := range scoreCols {
-				v, _ := t.Number(r[j])
+				v, err := t.value(i, j, "score")
+				if err != nil {
+					return nil, err
+				}
 				s.T.Set(i, c, v)
 				cells = append(cells, r[j])
 			}
@@ -295,25 +324,39 @@ const (
 
 // ParseVarianceValues reads the numbers of a variance table: the numeric
 // column (preferring one whose header names what it holds) or, for a table
-// of one row, that row. It returns the values and the header hint.
+// of one row, that row. It returns the values and the header hint. A value
+// used that is not a finite number within ±MaxMagnitude is an InputError.
 func ParseVarianceValues(t *LooseTable) ([]float64, string, error) {
-	var candidates [][]float64
+	var candidates []int
 	var hints []string
 	for j, h := range t.Header {
-		if !t.NumericColumn(j) {
-			continue
+		if t.NumericColumn(j) {
+			candidates = append(candidates, j)
+			hints = append(hints, strings.ToLower(h))
 		}
-		var col []float64
-		for _, r := range t.Rows {
-			v, _ := t.Number(r[j])
-			col = append(col, v)
+	}
+	column := func(c int) ([]float64, string, error) {
+		out := make([]float64, len(t.Rows))
+		for i := range t.Rows {
+			v, err := t.value(i, candidates[c], "variance")
+			if err != nil {
+				return nil, "", err
+			}
+			out[i] = v
 		}
-		candidates = append(candidates, col)
-		hints = append(hints, strings.ToLower(h))
+		return out, hints[c], nil
 	}
 	if len(t.Rows) == 1 && len(candidates) > 1 {
 		// One row of values, components in the header.
-		return candidatesRow(candidates), "", nil
+		out := make([]float64, len(candidates))
+		for c, j := range candidates {
+			v, err := t.value(0, j, "variance")
+			if err != nil {
+				return nil, "", err
+			}
+			out[c] = v
+		}
+		return out, "", nil
 	}
 	if len(candidates) == 0 {
 		return nil, "", &InputError{File: t.Name, Line: 1, Reason: "no numeric column of variances"}
@@ -322,20 +365,12 @@ func ParseVarianceValues(t *LooseTable) ([]float64, string, error) {
 		for _, pref := range []string{"percent", "%", "proportion", "prop", "eigen", "variance", "sd", "std"} {
 			for c, h := range hints {
 				if strings.Contains(h, pref) && !strings.Contains(h, "cum") {
-					return candidates[c], h, nil
+					return column(c)
 				}
 			}
 		}
 	}
-	return candidates[0], hints[0], nil
-}
-
-func candidatesRow(c [][]float64) []float64 {
-	out := make([]float64, len(c))
-	for i, col := range c {
-		out[i] = col[0]
-	}
-	return out
+	return column(0)
 }
 
 // DetectVarianceKind decides whether values are eigenvalues, standard

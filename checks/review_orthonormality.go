@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"pcqc/analysis"
 )
 
 var reviewOrthonormality = Check{
@@ -22,7 +24,19 @@ var reviewOrthonormality = Check{
 		for a, n := range rv.ColumnNorms {
 			norms[a] = fmt.Sprintf("%.3g", n)
 		}
+		var zero []string
+		for a, n := range rv.ColumnNorms {
+			if !(n > analysis.NegligibleNorm) {
+				zero = append(zero, rv.Loadings.Components[a])
+			}
+		}
 		switch {
+		case len(zero) > 0:
+			// Checked first: a zero column is no direction whatever the
+			// printed precision, and with loadings printed as whole numbers
+			// the allowance alone would let it pass.
+			r.Status = Fail
+			r.Message = fmt.Sprintf("The reported loadings of %s are zero or vanishingly small (column lengths %s), so they are not orthonormal and cannot be PCA loadings: they were lost, truncated or printed with too few digits.", strings.Join(zero, ", "), strings.Join(norms, ", "))
 		case e <= tol:
 			r.Status = Pass
 			r.Message = fmt.Sprintf("The reported loadings are orthonormal to their printed precision (max |VᵀV − I| = %s, allowance %s for %d decimals).", sci(e), sci(tol), rv.Loadings.Decimals)

@@ -197,3 +197,47 @@ func TestReviewScalingAndLoadingConventions(t *testing.T) {
 		t.Errorf("scaled loadings span the same subspace: %s", rs["review-subspace"].Message)
 	}
 }
+
+// Loadings that are zero, or denormal like 5e-324, fail the orthonormality
+// finding whatever their printed precision ("0" has no decimals, which
+// alone would allow an error of 2√p · 0.5); the review order does not call
+// a zero column our first component; correct loadings printed with an
+// exponent pass, their decimals counted through the exponent.
+func TestReviewOrthonormalityOfDegenerateLoadings(t *testing.T) {
+	tab := usarrestsTable(t)
+	rows := func(cells [4][2]string) string {
+		var b strings.Builder
+		b.WriteString(",PC1,PC2\n")
+		for j, v := range []string{"Murder", "Assault", "UrbanPop", "Rape"} {
+			fmt.Fprintf(&b, "%s,%s,%s\n", v, cells[j][0], cells[j][1])
+		}
+		return b.String()
+	}
+	all := func(c string) [4][2]string { return [4][2]string{{c, c}, {c, c}, {c, c}, {c, c}} }
+	// prcomp(USArrests, scale. = TRUE)$rotation[, 1:2], R 4.3 (from memory,
+	// and reproduced by the recomputation in this test), printed in
+	// scientific notation with 4 significant digits.
+	exp := [4][2]string{{"-5.359e-01", "4.182e-01"}, {"-5.832e-01", "1.880e-01"}, {"-2.782e-01", "-8.728e-01"}, {"-5.434e-01", "-1.673e-01"}}
+	cases := []struct {
+		name     string
+		loadings string
+		want     Status
+		message  string
+	}{
+		{"zeros", rows(all("0")), Fail, "are zero or vanishingly small"},
+		{"zeros with decimals", rows(all("0.000")), Fail, "are zero or vanishingly small"},
+		{"denormal", rows(all("5e-324")), Fail, "are zero or vanishingly small"},
+		{"one zero column", rows([4][2]string{{"-0.536", "0"}, {"-0.583", "0"}, {"-0.278", "0"}, {"-0.543", "0"}}), Fail, "of PC2 are zero"},
+		{"exponent notation", rows(exp), Pass, "for 4 decimals"},
+	}
+	for _, c := range cases {
+		r := reviewChecks(t, tab, c.loadings, "", "", "")
+		got := r["review-orthonormality"]
+		if got.Status != c.want || !strings.Contains(got.Message, c.message) {
+			t.Errorf("%s: %s %q, want %s with %q", c.name, got.Status, got.Message, c.want, c.message)
+		}
+		if c.want == Fail && strings.Contains(r["review-order"].Message, "PC2 is the recomputed PC1") {
+			t.Errorf("%s: a zero column is matched to our PC1: %s", c.name, r["review-order"].Message)
+		}
+	}
+}

@@ -4,11 +4,8 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"time"
-
-	"gonum.org/v1/gonum/mat"
 
 	"pcqc/analysis"
 	"pcqc/checks"
@@ -75,6 +72,10 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
+	training, err := analysis.ReadTrainingScores(filepath.Join(auditDir, "scores.csv"), model)
+	if err != nil {
+		return 0, err
+	}
 	t, others, err := readForModel(data, model, read)
 	if err != nil {
 		return 0, err
@@ -84,7 +85,7 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	run := report.ApplyRun{
 		App:            app,
 		Checks:         checks.RunAll(checks.Input{Apply: app}),
-		TrainingScores: trainingScores(auditDir),
+		TrainingScores: training,
 		AuditDir:       auditDir,
 	}
 	meta := report.Meta{Version: Version, Command: append([]string{"pcqc", "apply"}, args...), Options: f.applyOptions(read, t)}
@@ -167,20 +168,6 @@ func listVariables(v []string) string {
 		return fmt.Sprintf("%s … and %d more", v[:8], len(v)-8)
 	}
 	return fmt.Sprint(v)
-}
-
-// trainingScores reads the training scores the audit folder holds, for the
-// background of the score plot; nil when it has none.
-func trainingScores(dir string) *mat.Dense {
-	path := filepath.Join(dir, "scores.csv")
-	if _, err := os.Stat(path); err != nil {
-		return nil
-	}
-	t, err := analysis.ReadTable(path, analysis.ReadOptions{MinRows: 1, KeepConstant: true})
-	if err != nil {
-		return nil
-	}
-	return t.X
 }
 
 func (f *auditFlags) applyOptions(read analysis.ReadOptions, t *analysis.Table) report.Options {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"path/filepath"
 	"slices"
@@ -19,10 +20,21 @@ import (
 //	                   a one-line error holding every fragment, and no output
 //	                   folder
 //	generate: NAME     the data file is built by the test (too large to keep)
+//	apply: model       the file is an audit folder's model.json, applied to
+//	                   usarrests.csv (instead of a data file for run)
+//	apply: scores      the file is an audit folder's scores.csv, beside
+//	                   usarrests-model.json as its model.json
+//	review: ROLE       the file is review's --loadings, --scores or
+//	                   --variance (ROLE) for usarrests.csv; --loadings is
+//	                   usarrests-loadings.csv when ROLE is another
 func TestBadInputs(t *testing.T) {
 	wants, err := filepath.Glob("../../testdata/bad/*.want")
 	if err != nil || len(wants) == 0 {
 		t.Fatalf("no cases found: %v", err)
+	}
+	testdata, err := filepath.Abs(filepath.Join("..", "..", "testdata"))
+	if err != nil {
+		t.Fatal(err)
 	}
 	for _, want := range wants {
 		name := strings.TrimSuffix(filepath.Base(want), ".want")
@@ -32,7 +44,7 @@ func TestBadInputs(t *testing.T) {
 				t.Fatal(err)
 			}
 			var extra, fragments []string
-			ok, generate := false, ""
+			ok, generate, mode, role := false, "", "run", ""
 			for _, line := range strings.Split(strings.TrimRight(string(spec), "\n"), "\n") {
 				switch {
 				case strings.HasPrefix(line, "args: "):
@@ -41,6 +53,8 @@ func TestBadInputs(t *testing.T) {
 					ok = true
 				case strings.HasPrefix(line, "generate: "):
 					generate = strings.TrimPrefix(line, "generate: ")
+				case strings.HasPrefix(line, "apply: "), strings.HasPrefix(line, "review: "):
+					mode, role, _ = strings.Cut(line, ": ")
 				default:
 					fragments = append(fragments, line)
 				}
@@ -68,9 +82,12 @@ func TestBadInputs(t *testing.T) {
 			os.Chdir(filepath.Dir(abs))
 			defer os.Chdir(wd)
 			var stdout, stderr bytes.Buffer
-			args := append([]string{"run", filepath.Base(abs), "--out", out}, extra...)
+			args := append(caseArgs(t, testdata, mode, role, filepath.Base(abs), dir, out), extra...)
 			if ok {
-				args = append(args, "--bootstrap", "20", "--permutations", "20", "--fail-on", "never")
+				if mode != "apply" {
+					args = append(args, "--bootstrap", "20", "--permutations", "20")
+				}
+				args = append(args, "--fail-on", "never")
 				if !slices.Contains(extra, "--format") {
 					args = append(args, "--format", "none")
 				}
@@ -114,6 +131,53 @@ func TestBadInputs(t *testing.T) {
 	}
 }
 
+// caseArgs returns the command line of a case run from the folder of its
+// file: run on the file, apply of an audit folder (built in dir) holding it,
+// or review with it in one of the roles. testdata is the absolute path of
+// the repository's testdata folder.
+func caseArgs(t *testing.T, testdata, mode, role, file, dir, out string) []string {
+	t.Helper()
+	bad := filepath.Join(testdata, "bad")
+	data := filepath.Join(testdata, "datasets", "usarrests.csv")
+	switch mode {
+	case "run":
+		return []string{"run", file, "--out", out}
+	case "apply":
+		audit := filepath.Join(dir, "audit")
+		os.MkdirAll(audit, 0o755)
+		copyTo := func(from, to string) {
+			b, err := os.ReadFile(from)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(filepath.Join(audit, to), b, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		switch role {
+		case "model":
+			copyTo(file, "model.json")
+		case "scores":
+			copyTo(filepath.Join(bad, "usarrests-model.json"), "model.json")
+			copyTo(file, "scores.csv")
+		default:
+			t.Fatalf("unknown apply role %q", role)
+		}
+		return []string{"apply", audit, data, "--out", out}
+	case "review":
+		args := []string{"review", data, "--out", out}
+		if role != "loadings" {
+			args = append(args, "--loadings", filepath.Join(bad, "usarrests-loadings.csv"))
+		}
+		if !slices.Contains([]string{"loadings", "scores", "variance"}, role) {
+			t.Fatalf("unknown review role %q", role)
+		}
+		return append(args, "--"+role, file)
+	}
+	t.Fatalf("unknown mode %q", mode)
+	return nil
+}
+
 // generateBadInput builds the inputs too large to keep in the repository.
 func generateBadInput(t *testing.T, dir, kind string) string {
 	t.Helper()
@@ -127,6 +191,18 @@ func generateBadInput(t *testing.T, dir, kind string) string {
 		}
 		b.WriteString("big," + strings.Repeat("x", 20_000_000) + ",1\n")
 		return writeFile(t, dir, "long-line.csv", b.String())
+	case "unmatched-loadings":
+		// The loadings of usarrests, then 200,000 rows naming no variable.
+		b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "bad", "usarrests-loadings.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var s strings.Builder
+		s.Write(b)
+		for i := 0; i < 200_000; i++ {
+			fmt.Fprintf(&s, "other%d,0.1,0.2\n", i)
+		}
+		return writeFile(t, dir, "unmatched-loadings.csv", s.String())
 	}
 	t.Fatalf("unknown generated input %q", kind)
 	return ""

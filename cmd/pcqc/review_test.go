@@ -141,7 +141,7 @@ func TestReviewCommandRejectsMismatchedTables(t *testing.T) {
 		{[]string{"--loadings", good, "--scores", writeFile(t, dir, "short.csv", short)}, "30 score rows for 50 samples"},
 		{[]string{"--loadings", writeFile(t, dir, "empty.csv", "")}, "empty file"},
 		{[]string{"--loadings", writeFile(t, dir, "ragged.csv", "v,PC1\nMurder,0.5\nAssault,0.4,0.3\n")}, "ragged row"},
-		{[]string{"--loadings", filepath.Join(dir, "absent.csv")}, "cannot open"},
+		{[]string{"--loadings", filepath.Join(dir, "absent.csv")}, "cannot read the table: no such file"},
 		{[]string{}, "needs --loadings"},
 		{[]string{"--loadings", good, "--claimed-scale", "zscore"}, "invalid --claimed-scale"},
 	}
