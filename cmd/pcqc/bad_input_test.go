@@ -19,7 +19,12 @@ import (
 //	                   a one-line error holding every fragment, and no output
 //	                   folder
 //	generate: NAME     the data file is built by the test (too large to keep)
+//	command: apply     score the file with pcqc apply against an audit of
+//	                   testdata/datasets/usarrests.csv instead of running it
 func TestBadInputs(t *testing.T) {
+	// The audit folder for the apply cases, made once by the first of them.
+	var audit string
+	auditParent := t.TempDir()
 	wants, err := filepath.Glob("../../testdata/bad/*.want")
 	if err != nil || len(wants) == 0 {
 		t.Fatalf("no cases found: %v", err)
@@ -32,7 +37,7 @@ func TestBadInputs(t *testing.T) {
 				t.Fatal(err)
 			}
 			var extra, fragments []string
-			ok, generate := false, ""
+			ok, generate, apply := false, "", ""
 			for _, line := range strings.Split(strings.TrimRight(string(spec), "\n"), "\n") {
 				switch {
 				case strings.HasPrefix(line, "args: "):
@@ -41,6 +46,11 @@ func TestBadInputs(t *testing.T) {
 					ok = true
 				case strings.HasPrefix(line, "generate: "):
 					generate = strings.TrimPrefix(line, "generate: ")
+				case line == "command: apply":
+					if audit == "" {
+						audit = applyAudit(t, auditParent)
+					}
+					apply = audit
 				default:
 					fragments = append(fragments, line)
 				}
@@ -69,6 +79,10 @@ func TestBadInputs(t *testing.T) {
 			defer os.Chdir(wd)
 			var stdout, stderr bytes.Buffer
 			args := append([]string{"run", filepath.Base(abs), "--out", out}, extra...)
+			if apply != "" {
+				args[0] = "apply"
+				args = append([]string{args[0], apply}, args[1:]...)
+			}
 			if ok {
 				args = append(args, "--bootstrap", "20", "--permutations", "20", "--fail-on", "never")
 				if !slices.Contains(extra, "--format") {
@@ -112,6 +126,22 @@ func TestBadInputs(t *testing.T) {
 			}
 		})
 	}
+}
+
+// applyAudit writes an audit of USArrests into parent, for the cases scored
+// by apply.
+func applyAudit(t *testing.T, parent string) string {
+	t.Helper()
+	train, err := filepath.Abs(usarrestsPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(parent, "audit")
+	var stdout, stderr bytes.Buffer
+	if status := mainWithArgs([]string{"run", train, "--out", dir, "--format", "none", "--bootstrap", "0", "--permutations", "20"}, &stdout, &stderr); status != exitOK {
+		t.Fatalf("audit for the apply cases: status %d: %s", status, stderr.String())
+	}
+	return dir
 }
 
 // generateBadInput builds the inputs too large to keep in the repository.
