@@ -126,6 +126,9 @@ func renderTemplate(name string, data any) ([]byte, error) {
 			return rows
 		},
 		"figure": func(f Figure) string {
+			if f.Omitted != "" {
+				return "*" + escapeMarkdown(f.Omitted) + "*\n"
+			}
 			figureNo++
 			return fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
 		},
