@@ -7,6 +7,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"pcqc/analysis"
 	"pcqc/checks"
@@ -608,17 +609,42 @@ func stabilityBlock(res *analysis.Result) StabilityBlock {
 }
 
 // shellQuote renders a command line so that it can be pasted into a POSIX
-// shell.
+// shell, on one line. An argument holding a line break, another control
+// character or a bidirectional control is written in dollar-single-quotes
+// ($'…', POSIX.1-2024, bash, ksh and zsh) with those characters as \xHH
+// escapes of their bytes, so that the report shows them and a paste
+// reproduces them.
 func shellQuote(args []string) string {
 	out := make([]string, len(args))
 	for i, a := range args {
-		if a != "" && strings.IndexFunc(a, func(r rune) bool {
+		switch {
+		case a != "" && strings.IndexFunc(a, func(r rune) bool {
 			return !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("-_./=:,+@%", r))
-		}) < 0 {
+		}) < 0:
 			out[i] = a
-			continue
+		case strings.ContainsFunc(a, needsEscape) || !utf8.ValidString(a):
+			var b strings.Builder
+			b.WriteString("$'")
+			for j, w := 0, 0; j < len(a); j += w {
+				r, size := utf8.DecodeRuneInString(a[j:])
+				w = size
+				switch {
+				case r == '\\' || r == '\'':
+					b.WriteByte('\\')
+					b.WriteRune(r)
+				case r == utf8.RuneError && size == 1 || needsEscape(r):
+					for k := j; k < j+size; k++ {
+						fmt.Fprintf(&b, `\x%02x`, a[k])
+					}
+				default:
+					b.WriteString(a[j : j+size])
+				}
+			}
+			b.WriteString("'")
+			out[i] = b.String()
+		default:
+			out[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
 		}
-		out[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
 	}
 	return strings.Join(out, " ")
 }
