@@ -110,9 +110,9 @@ func newPDFWriter(src []byte, d Page, dir string) (*pdfWriter, error) {
 	stamp := reportTime(d.Date)
 	pdf.SetCreationDate(stamp)
 	pdf.SetModificationDate(stamp)
-	pdf.SetTitle(oneLine(d.Title), true)
+	pdf.SetTitle(metadataText(d.Title), true)
 	if d.Author != "" {
-		pdf.SetAuthor(oneLine(d.Author), true)
+		pdf.SetAuthor(metadataText(d.Author), true)
 	}
 	pdf.SetCreator("pcqc "+d.Version, true)
 	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
@@ -142,6 +142,18 @@ func newPDFWriter(src []byte, d Page, dir string) (*pdfWriter, error) {
 	w := &pdfWriter{pdf: pdf, src: src, dir: dir, contentW: pageW - 2*pdfMargin, size: pdfBodySize, lineH: pdfLine}
 	w.setFont()
 	return w, pdf.Error()
+}
+
+// metadataText prepares user text for the PDF's document information: one
+// line, and characters beyond the Basic Multilingual Plane (emoji) as
+// U+FFFD, since fpdf's UTF-16 conversion would garble them.
+func metadataText(s string) string {
+	return strings.Map(func(r rune) rune {
+		if r > 0xffff {
+			return '\ufffd'
+		}
+		return r
+	}, oneLine(s))
 }
 
 // maxFooterFile is the most characters of the input's file name the
@@ -206,7 +218,7 @@ func (w *pdfWriter) block(n ast.Node) error {
 	case *ast.TextBlock:
 		w.paragraph(n, 0)
 	case *ast.List:
-		w.list(n)
+		return w.list(n)
 	case *ast.FencedCodeBlock, *ast.CodeBlock:
 		w.code(n)
 	case *east.Table:
@@ -344,7 +356,7 @@ func plainText(n ast.Node, src []byte) string {
 	return b.String()
 }
 
-func (w *pdfWriter) list(l *ast.List) {
+func (w *pdfWriter) list(l *ast.List) error {
 	const indent = 5.0
 	left, _, _, _ := w.pdf.GetMargins()
 	for item := l.FirstChild(); item != nil; item = item.NextSibling() {
@@ -359,13 +371,16 @@ func (w *pdfWriter) list(l *ast.List) {
 				w.inlines(c)
 				w.pdf.Ln(w.lineH)
 			default:
-				w.block(c)
+				if err := w.block(c); err != nil {
+					return err
+				}
 			}
 		}
 		w.pdf.SetLeftMargin(left)
 		w.pdf.Ln(0.8)
 	}
 	w.pdf.Ln(1.6)
+	return nil
 }
 
 func (w *pdfWriter) code(n ast.Node) {

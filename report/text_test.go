@@ -51,3 +51,19 @@ func TestDrawAndFigureText(t *testing.T) {
 		}
 	}
 }
+
+// The PDF's document information holds one line, without the characters
+// beyond the Basic Multilingual Plane that fpdf would garble.
+func TestMetadataText(t *testing.T) {
+	cases := []struct{ in, want string }{
+		{"Audit of ST05", "Audit of ST05"},
+		{"a\nb", "a b"},
+		{"emoji 😀 and 𝔘", "emoji \ufffd and \ufffd"},
+		{"תחנה", "תחנה"},
+	}
+	for _, c := range cases {
+		if got := metadataText(c.in); got != c.want {
+			t.Errorf("%q: got %q, want %q", c.in, got, c.want)
+		}
+	}
+}
