@@ -250,7 +250,7 @@ func prepareFigures(jobs []figureJob) {
 			err = d.draw(nullCanvas{d.w, d.h})
 		}
 		if err != nil {
-			job.fig.Omitted = fmt.Sprintf("The figure %q is left out: %s.", job.fig.Alt, strings.TrimSuffix(err.Error(), "."))
+			job.fig.Omitted = fmt.Sprintf("The figure “%s” is left out: %s.", job.fig.Alt, strings.TrimSuffix(err.Error(), "."))
 			continue
 		}
 		if d.left > 0 {
