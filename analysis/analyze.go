@@ -63,6 +63,9 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	if err := checkPreprocessing(t, pp); err != nil {
+		return nil, err
+	}
 	adequacy := MeasureAdequacy(t.X)
 	var z *mat.Dense
 	if opt.InPlace {
@@ -72,10 +75,8 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	}
 	adequacy.Bartlett, adequacy.KMO = correlationTests(z)
 	adequacy.DuplicateIDs = duplicateIDs(t.IDs)
-	if opt.Scaling == ScaleNone {
-		if err := checkMagnitude(t, z); err != nil {
-			return nil, err
-		}
+	if err := checkMagnitude(t, pp, z); err != nil {
+		return nil, err
 	}
 	d, err := Decompose(z)
 	if err != nil {
@@ -112,18 +113,67 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	return r, nil
 }
 
-// checkMagnitude refuses unscaled data whose squares leave the range of
-// double precision (sums of squares of values near 1e150 overflow; near
-// 1e-150 they underflow): scaled data are brought to order one first, so
-// only --scale none meets this.
-func checkMagnitude(t *Table, z *mat.Dense) error {
-	raw := z.RawMatrix()
-	big := 0.0
-	for _, v := range raw.Data {
-		big = math.Max(big, math.Abs(v))
+// checkMagnitude refuses data whose preprocessed values' squares leave the
+// range of double precision (sums of squares of values near 1e150
+// overflow; near 1e-150 they underflow). Unit and range scaling bring the
+// data to order one, so mostly --scale none meets this, but Pareto scaling
+// of values near 1e300 leaves them near 1e150. The error names the cell
+// with the largest preprocessed value.
+func checkMagnitude(t *Table, pp Preprocessing, z *mat.Dense) error {
+	n, p := z.Dims()
+	big, bi, bj := 0.0, 0, 0
+	for i := 0; i < n; i++ {
+		for j, v := range z.RawRowView(i) {
+			if a := math.Abs(v); a > big || math.IsNaN(a) {
+				big, bi, bj = a, i, j
+				if math.IsNaN(a) {
+					break
+				}
+			}
+		}
+		if math.IsNaN(big) {
+			break
+		}
 	}
-	if big > 1e100 || big < 1e-100 {
-		return &InputError{File: t.File, Reason: fmt.Sprintf("without scaling the centred values reach %.1e, and their squares leave the range of double precision; use --scale unit (correlation PCA) or express the data in other units", big)}
+	tooSmall := big < 1/MaxPreprocessed && pp.Scaling == ScaleNone
+	if p == 0 || big <= MaxPreprocessed && !tooSmall { // NaN fails the first test
+		return nil
+	}
+	value := rawValue(t.Transform, t.X.At(bi, bj), true)
+	if z == t.X { // preprocessed in place: undo it, to six digits
+		value = rawValue(t.Transform, z.At(bi, bj)*pp.Scales[bj]+pp.Means[bj], false)
+	}
+	reason := fmt.Sprintf("after centring and %s scaling the values reach %.1e, and their squares leave the range of double precision; ", pp.Scaling, big)
+	if pp.Scaling == ScaleNone {
+		reason = fmt.Sprintf("without scaling the centred values reach %.1e, and their squares leave the range of double precision; ", big)
+	}
+	if pp.Scaling == ScaleUnit {
+		reason += "express the data in other units; largest value:"
+	} else {
+		reason += "use --scale unit (correlation PCA) or express the data in other units; largest value:"
+	}
+	return cellError(t, bi, bj, value, reason)
+}
+
+// checkPreprocessing refuses data whose column means, spreads or scales
+// overflow: values near the largest double (1.8e308) are finite one by one,
+// but their sum is not. The error names the largest value of the first
+// such column.
+func checkPreprocessing(t *Table, pp Preprocessing) error {
+	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+	n, _ := t.X.Dims()
+	for j := range pp.Means {
+		if finite(pp.Means[j]) && finite(pp.SDs[j]) && finite(pp.Scales[j]) {
+			continue
+		}
+		bi := 0
+		for i := 1; i < n; i++ {
+			if math.Abs(t.X.At(i, j)) > math.Abs(t.X.At(bi, j)) {
+				bi = i
+			}
+		}
+		return cellError(t, bi, j, rawValue(t.Transform, t.X.At(bi, j), true),
+			"values this large overflow double precision when the column's mean and spread are computed; express the data in other units; largest value:")
 	}
 	return nil
 }

@@ -1,8 +1,10 @@
 package analysis
 
 import (
+	"fmt"
 	"math"
 	"slices"
+	"strconv"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -49,10 +51,15 @@ type Contribution struct {
 	Q []float64
 }
 
-// Apply scores the table against the model. Variables are matched by name;
-// when some are missing the application records them and scores nothing.
-func Apply(m *Model, t *Table) *Application {
-	app := &Application{Model: m, Table: t, Limits: m.Limits}
+// MaxPreprocessed is the largest magnitude a preprocessed value may have.
+// Below it, squares and sums of squares of a few million of them stay far
+// inside double precision (1e200 × 1e6 < 1.8e308), so T², Q and the
+// contributions are finite; the same bound applies to the training data.
+const MaxPreprocessed = 1e100
+
+// modelColumns returns, for each model variable, its column in t, or −1
+// when t lacks it.
+func modelColumns(m *Model, t *Table) []int {
 	have := map[string]int{}
 	for j, v := range t.Variables {
 		have[v] = j
@@ -61,9 +68,86 @@ func Apply(m *Model, t *Table) *Application {
 	for j, v := range m.Variables {
 		c, ok := have[v]
 		if !ok {
-			app.Missing = append(app.Missing, v)
+			c = -1
 		}
 		idx[j] = c
+	}
+	return idx
+}
+
+// CheckNewValues refuses new samples that the model cannot score in double
+// precision: a cell whose value, after the model's transform and the
+// training centring and scaling, exceeds MaxPreprocessed in magnitude (a
+// 1e160 where the training data held tens makes T² overflow to +Inf). The
+// error names the first such cell in file order: its line, column, variable
+// and value. Variables the table lacks are Apply's business, not this one's.
+func CheckNewValues(m *Model, t *Table) error {
+	idx := modelColumns(m, t)
+	n := t.Rows()
+	for i := 0; i < n; i++ {
+		for j, c := range idx {
+			if c < 0 {
+				continue
+			}
+			x := t.X.At(i, c)
+			z := (x - m.Means[j]) / m.Scales[j]
+			if math.Abs(z) <= MaxPreprocessed {
+				continue // NaN fails this test too, and is refused below
+			}
+			reason := fmt.Sprintf("after the training centring and scaling this value is %.1e, beyond the ±1e100 within which T² and Q stay finite in double precision; check the cell and its units:", z)
+			if math.IsNaN(z) || math.IsInf(z, 0) {
+				reason = "after the training centring and scaling this value is not a finite number, so T² and Q cannot be computed; check the cell and its units:"
+			}
+			return cellError(t, i, c, rawValue(t.Transform, x, true), reason)
+		}
+	}
+	return nil
+}
+
+// cellError reports the value of variable c of sample i of t, named by its
+// line and column in the file where the table records them.
+func cellError(t *Table, i, c int, value, reason string) *InputError {
+	e := &InputError{File: t.File, Name: t.Variables[c], Text: value, Reason: reason}
+	if i < len(t.Lines) {
+		e.Line = t.Lines[i]
+	}
+	if c < len(t.Columns) {
+		e.Column = t.Columns[c]
+	}
+	return e
+}
+
+// rawValue writes a transformed value back in the units of the file, for
+// messages: exactly when there is no transform and v is exact, to six
+// digits otherwise.
+func rawValue(tr Transform, v float64, exact bool) string {
+	switch tr {
+	case TransformLog:
+		v = math.Exp(v)
+	case TransformLog10:
+		v = math.Pow(10, v)
+	case TransformLog1p:
+		v = math.Expm1(v)
+	default:
+		if exact {
+			return strconv.FormatFloat(v, 'g', -1, 64)
+		}
+	}
+	return strconv.FormatFloat(v, 'g', 6, 64)
+}
+
+// Apply scores the table against the model. Variables are matched by name;
+// when some are missing the application records them and scores nothing.
+// Values are expected to have passed CheckNewValues; if one has not, its
+// sample's T² or Q may come out infinite, and such a sample is ranked as
+// the worst (RankBeyond99) rather than dropped.
+func Apply(m *Model, t *Table) *Application {
+	app := &Application{Model: m, Table: t, Limits: m.Limits}
+	idx := modelColumns(m, t)
+	for j, v := range m.Variables {
+		if idx[j] < 0 {
+			app.Missing = append(app.Missing, v)
+		}
 	}
 	inModel := map[string]bool{}
 	for _, v := range m.Variables {
@@ -148,7 +232,8 @@ func (app *Application) contribution(i int, v *mat.Dense) Contribution {
 // RankBeyond99 returns the indices of the samples whose Hotelling T² or Q
 // residual passes its 99 % limit, worst first: a sample's severity is the
 // larger of T²/limit and Q/limit, and ties keep the input order. A limit that
-// is zero or not a number is ignored.
+// is zero or not a number is ignored; a T² or Q that is not a finite number
+// ranks first.
 func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
 	type ranked struct {
 		i     int
@@ -162,6 +247,11 @@ func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
 		}
 		if qLimit99 > 0 && i < len(q) {
 			score = math.Max(score, q[i]/qLimit99)
+		}
+		// A statistic that is not a finite number is beyond any limit:
+		// the sample cannot be judged and must be looked at first.
+		if math.IsNaN(t2[i]) || math.IsInf(t2[i], 0) || i < len(q) && (math.IsNaN(q[i]) || math.IsInf(q[i], 0)) {
+			score = math.Inf(1)
 		}
 		if score > 1 {
 			out = append(out, ranked{i, score})

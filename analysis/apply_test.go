@@ -1,6 +1,7 @@
 package analysis
 
 import (
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -191,11 +192,102 @@ func TestRankBeyond99(t *testing.T) {
 		{"tie keeps order", []float64{20, 20}, []float64{0, 0}, 10, 10, []int{0, 1}},
 		{"no q limit", []float64{1}, []float64{1e9}, 10, math.NaN(), []int{}},
 		{"no t2 limit", []float64{1e9}, []float64{1}, 0, 10, []int{}},
+		{"infinite t2 first", []float64{20, math.Inf(1)}, []float64{0, 0}, 10, 10, []int{1, 0}},
+		{"nan q first", []float64{20, 1}, []float64{0, math.NaN()}, 10, 10, []int{1, 0}},
 	}
 	for _, c := range cases {
 		got := RankBeyond99(c.t2, c.q, c.t2Lim, c.qLim)
 		if !slices.Equal(got, c.want) {
 			t.Errorf("%s: got %v, want %v", c.name, got, c.want)
 		}
+	}
+}
+
+// New values whose preprocessed magnitude passes MaxPreprocessed are
+// refused with their line, their column in the file and their value, in
+// the units of the file; ordinary values pass.
+func TestCheckNewValues(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(8, 74), 60, 4, []float64{2, 1}, 0.5)
+	for i := 0; i < 60; i++ {
+		for j := 0; j < 4; j++ {
+			x.Set(i, j, math.Exp(x.At(i, j))) // positive, for the log transform
+		}
+	}
+	cases := []struct {
+		name      string
+		transform Transform
+		value     float64 // placed at row 2, variable v3
+		want      string  // "" when the value passes
+	}{
+		{"ordinary", TransformNone, 3, ""},
+		{"large but fine", TransformNone, 1e90, ""},
+		{"1e160", TransformNone, 1e160, `new.csv:4:5 (v3): after the training centring and scaling this value is`},
+		{"1e308", TransformNone, 1e308, `"1e+308"`},
+		{"minus 1e200", TransformNone, -1e200, `"-1e+200"`},
+		{"log of the largest double", TransformLog, 1.7e308, ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			train := TableFromMatrix("train.csv", mat.DenseCopyOf(x), nil, nil)
+			train.Transform = c.transform
+			if c.transform == TransformLog {
+				for i := 0; i < 60; i++ {
+					for j := 0; j < 4; j++ {
+						train.X.Set(i, j, math.Log(train.X.At(i, j)))
+					}
+				}
+			}
+			res, err := Analyze(train, Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+			if err != nil {
+				t.Fatal(err)
+			}
+			m := NewModel(res, "test")
+			newX := mat.DenseCopyOf(x.Slice(0, 5, 0, 4))
+			v, _ := c.transform.Apply(c.value)
+			if c.transform == TransformNone {
+				v = c.value
+			}
+			newX.Set(2, 2, v)
+			// The file's columns: id, then v1 … v4 from column 2 on.
+			tab := TableFromMatrix("new.csv", newX, nil, nil)
+			tab.Transform = c.transform
+			tab.Columns = []int{2, 3, 5, 6}
+			err = CheckNewValues(m, tab)
+			if c.want == "" {
+				if err != nil {
+					t.Fatalf("refused: %v", err)
+				}
+				app := Apply(m, tab)
+				for i := range app.T2 {
+					if math.IsInf(app.T2[i], 0) || math.IsNaN(app.T2[i]) || math.IsInf(app.Q[i], 0) || math.IsNaN(app.Q[i]) {
+						t.Errorf("sample %d: T² %g, Q %g", i, app.T2[i], app.Q[i])
+					}
+				}
+				return
+			}
+			var ie *InputError
+			if !errors.As(err, &ie) || ie.Line != 4 || ie.Column != 5 || ie.Name != "v3" || !strings.Contains(err.Error(), c.want) {
+				t.Fatalf("got %v, want an input error at line 4, column 5 holding %q", err, c.want)
+			}
+		})
+	}
+}
+
+// Defence in depth: values that slip past CheckNewValues make T² infinite;
+// the sample is then ranked first, not lost.
+func TestApplyRanksNonFiniteFirst(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(9, 75), 50, 4, []float64{2, 1}, 0.5)
+	res, err := Analyze(TableFromMatrix("train", mat.DenseCopyOf(x), nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	newX := mat.DenseCopyOf(x.Slice(0, 4, 0, 4))
+	newX.Set(1, 0, 1e200)
+	app := Apply(NewModel(res, "test"), TableFromMatrix("new", newX, nil, nil))
+	if !math.IsInf(app.T2[1], 1) && !math.IsNaN(app.T2[1]) {
+		t.Fatalf("T² of the overflowing sample is %g; the test needs it infinite", app.T2[1])
+	}
+	if len(app.Flagged) == 0 || app.Flagged[0] != 1 {
+		t.Errorf("flagged %v, want sample 1 first", app.Flagged)
 	}
 }

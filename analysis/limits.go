@@ -94,8 +94,11 @@ func qLimitUnit(discarded []float64, scale, conf float64) (float64, QMethod) {
 	if h0 > 0 {
 		z := distuv.UnitNormal.Quantile(conf)
 		bracket := z*math.Sqrt(2*t2*h0*h0)/t1 + 1 + t2*h0*(h0-1)/(t1*t1)
-		if bracket > 0 {
-			return t1 * math.Pow(bracket, 1/h0), QJacksonMudholkar
+		// For h₀ near 0 the power 1/h₀ is huge, and rounding in the
+		// bracket could make it overflow; Box's form is then used, so that
+		// a limit is never infinite.
+		if q := t1 * math.Pow(bracket, 1/h0); bracket > 0 && !math.IsInf(q, 0) && !math.IsNaN(q) {
+			return q, QJacksonMudholkar
 		}
 	}
 	g, h := t2/t1, t1*t1/t2

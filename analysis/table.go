@@ -88,6 +88,10 @@ type Table struct {
 	Variables []string   // names of the variables used, in file order
 	X         *mat.Dense // n × p, transformed values
 	Lines     []int      // 1-based line in the file of each row used
+	// Columns is the 1-based column in the file of each variable, so that
+	// a value found wrong after reading can still be named by its
+	// position; nil for tables built in memory.
+	Columns []int
 
 	RowsRead     int // data rows in the file
 	RowsDropped  int // removed for missing values
@@ -678,8 +682,10 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		values = values[:n*q]
 	}
 	t.Variables = make([]string, len(keepCols))
+	t.Columns = make([]int, len(keepCols))
 	for c, k := range keepCols {
 		t.Variables[c] = names[varCols[k]]
+		t.Columns[c] = varCols[k] + 1
 	}
 	t.X = mat.NewDense(n, len(keepCols), slices.Clip(values))
 	t.IDs, t.Groups, t.Lines = ids, groups, lines

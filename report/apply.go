@@ -10,7 +10,6 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/plot"
-	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
@@ -82,8 +81,8 @@ type BatchInfo struct {
 }
 
 type VariableShift struct {
-	Variable string  `json:"variable"`
-	ShiftSD  float64 `json:"shift_sd"`
+	Variable string `json:"variable"`
+	ShiftSD  Number `json:"shift_sd"`
 }
 
 func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
@@ -97,10 +96,10 @@ func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
 		Model: ApplyModelInfo{AuditDir: run.AuditDir, File: m.Input.File, SHA256: m.Input.SHA256, Rows: m.Input.Rows, Retained: m.Retained,
 			Variables: m.Variables, Transform: string(m.Transform), Scaling: string(m.Scaling), PCQCVersion: m.Tool.Version},
 		Options: meta.Options,
-		Limits: LimitsInfo{T2_95: finite(app.Limits.T2_95), T2_99: finite(app.Limits.T2_99), Q95: finite(app.Limits.Q95), Q99: finite(app.Limits.Q99),
-			QMethod: string(app.Limits.QMethod), Leverage: analysis.LeverageFactor * float64(m.Retained+1) / float64(m.Input.Rows)},
+		Limits: LimitsInfo{T2_95: Number(app.Limits.T2_95), T2_99: Number(app.Limits.T2_99), Q95: Number(app.Limits.Q95), Q99: Number(app.Limits.Q99),
+			QMethod: string(app.Limits.QMethod), Leverage: Number(analysis.LeverageFactor * float64(m.Retained+1) / float64(m.Input.Rows))},
 		Batch:   BatchInfo{MissingVariables: app.Missing, Beyond: map[string]int{}},
-		Checks:  run.Checks,
+		Checks:  jsonChecks(run.Checks),
 		Verdict: checks.Verdict(run.Checks),
 	}
 	if s.Input.Ignored == nil {
@@ -123,7 +122,7 @@ func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
 			s.Batch.Beyond[lim.name] = c
 		}
 		for j, v := range m.Variables {
-			s.Batch.Shift = append(s.Batch.Shift, VariableShift{Variable: v, ShiftSD: app.Shift[j]})
+			s.Batch.Shift = append(s.Batch.Shift, VariableShift{Variable: v, ShiftSD: Number(app.Shift[j])})
 		}
 		for _, i := range app.Flagged {
 			s.Batch.Flagged = append(s.Batch.Flagged, t.IDs[i])
@@ -267,8 +266,11 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 		if app.Q[i] > 0 {
 			share = cont.Q[j] / app.Q[i]
 		}
-		d.FlaggedRows = append(d.FlaggedRows, []string{t.IDs[i], g4(app.T2[i]), g4(app.Q[i]), strings.Join(app.Beyond(i), " "),
-			fmt.Sprintf("%s (%.0f %%)", m.Variables[j], 100*share)})
+		largest := fmt.Sprintf("%s (%.0f %%)", m.Variables[j], 100*share)
+		if !isFinite(share) {
+			largest = notANumber
+		}
+		d.FlaggedRows = append(d.FlaggedRows, []string{t.IDs[i], g4(app.T2[i]), g4(app.Q[i]), strings.Join(app.Beyond(i), " "), largest})
 	}
 	if len(app.Flagged) == 0 {
 		d.FlaggedNote = "No new sample passes a 99 % limit."
@@ -280,7 +282,11 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 		if math.Abs(app.Shift[j]) > checks.ShiftLimit {
 			mark = " !"
 		}
-		d.ShiftRows = append(d.ShiftRows, []string{v, g4(m.Means[j]), g4(m.SDs[j]), g4(batch), fmt.Sprintf("%+.2f%s", app.Shift[j], mark)})
+		shift := fmt.Sprintf("%+.2f%s", app.Shift[j], mark)
+		if !isFinite(app.Shift[j]) {
+			shift = notANumber
+		}
+		d.ShiftRows = append(d.ShiftRows, []string{v, g4(m.Means[j]), g4(m.SDs[j]), g4(batch), shift})
 	}
 	for c := 0; c < min(contributionFigures, len(app.Contributions)); c++ {
 		i := app.Contributions[c].Sample
@@ -291,14 +297,14 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 		d.ContributionsNote = fmt.Sprintf("contributions.csv holds the contributions of all %d flagged samples.", len(app.Contributions))
 	}
 	d.figures = append(d.figures,
-		figureJob{d.ScoresFigure, func() drawing { return applyScoresFigure(run) }},
-		figureJob{d.T2QFig, func() drawing {
+		figureJob{&d.ScoresFigure, func() drawing { return applyScoresFigure(run) }},
+		figureJob{&d.T2QFig, func() drawing {
 			return t2qDrawing("New samples: Hotelling T² against Q residual", app.T2, app.Q, applyLimits(app), app.Flagged, t.IDs)
 		}})
-	for c, f := range d.Contributions {
-		c := c
-		d.figures = append(d.figures, figureJob{f, func() drawing { return contributionFigure(app, app.Contributions[c]) }})
+	for c := range d.Contributions {
+		d.figures = append(d.figures, figureJob{&d.Contributions[c], func() drawing { return contributionFigure(app, app.Contributions[c]) }})
 	}
+	prepareFigures(d.figures)
 	return d
 }
 
@@ -396,27 +402,27 @@ func applyScoresFigure(run ApplyRun) drawing {
 		p := newPlot("New samples on PC1", "new sample (input order)", "PC1")
 		p.Add(guides{})
 		if lim := analysis.T2LimitNew(m.Input.Rows, 1, analysis.Conf95); !math.IsNaN(lim) {
-			r := math.Sqrt(lim * m.Eigenvalues[0])
-			p.Add(refLine{at: r, style: lineStyle(accent95, 1, 4, 2), label: "95 % limit"}, refLine{at: -r, style: lineStyle(accent95, 1, 4, 2)})
+			addLimitPair(p, math.Sqrt(lim*m.Eigenvalues[0]))
 		}
-		addGroupedPoints(p, app.Table, x, y)
+		left := addGroupedPoints(p, app.Table, x, y)
 		if l := labelPoints(app.Table.IDs, app.Flagged, x, y); l != nil {
 			p.Add(l)
 		}
-		return drawing{plot: p, w: figWidth, h: figHeight, legendOutside: true}
+		dr := drawing{plot: p, w: figWidth, h: figHeight, legendOutside: true}
+		dr.leaveOut(left, "sample")
+		return dr
 	}
 	total := 0.0
 	for _, e := range m.Eigenvalues {
 		total += e
 	}
-	axis := func(a int) string { return fmt.Sprintf("PC%d · %.1f %% (training)", a+1, 100*m.Eigenvalues[a]/total) }
+	axis := func(a int) string {
+		return fmt.Sprintf("PC%d · %s (training)", a+1, pctText(100*m.Eigenvalues[a]/total))
+	}
 	p := newPlot("New samples on the training score plot", axis(0), axis(1))
 	p.Add(guides{})
 	if lim := analysis.T2LimitNew(m.Input.Rows, 2, analysis.Conf95); !math.IsNaN(lim) {
-		e, _ := plotter.NewLine(ellipse(math.Sqrt(lim*m.Eigenvalues[0]), math.Sqrt(lim*m.Eigenvalues[1])))
-		e.LineStyle = lineStyle(accent95, 1, 4, 2)
-		p.Add(e)
-		p.Legend.Add("95 % T² ellipse, new observations", e)
+		addEllipse(p, math.Sqrt(lim*m.Eigenvalues[0]), math.Sqrt(lim*m.Eigenvalues[1]), "95 % T² ellipse, new observations")
 	}
 	if tr := run.TrainingScores; tr != nil {
 		if r, c := tr.Dims(); c >= 2 {
@@ -424,24 +430,25 @@ func applyScoresFigure(run ApplyRun) drawing {
 			for i := 0; i < r; i++ {
 				tx[i], ty[i] = tr.At(i, 0), tr.At(i, 1)
 			}
-			s, _ := plotter.NewScatter(xy{tx, ty})
-			s.GlyphStyle = draw.GlyphStyle{Color: trainingColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2)}
-			p.Add(s)
-			p.Legend.Add("training samples", s)
+			// Training samples are background only: any that cannot be
+			// drawn are not counted against the new ones.
+			addScatter(p, tx, ty, draw.GlyphStyle{Color: trainingColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2)}, "training samples")
 		}
 	}
 	x, y := make([]float64, n), make([]float64, n)
 	for i := 0; i < n; i++ {
 		x[i], y[i] = app.Scores.At(i, 0), app.Scores.At(i, 1)
 	}
-	addGroupedPoints(p, app.Table, x, y)
+	left := addGroupedPoints(p, app.Table, x, y)
 	if app.Table.GroupColumn == "" {
 		p.Legend.Add("new samples", plotThumb{groupStyle(0)})
 	}
 	if l := labelPoints(app.Table.IDs, app.Flagged, x, y); l != nil {
 		p.Add(l)
 	}
-	return drawing{plot: p, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	dr := drawing{plot: p, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	dr.leaveOut(left, "sample")
+	return dr
 }
 
 // plotThumb is a legend entry drawn as one glyph.
@@ -478,25 +485,33 @@ func contributionFigure(app *analysis.Application, c analysis.Contribution) draw
 		}
 		return 0
 	})
-	shown := min(p, loadingsShown)
+	// A variable whose share is not a finite number (the sample's T² or Q
+	// overflowed) has no bar to draw.
+	order = slices.DeleteFunc(order, func(j int) bool { return !isFinite(t2Share[j]) || !isFinite(qShare[j]) })
+	left := p - len(order)
+	shown := min(len(order), loadingsShown)
 	bars := pairedBars{first: make([]float64, shown), second: make([]float64, shown)}
 	names := make([]string, shown)
 	for r := 0; r < shown; r++ {
 		j := order[r]
 		row := shown - 1 - r
 		bars.first[row], bars.second[row] = qShare[j], t2Share[j]
-		names[row] = shorten(m.Variables[j], maxLabelRunes)
+		names[row] = figureText(m.Variables[j], maxLabelRunes)
 	}
-	pl := newPlot("Contributions to the limits passed by "+shorten(app.Table.IDs[i], maxLabelRunes), "share of the sample's statistic", "")
-	pl.Add(bars)
-	pl.NominalY(names...)
+	pl := newPlot("Contributions to the limits passed by "+figureText(app.Table.IDs[i], maxLabelRunes), "share of the sample's statistic", "")
+	if shown > 0 {
+		pl.Add(bars)
+		pl.NominalY(names...)
+	}
 	pl.Y.Tick.Label.Font = textFont(7.5, false)
 	pl.Y.LineStyle.Width = 0
 	pl.Y.Tick.LineStyle.Width = 0
 	pl.Legend.Add("share of Q", swatchThumb{mainColor})
 	pl.Legend.Add("share of T²", swatchThumb{accent95})
 	h := vg.Length(2.4+0.5*float64(shown)) * vg.Centimeter
-	return drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter), legendOutside: true}
+	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter), legendOutside: true}
+	dr.leaveOut(left, "variable")
+	return dr
 }
 
 // pairedBars draws two horizontal bars per row, the first above the second.

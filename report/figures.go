@@ -1,7 +1,11 @@
 package report
 
 import (
+	"bytes"
+	"errors"
 	"fmt"
+	"image"
+	"image/color"
 	"io"
 	"math"
 	"os"
@@ -11,6 +15,7 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
@@ -27,6 +32,9 @@ type Figure struct {
 	Stem    string // file name without extension
 	Alt     string // short description for screen readers and the image tag
 	Caption string
+	// Omitted, when set, says why the figure could not be drawn; the
+	// report shows that sentence in its place.
+	Omitted string
 }
 
 // PNG and SVG are the figure's paths relative to the report.
@@ -48,23 +56,43 @@ type drawing struct {
 	// equalAspect gives both axes the same scale, so that distances and
 	// angles in the plane read true (score plots, biplots).
 	equalAspect bool
+	// left counts the items (what names them) left out because a value
+	// they need is not a finite number; the caption says so.
+	left int
+	what string
 }
 
-// drawable checks that the plot can be drawn in c: finite axis ranges and a
-// data area left after the axes and labels take their room. gonum/plot
-// would otherwise loop looking for ticks of a NaN range.
+// leaveOut records n more items left out of the drawing.
+func (d *drawing) leaveOut(n int, what string) {
+	if n <= 0 {
+		return
+	}
+	if d.left > 0 && d.what != what {
+		what = "value" // samples and variables both: count them alike
+	}
+	d.left += n
+	d.what = what
+}
+
+// drawable checks that the plot can be drawn in c: finite axis ranges of
+// finite width and a data area left after the axes and labels take their
+// room. gonum/plot would otherwise loop looking for ticks of a NaN range.
 func drawable(p *plot.Plot, c draw.Canvas) error {
-	for _, v := range []float64{p.X.Min, p.X.Max, p.Y.Min, p.Y.Max} {
+	for _, v := range []float64{p.X.Min, p.X.Max, p.Y.Min, p.Y.Max, p.X.Max - p.X.Min, p.Y.Max - p.Y.Min} {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return fmt.Errorf("axis range is not finite")
+			return errNoData
 		}
 	}
 	dc := p.DataCanvas(c)
 	if dc.Max.X-dc.Min.X < vg.Points(20) || dc.Max.Y-dc.Min.Y < vg.Points(20) {
-		return fmt.Errorf("no room left for the data")
+		return fmt.Errorf("the labels leave no room for the data")
 	}
 	return nil
 }
+
+// errNoData is why a figure whose values are all left out, or span no
+// finite range, is not drawn.
+var errNoData = errors.New("its values are not finite numbers, or span no finite range")
 
 // equalise widens the narrower axis range so that one data unit has the
 // same length on both axes of the data area drawn in c.
@@ -84,45 +112,53 @@ func equalise(p *plot.Plot, c draw.Canvas) {
 	}
 }
 
+// draw draws the figure on c. A panic inside gonum/plot becomes an error:
+// a figure must never take the report down with it.
+func (d drawing) draw(c vg.CanvasSizer) (err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("the plotting library failed: %v", r)
+		}
+	}()
+	dc := draw.New(c)
+	if !d.legendOutside {
+		field := draw.Crop(dc, 0, -d.rightMargin, 0, 0)
+		if d.equalAspect {
+			equalise(d.plot, field)
+		}
+		if err := drawable(d.plot, field); err != nil {
+			return err
+		}
+		d.plot.Draw(field)
+		return nil
+	}
+	legend := d.plot.Legend
+	d.plot.Legend = plot.NewLegend()
+	defer func() { d.plot.Legend = legend }()
+	width := legend.Rectangle(dc).Size().X + vg.Points(10)
+	field := draw.Crop(dc, 0, -width, 0, 0)
+	if d.equalAspect {
+		equalise(d.plot, field)
+	}
+	if err := drawable(d.plot, field); err != nil {
+		return err
+	}
+	d.plot.Draw(field)
+	legend.Left, legend.Top = true, true
+	strip := draw.Crop(dc, dc.Max.X-dc.Min.X-width+vg.Points(8), 0, 0, -vg.Points(28))
+	legend.Draw(strip)
+	return nil
+}
+
 // saveAs writes the drawing as PNG, SVG or both into dir/figures.
 func (d drawing) saveAs(dir, stem string, pngToo, svgToo bool) error {
 	if err := os.MkdirAll(filepath.Join(dir, "figures"), 0o755); err != nil {
 		return err
 	}
-	var failed error
-	render := func(c vg.CanvasSizer) {
-		dc := draw.New(c)
-		if !d.legendOutside {
-			field := draw.Crop(dc, 0, -d.rightMargin, 0, 0)
-			if d.equalAspect {
-				equalise(d.plot, field)
-			}
-			if failed = drawable(d.plot, field); failed == nil {
-				d.plot.Draw(field)
-			}
-			return
-		}
-		legend := d.plot.Legend
-		d.plot.Legend = plot.NewLegend()
-		defer func() { d.plot.Legend = legend }()
-		width := legend.Rectangle(dc).Size().X + vg.Points(10)
-		field := draw.Crop(dc, 0, -width, 0, 0)
-		if d.equalAspect {
-			equalise(d.plot, field)
-		}
-		if failed = drawable(d.plot, field); failed != nil {
-			return
-		}
-		d.plot.Draw(field)
-		legend.Left, legend.Top = true, true
-		strip := draw.Crop(dc, dc.Max.X-dc.Min.X-width+vg.Points(8), 0, 0, -vg.Points(28))
-		legend.Draw(strip)
-	}
 	if pngToo {
 		img := vgimg.NewWith(vgimg.UseWH(d.w, d.h), vgimg.UseDPI(figureDPI))
-		render(img)
-		if failed != nil {
-			return failed
+		if err := d.draw(img); err != nil {
+			return err
 		}
 		if err := writeTo(filepath.Join(dir, "figures", stem+".png"), vgimg.PngCanvas{Canvas: img}); err != nil {
 			return err
@@ -132,11 +168,32 @@ func (d drawing) saveAs(dir, stem string, pngToo, svgToo bool) error {
 		return nil
 	}
 	svg := vgsvg.New(d.w, d.h)
-	render(svg)
-	if failed != nil {
-		return failed
+	if err := d.draw(svg); err != nil {
+		return err
 	}
-	return writeTo(filepath.Join(dir, "figures", stem+".svg"), svg)
+	var b bytes.Buffer
+	if _, err := svg.WriteTo(&b); err != nil {
+		return err
+	}
+	return os.WriteFile(filepath.Join(dir, "figures", stem+".svg"), ltrSVG(b.Bytes()), 0o644)
+}
+
+// ltrSVG tells SVG renderers to draw every text in the order of its
+// characters. The figures' text is already in visual order (drawText), as
+// the PNG renderer needs; a browser applying the bidirectional algorithm
+// to it again would turn right-to-left runs back round.
+func ltrSVG(b []byte) []byte {
+	i := bytes.Index(b, []byte("<svg"))
+	if i < 0 {
+		return b
+	}
+	j := bytes.IndexByte(b[i:], '>')
+	if j < 0 {
+		return b
+	}
+	at := i + j + 1
+	style := "\n<style>text { unicode-bidi: bidi-override; direction: ltr; }</style>"
+	return append(append(append([]byte(nil), b[:at]...), style...), b[at:]...)
 }
 
 func writeTo(path string, w io.WriterTo) error {
@@ -151,6 +208,61 @@ func writeTo(path string, w io.WriterTo) error {
 	return f.Close()
 }
 
+// nullCanvas draws nothing. Every figure is drawn into it once before the
+// report is written, so that a figure that cannot be drawn is known, and
+// left out with a sentence, before the Markdown names it.
+type nullCanvas struct{ w, h vg.Length }
+
+func (c nullCanvas) Size() (vg.Length, vg.Length)         { return c.w, c.h }
+func (nullCanvas) SetLineWidth(vg.Length)                 {}
+func (nullCanvas) SetLineDash([]vg.Length, vg.Length)     {}
+func (nullCanvas) SetColor(color.Color)                   {}
+func (nullCanvas) Rotate(float64)                         {}
+func (nullCanvas) Translate(vg.Point)                     {}
+func (nullCanvas) Scale(float64, float64)                 {}
+func (nullCanvas) Push()                                  {}
+func (nullCanvas) Pop()                                   {}
+func (nullCanvas) Stroke(vg.Path)                         {}
+func (nullCanvas) Fill(vg.Path)                           {}
+func (nullCanvas) FillString(font.Face, vg.Point, string) {}
+func (nullCanvas) DrawImage(vg.Rectangle, image.Image)    {}
+
+// build makes the job's drawing, with a panic inside it made an error.
+func (job figureJob) build() (d drawing, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("the plotting library failed: %v", r)
+		}
+	}()
+	return job.drawing(), nil
+}
+
+// prepareFigures draws every figure into a nullCanvas, before the Markdown
+// is written: a figure that cannot be drawn is marked Omitted with the
+// reason, and the caption of one that left items out says how many. The
+// drawings are made again when the files are written (saveFigures) rather
+// than kept, so that the figures of a large table are never all in memory
+// at once; they are deterministic, so the second drawing is the first.
+func prepareFigures(jobs []figureJob) {
+	for _, job := range jobs {
+		d, err := job.build()
+		if err == nil {
+			err = d.draw(nullCanvas{d.w, d.h})
+		}
+		if err != nil {
+			job.fig.Omitted = fmt.Sprintf("The figure “%s” is left out: %s.", job.fig.Alt, strings.TrimSuffix(err.Error(), "."))
+			continue
+		}
+		if d.left > 0 {
+			what := d.what
+			if d.left > 1 {
+				what += "s"
+			}
+			job.fig.Caption += fmt.Sprintf(" %d %s left out: %s not a finite number.", d.left, what, map[bool]string{true: "its value is", false: "their values are"}[d.left == 1])
+		}
+	}
+}
+
 // saveFigures renders every figure of the document into dir/figures, as
 // PNG (for the PDF and the Markdown) and SVG (for the HTML).
 //
@@ -160,12 +272,19 @@ func writeTo(path string, w io.WriterTo) error {
 // order, and so the file, reproducible. One pixel at 300 dpi is 0.08 mm.
 func (d *Document) saveFigures(dir string) error { return saveFigures(d.figures, dir, true, true) }
 
-// saveFigures renders the PNG files, the SVG files or both.
+// saveFigures renders the PNG files, the SVG files or both, leaving out the
+// figures prepareFigures found could not be drawn.
 func saveFigures(figures []figureJob, dir string, pngToo, svgToo bool) error {
 	for i, job := range figures {
-		dr := job.drawing()
-		dr.w += vg.Length(i) * vg.Inch / figureDPI
-		if err := dr.saveAs(dir, job.fig.Stem, pngToo, svgToo); err != nil {
+		if job.fig.Omitted != "" {
+			continue
+		}
+		dr, err := job.build()
+		if err == nil {
+			dr.w += vg.Length(i) * vg.Inch / figureDPI
+			err = dr.saveAs(dir, job.fig.Stem, pngToo, svgToo)
+		}
+		if err != nil {
 			return fmt.Errorf("figure %s: %w", job.fig.Stem, err)
 		}
 	}
@@ -175,13 +294,64 @@ func saveFigures(figures []figureJob, dir string, pngToo, svgToo bool) error {
 // componentLabel is an axis label with the component's share of variance,
 // e.g. "PC1 · 48.2 %".
 func componentLabel(res *analysis.Result, a int) string {
-	return fmt.Sprintf("PC%d · %.1f %%", a+1, Percentages(res.Decomp.Eigenvalues)[a])
+	return fmt.Sprintf("PC%d · %s", a+1, pctText(Percentages(res.Decomp.Eigenvalues)[a]))
 }
 
 type xy struct{ x, y []float64 }
 
 func (p xy) Len() int                    { return len(p.x) }
 func (p xy) XY(i int) (float64, float64) { return p.x[i], p.y[i] }
+
+// finiteXY keeps the points whose coordinates are both finite numbers
+// (gonum/plot refuses the others) and counts those it leaves out.
+func finiteXY(x, y []float64) (xy, int) {
+	var out xy
+	for i := range x {
+		if isFinite(x[i]) && isFinite(y[i]) {
+			out.x, out.y = append(out.x, x[i]), append(out.y, y[i])
+		}
+	}
+	return out, len(x) - len(out.x)
+}
+
+// addLine adds a line through the finite points of x and y, with a legend
+// entry, and returns it (nil when no point is left to draw).
+func addLine(p *plot.Plot, x, y []float64, style draw.LineStyle, label string) *plotter.Line {
+	pts, _ := finiteXY(x, y)
+	if pts.Len() == 0 {
+		return nil
+	}
+	l, err := plotter.NewLine(pts)
+	if err != nil {
+		return nil // cannot happen for finite points; leave the line out
+	}
+	l.LineStyle = style
+	p.Add(l)
+	if label != "" {
+		p.Legend.Add(label, l)
+	}
+	return l
+}
+
+// addScatter adds the finite points of x and y in one glyph style, with a
+// legend entry unless label is empty; it returns how many points it left
+// out and the scatter (nil when none was drawn).
+func addScatter(p *plot.Plot, x, y []float64, style draw.GlyphStyle, label string) (*plotter.Scatter, int) {
+	pts, left := finiteXY(x, y)
+	if pts.Len() == 0 {
+		return nil, left
+	}
+	s, err := plotter.NewScatter(pts)
+	if err != nil {
+		return nil, len(x)
+	}
+	s.GlyphStyle = style
+	p.Add(s)
+	if label != "" {
+		p.Legend.Add(label, s)
+	}
+	return s, left
+}
 
 // screeComponents is how many components the scree figure shows at most.
 const screeComponents = 20
@@ -196,13 +366,21 @@ func screeFigure(res *analysis.Result) drawing {
 	cum := make([]float64, m)
 	running := 0.0
 	ymax := 0.0
+	left := 0
 	for a := 0; a < m; a++ {
 		idx[a] = float64(a + 1)
 		obs[a] = d.Eigenvalues[a]
 		stick[a] = res.Counts.BrokenStickShares[a] * total
 		running += d.Eigenvalues[a]
 		cum[a] = running / total
-		ymax = math.Max(ymax, math.Max(obs[a], stick[a]))
+		for _, v := range []float64{obs[a], stick[a]} {
+			if isFinite(v) {
+				ymax = math.Max(ymax, v)
+			}
+		}
+		if !isFinite(obs[a]) {
+			left++
+		}
 	}
 	p := newPlot("Scree", "component", "eigenvalue")
 	p.Add(guides{})
@@ -211,41 +389,21 @@ func screeFigure(res *analysis.Result) drawing {
 	p.Y.Max = ymax * 1.08
 	p.X.Tick.Marker = integerTicks{}
 
-	cumLine, _ := plotter.NewLine(xy{idx, scaleSlice(cum, p.Y.Max)})
-	cumLine.LineStyle = lineStyle(mutedColor, 0.8, 1.5, 1.5)
-	p.Add(cumLine)
-	p.Legend.Add("cumulative share (right axis)", cumLine)
-
-	stickLine, _ := plotter.NewLine(xy{idx, stick})
-	stickLine.LineStyle = lineStyle(accent95, 1, 4, 2)
-	p.Add(stickLine)
-	p.Legend.Add("broken stick", stickLine)
-
+	addLine(p, idx, scaleSlice(cum, p.Y.Max), lineStyle(mutedColor, 0.8, 1.5, 1.5), "cumulative share (right axis)")
+	addLine(p, idx, stick, lineStyle(accent95, 1, 4, 2), "broken stick")
 	if res.Counts.Parallel.Permutations > 0 {
-		pa, _ := plotter.NewLine(xy{idx, res.Counts.Parallel.P95[:m]})
-		pa.LineStyle = lineStyle(accent99, 1, 1, 2)
-		p.Add(pa)
-		p.Legend.Add("permuted data, 95th percentile", pa)
+		addLine(p, idx, res.Counts.Parallel.P95[:m], lineStyle(accent99, 1, 1, 2), "permuted data, 95th percentile")
 	}
-
-	line, _ := plotter.NewLine(xy{idx, obs})
-	line.LineStyle = lineStyle(mainColor, 1.2)
-	p.Add(line)
-	kept := res.Retained
-	in, out := xy{idx[:min(kept, m)], obs[:min(kept, m)]}, xy{idx[min(kept, m):], obs[min(kept, m):]}
-	keptPts, _ := plotter.NewScatter(in)
-	keptPts.GlyphStyle = draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(3)}
-	restPts, _ := plotter.NewScatter(out)
-	restPts.GlyphStyle = draw.GlyphStyle{Color: mainColor, Shape: draw.RingGlyph{}, Radius: vg.Points(3)}
-	p.Add(keptPts, restPts)
-	p.Legend.Add("observed, retained", keptPts)
-	if out.Len() > 0 {
-		p.Legend.Add("observed, not retained", restPts)
-	}
+	addLine(p, idx, obs, lineStyle(mainColor, 1.2), "")
+	kept := min(res.Retained, m)
+	addScatter(p, idx[:kept], obs[:kept], draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(3)}, "observed, retained")
+	addScatter(p, idx[kept:], obs[kept:], draw.GlyphStyle{Color: mainColor, Shape: draw.RingGlyph{}, Radius: vg.Points(3)}, "observed, not retained")
 	p.Add(secondAxis{scale: p.Y.Max / 100, ticks: []float64{0, 25, 50, 75, 100}, unit: " %", label: "cumulative share of variance"})
 	// Below the cumulative curve, which fills the top right.
 	p.Legend.YOffs = -figHeight * 0.22
-	return drawing{plot: p, w: figWidth, h: figHeight, rightMargin: vg.Points(52)}
+	dr := drawing{plot: p, w: figWidth, h: figHeight, rightMargin: vg.Points(52)}
+	dr.leaveOut(left, "component")
+	return dr
 }
 
 func scaleSlice(x []float64, f float64) []float64 {
@@ -260,6 +418,9 @@ func scaleSlice(x []float64, f float64) []float64 {
 type integerTicks struct{}
 
 func (integerTicks) Ticks(min, max float64) []plot.Tick {
+	if !isFinite(min) || !isFinite(max) || max-min > 1e6 {
+		return nil // only component numbers are drawn on such an axis
+	}
 	lo, hi := int(math.Ceil(min)), int(math.Floor(max))
 	step := 1
 	for (hi-lo)/step > 12 {
@@ -279,11 +440,14 @@ const loadingsShown = 30
 
 func loadingsFigure(res *analysis.Result, a int) drawing {
 	p := res.Decomp.Vars
-	order := make([]int, p)
-	for j := range order {
-		order[j] = j
-	}
 	v := res.Decomp.Loadings
+	var order []int
+	for j := 0; j < p; j++ {
+		if isFinite(v.At(j, a)) {
+			order = append(order, j)
+		}
+	}
+	left := p - len(order)
 	slices.SortStableFunc(order, func(i, j int) int {
 		ai, aj := math.Abs(v.At(i, a)), math.Abs(v.At(j, a))
 		switch {
@@ -294,7 +458,7 @@ func loadingsFigure(res *analysis.Result, a int) drawing {
 		}
 		return 0
 	})
-	shown := min(p, loadingsShown)
+	shown := min(len(order), loadingsShown)
 	bars := hbars{fill: barColor, values: make([]float64, shown)}
 	names := make([]string, shown)
 	st := res.Stability
@@ -306,11 +470,15 @@ func loadingsFigure(res *analysis.Result, a int) drawing {
 		j := order[r]
 		row := shown - 1 - r // largest at the top
 		bars.values[row] = v.At(j, a)
-		names[row] = shorten(res.Table.Variables[j], maxLabelRunes)
+		names[row] = figureText(res.Table.Variables[j], maxLabelRunes)
 		if withCI {
 			li := st.Loadings[j][a]
 			bars.low[row], bars.hi[row] = li.Low, li.High
 			bars.unstable[row] = !li.ExcludesZero()
+			if !isFinite(li.Low) || !isFinite(li.High) {
+				// No interval to draw: a whisker of no length.
+				bars.low[row], bars.hi[row] = v.At(j, a), v.At(j, a)
+			}
 		}
 	}
 	title := fmt.Sprintf("Loadings on %s", componentLabel(res, a))
@@ -318,13 +486,17 @@ func loadingsFigure(res *analysis.Result, a int) drawing {
 		title += fmt.Sprintf(" (the %d largest of %d)", shown, p)
 	}
 	pl := newPlot(title, "loading", "")
-	pl.Add(bars)
-	pl.NominalY(names...)
+	if shown > 0 {
+		pl.Add(bars)
+		pl.NominalY(names...)
+	}
 	pl.Y.Tick.Label.Font = textFont(7.5, false)
 	pl.Y.LineStyle.Width = 0
 	pl.Y.Tick.LineStyle.Width = 0
 	h := vg.Length(2.2+0.42*float64(shown)) * vg.Centimeter
-	return drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter)}
+	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter)}
+	dr.leaveOut(left, "variable")
+	return dr
 }
 
 // groupsOf returns the distinct groups in order of first appearance, and
@@ -363,21 +535,27 @@ func sampleLabels(res *analysis.Result, x, y []float64) *plotter.Labels {
 }
 
 // labelPoints names the flagged points (most extreme first, at most
-// labelledSamples of them).
+// labelledSamples of them) that have a place in the figure.
 func labelPoints(ids []string, flagged []int, x, y []float64) *plotter.Labels {
-	if len(flagged) > labelledSamples {
-		flagged = flagged[:labelledSamples]
-	}
 	var lx, ly []float64
 	var names []string
 	for _, i := range flagged {
+		if len(names) == labelledSamples {
+			break
+		}
+		if !isFinite(x[i]) || !isFinite(y[i]) {
+			continue
+		}
 		lx, ly = append(lx, x[i]), append(ly, y[i])
-		names = append(names, shorten(ids[i], maxLabelRunes))
+		names = append(names, figureText(ids[i], maxLabelRunes))
 	}
 	if len(names) == 0 {
 		return nil
 	}
-	l, _ := plotter.NewLabels(plotter.XYLabels{XYs: xyPairs(lx, ly), Labels: names})
+	l, err := plotter.NewLabels(plotter.XYLabels{XYs: xyPairs(lx, ly), Labels: names})
+	if err != nil {
+		return nil // cannot happen for finite points; draw no names
+	}
 	for i := range l.TextStyle {
 		l.TextStyle[i] = text.Style{Color: accent99, Font: textFont(6.5, false), Handler: plot.DefaultTextHandler, XAlign: text.XLeft, YAlign: text.YBottom}
 	}
@@ -389,15 +567,6 @@ func labelPoints(ids []string, flagged []int, x, y []float64) *plotter.Labels {
 // longer ones are cut with an ellipsis (tables and CSV files keep them).
 const maxLabelRunes = 28
 
-func shorten(s string, max int) string {
-	s = strings.Join(strings.Fields(s), " ")
-	r := []rune(s)
-	if len(r) <= max {
-		return s
-	}
-	return string(r[:max-1]) + "…"
-}
-
 func xyPairs(x, y []float64) plotter.XYs {
 	out := make(plotter.XYs, len(x))
 	for i := range x {
@@ -407,18 +576,19 @@ func xyPairs(x, y []float64) plotter.XYs {
 }
 
 // addGroupedPoints draws the samples, one series per group (colour and
-// shape), or all alike beyond maxColouredGroups.
-func addGroupedPoints(p *plot.Plot, t *analysis.Table, x, y []float64) {
+// shape), or all alike beyond maxColouredGroups. It returns how many
+// samples it left out because a coordinate is not a finite number.
+func addGroupedPoints(p *plot.Plot, t *analysis.Table, x, y []float64) int {
 	groups, of := groupsOf(t)
 	if groups == nil || len(groups) > maxColouredGroups {
-		s, _ := plotter.NewScatter(xy{x, y})
-		s.GlyphStyle = draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(2.2)}
-		p.Add(s)
+		label := ""
 		if groups != nil {
-			p.Legend.Add(fmt.Sprintf("%d groups of %s: too many to tell apart, drawn alike", len(groups), t.GroupColumn), s)
+			label = fmt.Sprintf("%d groups of %s: too many to tell apart, drawn alike", len(groups), figureText(t.GroupColumn, maxLabelRunes))
 		}
-		return
+		_, left := addScatter(p, x, y, draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(2.2)}, label)
+		return left
 	}
+	left := 0
 	for g, name := range groups {
 		var gx, gy []float64
 		for i := range x {
@@ -426,15 +596,14 @@ func addGroupedPoints(p *plot.Plot, t *analysis.Table, x, y []float64) {
 				gx, gy = append(gx, x[i]), append(gy, y[i])
 			}
 		}
-		s, _ := plotter.NewScatter(xy{gx, gy})
-		s.GlyphStyle = groupStyle(g)
-		p.Add(s)
-		label := shorten(name, maxLabelRunes)
+		label := figureText(name, maxLabelRunes)
 		if label == "" {
 			label = "(no group)"
 		}
-		p.Legend.Add(label, s)
+		_, l := addScatter(p, gx, gy, groupStyle(g), label)
+		left += l
 	}
+	return left
 }
 
 // ellipse returns points of x²/a² + y²/b² = 1.
@@ -448,6 +617,21 @@ func ellipse(a, b float64) plotter.XYs {
 	return pts
 }
 
+// addEllipse draws the T² ellipse with half-axes a and b, unless they are
+// not finite numbers.
+func addEllipse(p *plot.Plot, a, b float64, label string) {
+	if !isFinite(a) || !isFinite(b) {
+		return
+	}
+	e, err := plotter.NewLine(ellipse(a, b))
+	if err != nil {
+		return
+	}
+	e.LineStyle = lineStyle(accent95, 1, 4, 2)
+	p.Add(e)
+	p.Legend.Add(label, e)
+}
+
 func scoresFigure(res *analysis.Result, a, b int) drawing {
 	n := res.Decomp.Rows
 	x, y := make([]float64, n), make([]float64, n)
@@ -458,16 +642,15 @@ func scoresFigure(res *analysis.Result, a, b int) drawing {
 	p.Add(guides{})
 	if lim := analysis.T2LimitModel(n, 2, analysis.Conf95); !math.IsNaN(lim) {
 		ev := res.Decomp.Eigenvalues
-		e, _ := plotter.NewLine(ellipse(math.Sqrt(lim*ev[a]), math.Sqrt(lim*ev[b])))
-		e.LineStyle = lineStyle(accent95, 1, 4, 2)
-		p.Add(e)
-		p.Legend.Add("95 % Hotelling T² ellipse", e)
+		addEllipse(p, math.Sqrt(lim*ev[a]), math.Sqrt(lim*ev[b]), "95 % Hotelling T² ellipse")
 	}
-	addGroupedPoints(p, res.Table, x, y)
+	left := addGroupedPoints(p, res.Table, x, y)
 	if l := sampleLabels(res, x, y); l != nil {
 		p.Add(l)
 	}
-	return drawing{plot: p, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	dr := drawing{plot: p, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	dr.leaveOut(left, "sample")
+	return dr
 }
 
 // indexScoresFigure shows PC1 scores against sample order when only one
@@ -481,14 +664,23 @@ func indexScoresFigure(res *analysis.Result) drawing {
 	p := newPlot("Scores on PC1 in sample order", "sample (input order)", componentLabel(res, 0))
 	p.Add(guides{})
 	if lim := analysis.T2LimitModel(n, 1, analysis.Conf95); !math.IsNaN(lim) {
-		r := math.Sqrt(lim * res.Decomp.Eigenvalues[0])
-		p.Add(refLine{at: r, style: lineStyle(accent95, 1, 4, 2), label: "95 % limit"}, refLine{at: -r, style: lineStyle(accent95, 1, 4, 2)})
+		addLimitPair(p, math.Sqrt(lim*res.Decomp.Eigenvalues[0]))
 	}
-	addGroupedPoints(p, res.Table, x, y)
+	left := addGroupedPoints(p, res.Table, x, y)
 	if l := sampleLabels(res, x, y); l != nil {
 		p.Add(l)
 	}
-	return drawing{plot: p, w: figWidth, h: figHeight, legendOutside: true}
+	dr := drawing{plot: p, w: figWidth, h: figHeight, legendOutside: true}
+	dr.leaveOut(left, "sample")
+	return dr
+}
+
+// addLimitPair draws the 95 % limit ±r of one component's scores, unless r
+// is not a finite number.
+func addLimitPair(p *plot.Plot, r float64) {
+	if isFinite(r) {
+		p.Add(refLine{at: r, style: lineStyle(accent95, 1, 4, 2), label: "95 % limit"}, refLine{at: -r, style: lineStyle(accent95, 1, 4, 2)})
+	}
 }
 
 // biplotVariables is the most variables a biplot draws.
@@ -507,14 +699,22 @@ func biplotFigure(res *analysis.Result) drawing {
 	for i := 0; i < n; i++ {
 		x[i] = res.Scores.At(i, 0) / math.Sqrt(ev[0])
 		y[i] = res.Scores.At(i, 1) / math.Sqrt(ev[1])
-		reach = math.Max(reach, math.Hypot(x[i], y[i]))
+		if r := math.Hypot(x[i], y[i]); isFinite(r) {
+			reach = math.Max(reach, r)
+		}
 	}
-	ax, ay := make([]float64, p), make([]float64, p)
+	var ax, ay []float64
+	var labels []string
 	longest := 0.0
 	for j := 0; j < p; j++ {
-		ax[j] = res.Decomp.Loadings.At(j, 0) * math.Sqrt(ev[0])
-		ay[j] = res.Decomp.Loadings.At(j, 1) * math.Sqrt(ev[1])
-		longest = math.Max(longest, math.Hypot(ax[j], ay[j]))
+		u := res.Decomp.Loadings.At(j, 0) * math.Sqrt(ev[0])
+		w := res.Decomp.Loadings.At(j, 1) * math.Sqrt(ev[1])
+		if !isFinite(u) || !isFinite(w) {
+			continue
+		}
+		ax, ay = append(ax, u), append(ay, w)
+		labels = append(labels, figureText(res.Table.Variables[j], maxLabelRunes))
+		longest = math.Max(longest, math.Hypot(u, w))
 	}
 	stretch := 1.0
 	if longest > 0 {
@@ -526,13 +726,12 @@ func biplotFigure(res *analysis.Result) drawing {
 	}
 	pl := newPlot("Biplot, PC1 and PC2", componentLabel(res, 0)+" (standardised scores)", componentLabel(res, 1)+" (standardised scores)")
 	pl.Add(guides{})
-	addGroupedPoints(pl, res.Table, x, y)
-	labels := make([]string, p)
-	for j, v := range res.Table.Variables {
-		labels[j] = shorten(v, maxLabelRunes)
-	}
+	left := addGroupedPoints(pl, res.Table, x, y)
 	pl.Add(arrows{x: ax, y: ay, labels: labels})
-	return drawing{plot: pl, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	dr := drawing{plot: pl, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	dr.leaveOut(left, "sample")
+	dr.leaveOut(p-len(ax), "variable")
+	return dr
 }
 
 func t2qFigure(res *analysis.Result) drawing {
@@ -545,13 +744,23 @@ func t2qFigure(res *analysis.Result) drawing {
 func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []int, ids []string) drawing {
 	pl := newPlot(title, "Hotelling T²", "Q residual")
 	pl.Add(guides{})
-	if !math.IsNaN(l.T2_95) {
-		pl.Add(refLine{vertical: true, at: l.T2_95, style: lineStyle(accent95, 1, 4, 2), label: "T² 95 %"})
-		pl.Add(refLine{vertical: true, at: l.T2_99, style: lineStyle(accent99, 1), label: "T² 99 %"})
+	for _, r := range []refLine{
+		{vertical: true, at: l.T2_95, style: lineStyle(accent95, 1, 4, 2), label: "T² 95 %"},
+		{vertical: true, at: l.T2_99, style: lineStyle(accent99, 1), label: "T² 99 %"},
+	} {
+		if isFinite(r.at) {
+			pl.Add(r)
+		}
 	}
 	if l.QMethod != analysis.QNone {
-		pl.Add(refLine{at: l.Q95, style: lineStyle(accent95, 1, 4, 2), label: "Q 95 %"})
-		pl.Add(refLine{at: l.Q99, style: lineStyle(accent99, 1), label: "Q 99 %"})
+		for _, r := range []refLine{
+			{at: l.Q95, style: lineStyle(accent95, 1, 4, 2), label: "Q 95 %"},
+			{at: l.Q99, style: lineStyle(accent99, 1), label: "Q 99 %"},
+		} {
+			if isFinite(r.at) {
+				pl.Add(r)
+			}
+		}
 	}
 	flagged := map[int]bool{}
 	for _, i := range flaggedIdx {
@@ -565,21 +774,15 @@ func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []i
 			ix, iy = append(ix, t2[i]), append(iy, q[i])
 		}
 	}
-	inside, _ := plotter.NewScatter(xy{ix, iy})
-	inside.GlyphStyle = draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}
-	pl.Add(inside)
-	pl.Legend.Add("within the 99 % limits", inside)
-	if len(fx) > 0 {
-		out, _ := plotter.NewScatter(xy{fx, fy})
-		out.GlyphStyle = draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}
-		pl.Add(out)
-		pl.Legend.Add("beyond a 99 % limit", out)
-	}
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the 99 % limits")
+	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "beyond a 99 % limit")
 	if lab := labelPoints(ids, flaggedIdx, t2, q); lab != nil {
 		pl.Add(lab)
 	}
 	pl.X.Min, pl.Y.Min = 0, 0
-	return drawing{plot: pl, w: figWidth, h: figHeight}
+	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr.leaveOut(left+l2, "sample")
+	return dr
 }
 
 func congruenceFigure(res *analysis.Result) drawing {
@@ -588,30 +791,45 @@ func congruenceFigure(res *analysis.Result) drawing {
 	pl.Add(guides{})
 	names := make([]string, len(st.Congruence))
 	lo := 1.0
+	left := 0
 	for a, vals := range st.Congruence {
 		names[a] = fmt.Sprintf("PC%d", a+1)
-		b, _ := plotter.NewBoxPlot(vg.Points(22), float64(a), plotter.Values(vals))
+		var finite plotter.Values
+		for _, v := range vals {
+			if isFinite(v) {
+				finite = append(finite, v)
+				lo = math.Min(lo, v)
+			}
+		}
+		left += len(vals) - len(finite)
+		if len(finite) == 0 {
+			continue
+		}
+		b, err := plotter.NewBoxPlot(vg.Points(22), float64(a), finite)
+		if err != nil {
+			left += len(finite)
+			continue
+		}
 		b.BoxStyle = lineStyle(mainColor, 0.9)
 		b.MedianStyle = lineStyle(mainColor, 1.8)
 		b.WhiskerStyle = lineStyle(mainColor, 0.8)
 		b.GlyphStyle = draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(1.6)}
 		pl.Add(b)
-		for _, v := range vals {
-			lo = math.Min(lo, v)
-		}
 	}
 	pl.NominalX(names...)
 	pl.Add(refLine{at: 0.95, style: lineStyle(accent95, 1, 4, 2), label: "0.95 equal"})
 	pl.Add(refLine{at: 0.85, style: lineStyle(accent99, 1), label: "0.85 fair"})
 	pl.Y.Min = math.Min(lo, 0.8) - 0.02
 	pl.Y.Max = 1.005
-	return drawing{plot: pl, w: figWidth, h: figHeight}
+	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr.leaveOut(left, "resample value")
+	return dr
 }
 
-// intervals draws points with vertical whiskers.
+// intervals draws points with vertical whiskers; retained points filled.
 type intervals struct {
 	x, y, lo, hi []float64
-	kept         int
+	retained     []bool
 }
 
 func (iv intervals) Plot(c draw.Canvas, plt *plot.Plot) {
@@ -624,7 +842,7 @@ func (iv intervals) Plot(c draw.Canvas, plt *plot.Plot) {
 			c.StrokeLine2(ws, x-vg.Points(3), trY(v), x+vg.Points(3), trY(v))
 		}
 		g := draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(3)}
-		if i >= iv.kept {
+		if !iv.retained[i] {
 			g.Shape = draw.RingGlyph{}
 		}
 		c.DrawGlyph(g, vg.Point{X: x, Y: trY(iv.y[i])})
@@ -646,17 +864,26 @@ const intervalComponents = 10
 func eigenIntervalFigure(res *analysis.Result) drawing {
 	st := res.Stability
 	m := min(len(st.Eigenvalues), intervalComponents)
-	iv := intervals{kept: res.Retained}
+	var iv intervals
+	left := 0
 	for a := 0; a < m; a++ {
+		y, lo, hi := res.Decomp.Eigenvalues[a], st.Eigenvalues[a].Low, st.Eigenvalues[a].High
+		if !isFinite(y) || !isFinite(lo) || !isFinite(hi) {
+			left++
+			continue
+		}
 		iv.x = append(iv.x, float64(a+1))
-		iv.y = append(iv.y, res.Decomp.Eigenvalues[a])
-		iv.lo = append(iv.lo, st.Eigenvalues[a].Low)
-		iv.hi = append(iv.hi, st.Eigenvalues[a].High)
+		iv.y, iv.lo, iv.hi = append(iv.y, y), append(iv.lo, lo), append(iv.hi, hi)
+		iv.retained = append(iv.retained, a < res.Retained)
 	}
 	pl := newPlot("Eigenvalues with 95 % bootstrap intervals", "component", "eigenvalue")
 	pl.Add(guides{})
-	pl.Add(iv)
+	if len(iv.x) > 0 {
+		pl.Add(iv)
+	}
 	pl.X.Tick.Marker = integerTicks{}
 	pl.Y.Min = 0
-	return drawing{plot: pl, w: figWidth, h: figHeight}
+	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr.leaveOut(left, "component")
+	return dr
 }

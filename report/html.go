@@ -50,7 +50,7 @@ func RenderHTML(src []byte, doc ast.Node, d Page) ([]byte, error) {
 	err = page.Execute(&out, struct {
 		Title, Version, Date, ShortHash string
 		Body                            template.HTML
-	}{d.Title, d.Version, d.Date, shortHash(d.SHA256), template.HTML(body.String())})
+	}{oneLine(d.Title), d.Version, d.Date, shortHash(d.SHA256), template.HTML(body.String())})
 	return out.Bytes(), err
 }
 

@@ -10,19 +10,33 @@ import (
 	"pcqc/templates"
 )
 
-// escapeMarkdown makes s safe as inline Markdown text, escaping only what
-// would otherwise start Markdown syntax, so that report.md stays readable as
-// plain text. Backslash escapes of ASCII punctuation are CommonMark, so the
-// rendered text is exactly s.
-func escapeMarkdown(s string) string {
+// escapeMarkdown makes s safe as inline Markdown text: whatever s holds,
+// it renders as one line of literal text in report.md, report.html and
+// report.pdf, and can neither open a block (a heading, a list, a quote, a
+// code block or fence, a table, HTML) nor close one it is placed in. It is
+// the one function every piece of user text in the Markdown goes through
+// (the template's md, table cells and figure captions).
+//
+// Control characters and line breaks go first (oneLine), so that the text
+// stays on the line the template put it on; surrounding spaces go too,
+// since four of them would open a code block and two at the end a line
+// break. Then only what would otherwise start Markdown syntax is escaped,
+// so that report.md stays readable as plain text; backslash escapes of
+// ASCII punctuation are CommonMark, so the rendered text is exactly s.
+func escapeMarkdown(s string) string { return escapeInline(s, false) }
+
+// escapeInline is escapeMarkdown, with every pipe escaped in a table cell.
+func escapeInline(s string, cell bool) string {
 	var b strings.Builder
-	r := []rune(s)
+	r := []rune(strings.TrimSpace(oneLine(s)))
 	word := func(i int) bool {
 		return i >= 0 && i < len(r) && (unicode.IsLetter(r[i]) || unicode.IsDigit(r[i]))
 	}
 	for i, c := range r {
 		switch c {
-		case '\\', '`', '*', '[', ']':
+		case '\\', '`', '*', '[', ']', '#':
+			// "#" anywhere: a run of them at the end of a heading would
+			// be taken for its closing sequence and dropped.
 			b.WriteRune('\\')
 		case '_':
 			// Inside a word an underscore is literal (snake_case names).
@@ -39,10 +53,11 @@ func escapeMarkdown(s string) string {
 			if entityAt(r[i+1:]) {
 				b.WriteRune('\\')
 			}
-		case '#', '>', '-', '+', '=':
-			// Only at the start of a line do these open a heading, quote,
-			// list or underline.
-			if i == 0 {
+		case '>', '-', '+', '=', '~', '|':
+			// Only at the start of a line do these open a quote, list,
+			// underline, fence or table row; in a table, a pipe anywhere
+			// ends the cell.
+			if i == 0 || cell && c == '|' {
 				b.WriteRune('\\')
 			}
 		case '.', ')':
@@ -54,6 +69,45 @@ func escapeMarkdown(s string) string {
 		b.WriteRune(c)
 	}
 	return b.String()
+}
+
+// codeSpan renders s as an inline code span that no backtick in s can
+// close: its fence is one backtick longer than the longest run in s
+// (CommonMark closes a span only with a run of equal length), padded with
+// a space where s starts or ends with a backtick. Code spans show
+// backslashes and HTML literally, so nothing else needs escaping; never use
+// one in a table cell, where "|" would still split the cell.
+func codeSpan(s string) string {
+	s = strings.TrimSpace(oneLine(s))
+	if s == "" {
+		return ""
+	}
+	fence := strings.Repeat("`", longestRun(s, '`')+1)
+	if strings.HasPrefix(s, "`") || strings.HasSuffix(s, "`") {
+		s = " " + s + " "
+	}
+	return fence + s + fence
+}
+
+// codeFence returns a fence for a code block holding s: at least three
+// backticks, and longer than any run of backticks in s, so that no line of
+// s can close the block early.
+func codeFence(s string) string {
+	return strings.Repeat("`", max(3, longestRun(s, '`')+1))
+}
+
+// longestRun returns the length of the longest run of c in s.
+func longestRun(s string, c rune) int {
+	longest, run := 0, 0
+	for _, r := range s {
+		if r == c {
+			run++
+			longest = max(longest, run)
+		} else {
+			run = 0
+		}
+	}
+	return longest
 }
 
 func entityAt(r []rune) bool {
@@ -68,13 +122,13 @@ func entityAt(r []rune) bool {
 	return false
 }
 
-// escapeCell makes s safe inside a table cell: one line, pipes escaped.
+// escapeCell makes s safe inside a table cell: escapeMarkdown, and every
+// pipe escaped, since one would end the cell wherever it stood.
 func escapeCell(s string) string {
-	s = strings.NewReplacer("\r\n", " ", "\n", " ", "\r", " ").Replace(s)
-	if strings.TrimSpace(s) == "" {
-		return " "
+	if e := escapeInline(s, true); e != "" {
+		return e
 	}
-	return strings.ReplaceAll(escapeMarkdown(s), "|", "\\|")
+	return " "
 }
 
 // markdownTable writes a GFM table.
@@ -109,6 +163,8 @@ func renderTemplate(name string, data any) ([]byte, error) {
 	figureNo := 0
 	funcs := template.FuncMap{
 		"md":    escapeMarkdown,
+		"code":  codeSpan,
+		"fence": codeFence,
 		"table": markdownTable,
 		"list":  func(s ...string) []string { return s },
 		"checkRows": func(cs []CheckRow) [][]string {
@@ -126,6 +182,9 @@ func renderTemplate(name string, data any) ([]byte, error) {
 			return rows
 		},
 		"figure": func(f Figure) string {
+			if f.Omitted != "" {
+				return "*" + escapeMarkdown(f.Omitted) + "*\n"
+			}
 			figureNo++
 			return fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
 		},

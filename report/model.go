@@ -7,6 +7,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"pcqc/analysis"
 	"pcqc/checks"
@@ -40,10 +41,11 @@ type Document struct {
 	figures []figureJob
 }
 
-// figureJob pairs a figure with its drawing, rendered when the report is
-// written.
+// figureJob pairs a figure of the document with its drawing, made when
+// the report is written. fig points into the document, so that
+// prepareFigures can amend what the report says about it.
 type figureJob struct {
-	fig     Figure
+	fig     *Figure
 	drawing func() drawing
 }
 
@@ -129,16 +131,31 @@ const (
 	maxOutlierRows  = 100
 )
 
-func f3(x float64) string { return strconv.FormatFloat(x, 'f', 3, 64) }
+// notANumber is what the report shows for a value that is not a finite
+// number, rather than Go's "NaN" or "+Inf".
+const notANumber = "n/a"
+
+func isFinite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+func f3(x float64) string {
+	if !isFinite(x) {
+		return notANumber
+	}
+	return strconv.FormatFloat(x, 'f', 3, 64)
+}
+
 func pctText(x float64) string {
+	if !isFinite(x) {
+		return notANumber
+	}
 	return strconv.FormatFloat(x, 'f', 1, 64) + " %"
 }
 
 // g4 formats a number with four significant digits, without exponent for
 // ordinary magnitudes.
 func g4(x float64) string {
-	if math.IsNaN(x) {
-		return "n/a"
+	if !isFinite(x) {
+		return notANumber
 	}
 	a := math.Abs(x)
 	if a != 0 && (a < 1e-3 || a >= 1e6) {
@@ -226,29 +243,29 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	}
 
 	// Figures in report order.
-	d.figures = append(d.figures, figureJob{d.Components.Scree, func() drawing { return screeFigure(res) }})
-	for a, f := range d.Loadings.Figures {
-		a := a
-		d.figures = append(d.figures, figureJob{f, func() drawing { return loadingsFigure(res, a) }})
+	d.figures = append(d.figures, figureJob{&d.Components.Scree, func() drawing { return screeFigure(res) }})
+	for a := range d.Loadings.Figures {
+		d.figures = append(d.figures, figureJob{&d.Loadings.Figures[a], func() drawing { return loadingsFigure(res, a) }})
 	}
 	pairs := scorePairs(res.Retained)
-	for i, f := range d.Scores.Figures {
+	for i := range d.Scores.Figures {
 		if res.Retained == 1 {
-			d.figures = append(d.figures, figureJob{f, func() drawing { return indexScoresFigure(res) }})
+			d.figures = append(d.figures, figureJob{&d.Scores.Figures[i], func() drawing { return indexScoresFigure(res) }})
 			break
 		}
 		pr := pairs[i]
-		d.figures = append(d.figures, figureJob{f, func() drawing { return scoresFigure(res, pr[0], pr[1]) }})
+		d.figures = append(d.figures, figureJob{&d.Scores.Figures[i], func() drawing { return scoresFigure(res, pr[0], pr[1]) }})
 	}
 	if d.Scores.Biplot != nil {
-		d.figures = append(d.figures, figureJob{*d.Scores.Biplot, func() drawing { return biplotFigure(res) }})
+		d.figures = append(d.figures, figureJob{d.Scores.Biplot, func() drawing { return biplotFigure(res) }})
 	}
-	d.figures = append(d.figures, figureJob{d.Outliers.Figure, func() drawing { return t2qFigure(res) }})
+	d.figures = append(d.figures, figureJob{&d.Outliers.Figure, func() drawing { return t2qFigure(res) }})
 	if d.Stability.Enabled {
 		d.figures = append(d.figures,
-			figureJob{d.Stability.Congruence, func() drawing { return congruenceFigure(res) }},
-			figureJob{d.Stability.Eigen, func() drawing { return eigenIntervalFigure(res) }})
+			figureJob{&d.Stability.Congruence, func() drawing { return congruenceFigure(res) }},
+			figureJob{&d.Stability.Eigen, func() drawing { return eigenIntervalFigure(res) }})
 	}
+	prepareFigures(d.figures)
 	return d
 }
 
@@ -592,17 +609,42 @@ func stabilityBlock(res *analysis.Result) StabilityBlock {
 }
 
 // shellQuote renders a command line so that it can be pasted into a POSIX
-// shell.
+// shell, on one line. An argument holding a line break, another control
+// character or a bidirectional control is written in dollar-single-quotes
+// ($'…', POSIX.1-2024, bash, ksh and zsh) with those characters as \xHH
+// escapes of their bytes, so that the report shows them and a paste
+// reproduces them.
 func shellQuote(args []string) string {
 	out := make([]string, len(args))
 	for i, a := range args {
-		if a != "" && strings.IndexFunc(a, func(r rune) bool {
+		switch {
+		case a != "" && strings.IndexFunc(a, func(r rune) bool {
 			return !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("-_./=:,+@%", r))
-		}) < 0 {
+		}) < 0:
 			out[i] = a
-			continue
+		case strings.ContainsFunc(a, needsEscape) || !utf8.ValidString(a):
+			var b strings.Builder
+			b.WriteString("$'")
+			for j, w := 0, 0; j < len(a); j += w {
+				r, size := utf8.DecodeRuneInString(a[j:])
+				w = size
+				switch {
+				case r == '\\' || r == '\'':
+					b.WriteByte('\\')
+					b.WriteRune(r)
+				case r == utf8.RuneError && size == 1 || needsEscape(r):
+					for k := j; k < j+size; k++ {
+						fmt.Fprintf(&b, `\x%02x`, a[k])
+					}
+				default:
+					b.WriteString(a[j : j+size])
+				}
+			}
+			b.WriteString("'")
+			out[i] = b.String()
+		default:
+			out[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
 		}
-		out[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
 	}
 	return strings.Join(out, " ")
 }

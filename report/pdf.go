@@ -110,9 +110,9 @@ func newPDFWriter(src []byte, d Page, dir string) (*pdfWriter, error) {
 	stamp := reportTime(d.Date)
 	pdf.SetCreationDate(stamp)
 	pdf.SetModificationDate(stamp)
-	pdf.SetTitle(d.Title, true)
+	pdf.SetTitle(metadataText(d.Title), true)
 	if d.Author != "" {
-		pdf.SetAuthor(d.Author, true)
+		pdf.SetAuthor(metadataText(d.Author), true)
 	}
 	pdf.SetCreator("pcqc "+d.Version, true)
 	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
@@ -124,7 +124,10 @@ func newPDFWriter(src []byte, d Page, dir string) (*pdfWriter, error) {
 	pdf.SetCellMargin(0) // padding is the writer's business
 	pdf.SetAutoPageBreak(true, pdfMargin+4)
 	pdf.AliasNbPages("{nb}")
-	footer := fmt.Sprintf("pcqc %s · %s · input SHA-256 %s", d.Version, d.File, shortHash(d.SHA256))
+	// The file name is the user's: one line, and short enough to leave
+	// room for the page number.
+	file := drawText(shorten(oneLine(d.File), maxFooterFile), sansCovers)
+	footer := fmt.Sprintf("pcqc %s · %s · input SHA-256 %s", d.Version, file, shortHash(d.SHA256))
 	pdf.SetFooterFunc(func() {
 		pdf.SetY(-pdfMargin + 4)
 		pdf.SetFont("sans", "", 7)
@@ -139,6 +142,36 @@ func newPDFWriter(src []byte, d Page, dir string) (*pdfWriter, error) {
 	w := &pdfWriter{pdf: pdf, src: src, dir: dir, contentW: pageW - 2*pdfMargin, size: pdfBodySize, lineH: pdfLine}
 	w.setFont()
 	return w, pdf.Error()
+}
+
+// metadataText prepares user text for the PDF's document information: one
+// line, and characters beyond the Basic Multilingual Plane (emoji) as
+// U+FFFD, since fpdf's UTF-16 conversion would garble them.
+func metadataText(s string) string {
+	return strings.Map(func(r rune) rune {
+		if r > 0xffff {
+			return '\ufffd'
+		}
+		return r
+	}, oneLine(s))
+}
+
+// maxFooterFile is the most characters of the input's file name the
+// footer shows.
+const maxFooterFile = 60
+
+// covers tells whether the current font can show a rune.
+func (w *pdfWriter) covers(r rune) bool {
+	if w.mono > 0 {
+		return monoCovers(r)
+	}
+	return sansCovers(r)
+}
+
+// write writes text into the flowing paragraph in the current font, as
+// drawText prepares it.
+func (w *pdfWriter) write(s string) {
+	w.pdf.Write(w.lineH, drawText(s, w.covers))
 }
 
 func (w *pdfWriter) setFont() {
@@ -185,7 +218,7 @@ func (w *pdfWriter) block(n ast.Node) error {
 	case *ast.TextBlock:
 		w.paragraph(n, 0)
 	case *ast.List:
-		w.list(n)
+		return w.list(n)
 	case *ast.FencedCodeBlock, *ast.CodeBlock:
 		w.code(n)
 	case *east.Table:
@@ -258,14 +291,14 @@ func (w *pdfWriter) inlines(n ast.Node) {
 	for c := n.FirstChild(); c != nil; c = c.NextSibling() {
 		switch c := c.(type) {
 		case *ast.Text:
-			w.pdf.Write(w.lineH, textValue(c, w.src))
+			w.write(textValue(c, w.src))
 			if c.HardLineBreak() {
 				w.pdf.Ln(w.lineH)
 			} else if c.SoftLineBreak() {
 				w.pdf.Write(w.lineH, " ")
 			}
 		case *ast.String:
-			w.pdf.Write(w.lineH, string(c.Value))
+			w.write(string(c.Value))
 		case *ast.Emphasis:
 			if c.Level >= 2 {
 				w.bold++
@@ -283,7 +316,7 @@ func (w *pdfWriter) inlines(n ast.Node) {
 		case *ast.CodeSpan:
 			w.mono++
 			w.setFont()
-			w.pdf.Write(w.lineH, plainText(c, w.src))
+			w.write(plainText(c, w.src))
 			w.mono--
 			w.setFont()
 		default:
@@ -323,7 +356,7 @@ func plainText(n ast.Node, src []byte) string {
 	return b.String()
 }
 
-func (w *pdfWriter) list(l *ast.List) {
+func (w *pdfWriter) list(l *ast.List) error {
 	const indent = 5.0
 	left, _, _, _ := w.pdf.GetMargins()
 	for item := l.FirstChild(); item != nil; item = item.NextSibling() {
@@ -338,13 +371,16 @@ func (w *pdfWriter) list(l *ast.List) {
 				w.inlines(c)
 				w.pdf.Ln(w.lineH)
 			default:
-				w.block(c)
+				if err := w.block(c); err != nil {
+					return err
+				}
 			}
 		}
 		w.pdf.SetLeftMargin(left)
 		w.pdf.Ln(0.8)
 	}
 	w.pdf.Ln(1.6)
+	return nil
 }
 
 func (w *pdfWriter) code(n ast.Node) {
@@ -357,6 +393,11 @@ func (w *pdfWriter) code(n ast.Node) {
 	text := strings.TrimRight(b.String(), "\n")
 	w.mono++
 	w.setFont()
+	rows := strings.Split(text, "\n")
+	for i, l := range rows {
+		rows[i] = drawText(l, monoCovers)
+	}
+	text = strings.Join(rows, "\n")
 	w.pdf.SetFillColor(238, 241, 245)
 	w.pdf.MultiCell(w.contentW, w.lineH, text, "", "L", true)
 	w.mono--
@@ -491,6 +532,29 @@ func (w *pdfWriter) wrapCell(text string, width float64) []string {
 	return w.pdf.SplitText(text, width)
 }
 
+// maxCellLines is the most lines a table cell of the PDF takes; a longer
+// text (a name of hundreds of characters) is cut with an ellipsis, so that
+// one row can never outgrow a page. The CSV files hold it whole.
+const maxCellLines = 20
+
+// cellLines returns the lines a table cell shows: its text wrapped to
+// width, at most maxCellLines of them, each in visual order.
+func (w *pdfWriter) cellLines(text string, width float64) []string {
+	lines := w.wrapCell(coverText(text, w.covers), width)
+	if len(lines) > maxCellLines {
+		lines = lines[:maxCellLines]
+		last := []rune(strings.TrimRight(lines[maxCellLines-1], " "))
+		for len(last) > 0 && w.pdf.GetStringWidth(string(last)+"…") > width {
+			last = last[:len(last)-1]
+		}
+		lines[maxCellLines-1] = string(last) + "…"
+	}
+	for i, l := range lines {
+		lines[i] = string(visualOrder([]rune(l)))
+	}
+	return lines
+}
+
 func (w *pdfWriter) table(t *east.Table) {
 	header, rows := tableCells(t, w.src)
 	if len(header) == 0 {
@@ -505,7 +569,7 @@ func (w *pdfWriter) table(t *east.Table) {
 		w.setFont()
 		for i, c := range cells {
 			if i < len(natural) {
-				natural[i] = max(natural[i], pdf.GetStringWidth(c)+2*pdfCellPad+0.5)
+				natural[i] = max(natural[i], pdf.GetStringWidth(coverText(c, w.covers))+2*pdfCellPad+0.5)
 			}
 		}
 	}
@@ -525,7 +589,7 @@ func (w *pdfWriter) table(t *east.Table) {
 			if i < len(cells) {
 				cell = cells[i]
 			}
-			lines[i] = w.wrapCell(cell, widths[i]-2*pdfCellPad)
+			lines[i] = w.cellLines(cell, widths[i]-2*pdfCellPad)
 			maxLines = max(maxLines, len(lines[i]))
 		}
 		h := float64(maxLines)*pdfTableLine + 2*pdfCellPad
@@ -553,7 +617,7 @@ func (w *pdfWriter) table(t *east.Table) {
 		maxLines := 1
 		for i := range widths {
 			if i < len(cells) {
-				maxLines = max(maxLines, len(w.wrapCell(cells[i], widths[i]-2*pdfCellPad)))
+				maxLines = max(maxLines, len(w.cellLines(cells[i], widths[i]-2*pdfCellPad)))
 			}
 		}
 		return float64(maxLines)*pdfTableLine + 2*pdfCellPad

@@ -24,10 +24,10 @@ type ReviewInfo struct {
 }
 
 type VariantInfo struct {
-	Centered      bool     `json:"centered"`
-	Scale         string   `json:"scale"`
-	MaxAngleDeg   float64  `json:"max_angle_deg"`
-	ScoreResidual *float64 `json:"score_residual,omitempty"`
+	Centered      bool    `json:"centered"`
+	Scale         string  `json:"scale"`
+	MaxAngleDeg   Number  `json:"max_angle_deg"`
+	ScoreResidual *Number `json:"score_residual,omitempty"`
 }
 
 // reviewFindings are the first sentences of the review checks, each written
@@ -43,9 +43,9 @@ func reviewFindings(results []checks.Result) []string {
 }
 
 func variantInfo(rv *analysis.Review, v analysis.Variant) VariantInfo {
-	info := VariantInfo{Centered: v.Centered, Scale: string(v.Scaling), MaxAngleDeg: v.MaxAngle}
+	info := VariantInfo{Centered: v.Centered, Scale: string(v.Scaling), MaxAngleDeg: Number(v.MaxAngle)}
 	if rv.Scores != nil {
-		res := v.ScoreResidual
+		res := Number(v.ScoreResidual)
 		info.ScoreResidual = &res
 	}
 	return info

@@ -39,7 +39,7 @@ func (o Options) MarshalJSON() ([]byte, error) {
 		if err != nil {
 			return nil, err
 		}
-		v, err := json.Marshal(opt.Value)
+		v, err := json.Marshal(jsonValue(opt.Value))
 		if err != nil {
 			return nil, err
 		}
@@ -88,22 +88,22 @@ type ComponentsInfo struct {
 	Rule               string               `json:"rule"`
 	NoStructure        bool                 `json:"no_structure"`
 	Method             string               `json:"method"`
-	Eigenvalues        []float64            `json:"eigenvalues"`
-	Percent            []float64            `json:"percent"`
+	Eigenvalues        []Number             `json:"eigenvalues"`
+	Percent            []Number             `json:"percent"`
 	Counts             []analysis.RuleCount `json:"counts"`
 	Permutations       int                  `json:"permutations"`
-	PermutationP95     []float64            `json:"permutation_p95"`
-	BrokenStickPercent []float64            `json:"broken_stick_percent"`
+	PermutationP95     []Number             `json:"permutation_p95"`
+	BrokenStickPercent []Number             `json:"broken_stick_percent"`
 }
 
 // LimitsInfo holds the control limits; null where a limit is undefined.
 type LimitsInfo struct {
-	T2_95    *float64 `json:"t2_95"`
-	T2_99    *float64 `json:"t2_99"`
-	Q95      *float64 `json:"q_95"`
-	Q99      *float64 `json:"q_99"`
-	QMethod  string   `json:"q_method"`
-	Leverage float64  `json:"leverage"`
+	T2_95    Number `json:"t2_95"`
+	T2_99    Number `json:"t2_99"`
+	Q95      Number `json:"q_95"`
+	Q99      Number `json:"q_99"`
+	QMethod  string `json:"q_method"`
+	Leverage Number `json:"leverage"`
 }
 
 // StabilityInfo summarises the bootstrap; null when it did not run.
@@ -116,21 +116,21 @@ type StabilityInfo struct {
 }
 
 type ComponentStability struct {
-	Component        string  `json:"component"`
-	CongruenceMedian float64 `json:"congruence_median"`
-	CongruenceP5     float64 `json:"congruence_p5"`
-	ProcrustesMedian float64 `json:"procrustes_median"`
-	ProcrustesP5     float64 `json:"procrustes_p5"`
+	Component        string `json:"component"`
+	CongruenceMedian Number `json:"congruence_median"`
+	CongruenceP5     Number `json:"congruence_p5"`
+	ProcrustesMedian Number `json:"procrustes_median"`
+	ProcrustesP5     Number `json:"procrustes_p5"`
 }
 
 type EigenInterval struct {
-	Component     string  `json:"component"`
-	Eigenvalue    float64 `json:"eigenvalue"`
-	CILow         float64 `json:"ci_low"`
-	CIHigh        float64 `json:"ci_high"`
-	Percent       float64 `json:"percent"`
-	PercentCILow  float64 `json:"percent_ci_low"`
-	PercentCIHigh float64 `json:"percent_ci_high"`
+	Component     string `json:"component"`
+	Eigenvalue    Number `json:"eigenvalue"`
+	CILow         Number `json:"ci_low"`
+	CIHigh        Number `json:"ci_high"`
+	Percent       Number `json:"percent"`
+	PercentCILow  Number `json:"percent_ci_low"`
+	PercentCIHigh Number `json:"percent_ci_high"`
 }
 
 func stabilityInfo(res *analysis.Result) *StabilityInfo {
@@ -141,32 +141,85 @@ func stabilityInfo(res *analysis.Result) *StabilityInfo {
 	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate}
 	for a, c := range st.Components {
 		info.Components = append(info.Components, ComponentStability{
-			Component: componentName(a), CongruenceMedian: c.CongruenceMedian, CongruenceP5: c.CongruenceP5,
-			ProcrustesMedian: c.ProcrustesMedian, ProcrustesP5: c.ProcrustesP5,
+			Component: componentName(a), CongruenceMedian: Number(c.CongruenceMedian), CongruenceP5: Number(c.CongruenceP5),
+			ProcrustesMedian: Number(c.ProcrustesMedian), ProcrustesP5: Number(c.ProcrustesP5),
 		})
 	}
 	pct := Percentages(res.Decomp.Eigenvalues)
 	for a, l := range res.Decomp.Eigenvalues {
 		info.Eigenvalues = append(info.Eigenvalues, EigenInterval{
-			Component: componentName(a), Eigenvalue: l, CILow: st.Eigenvalues[a].Low, CIHigh: st.Eigenvalues[a].High,
-			Percent: pct[a], PercentCILow: st.Percent[a].Low, PercentCIHigh: st.Percent[a].High,
+			Component: componentName(a), Eigenvalue: Number(l), CILow: Number(st.Eigenvalues[a].Low), CIHigh: Number(st.Eigenvalues[a].High),
+			Percent: Number(pct[a]), PercentCILow: Number(st.Percent[a].Low), PercentCIHigh: Number(st.Percent[a].High),
 		})
 	}
 	return info
 }
 
-// finite returns x, or nil when x is not a finite number (JSON has no NaN).
-func finite(x float64) *float64 {
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return nil
+// Number is a float64 in summary.json. JSON has no NaN or infinity, so a
+// value that is not a finite number is written as null instead of failing
+// the whole file ("json: unsupported value"); finite values are written
+// exactly as encoding/json writes a float64.
+type Number float64
+
+// MarshalJSON writes the number, or null when it is not finite.
+func (x Number) MarshalJSON() ([]byte, error) {
+	f := float64(x)
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return []byte("null"), nil
 	}
-	return &x
+	return json.Marshal(f)
 }
 
-func scaled(x []float64, f float64) []float64 {
-	out := make([]float64, len(x))
+// numbers converts a slice for summary.json; nil stays nil (null).
+func numbers(x []float64) []Number {
+	if x == nil {
+		return nil
+	}
+	out := make([]Number, len(x))
 	for i, v := range x {
-		out[i] = f * v
+		out[i] = Number(v)
+	}
+	return out
+}
+
+func scaled(x []float64, f float64) []Number {
+	out := make([]Number, len(x))
+	for i, v := range x {
+		out[i] = Number(f * v)
+	}
+	return out
+}
+
+// jsonValue makes a value of any type that a check result or an option may
+// hold safe for JSON: floats, and floats in maps and slices, become Numbers.
+func jsonValue(v any) any {
+	switch x := v.(type) {
+	case float64:
+		return Number(x)
+	case float32:
+		return Number(x)
+	case []float64:
+		return numbers(x)
+	case map[string]float64:
+		out := make(map[string]Number, len(x))
+		for k, f := range x {
+			out[k] = Number(f)
+		}
+		return out
+	}
+	return v
+}
+
+// jsonChecks returns the check results with their values and limits made
+// safe for JSON.
+func jsonChecks(results []checks.Result) []checks.Result {
+	if results == nil {
+		return nil
+	}
+	out := make([]checks.Result, len(results))
+	for i, r := range results {
+		r.Value, r.Limit = jsonValue(r.Value), jsonValue(r.Limit)
+		out[i] = r
 	}
 	return out
 }
@@ -216,24 +269,24 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			Rule:               res.Rule.String(),
 			NoStructure:        res.NoStructure,
 			Method:             res.Decomp.Method,
-			Eigenvalues:        res.Decomp.Eigenvalues,
-			Percent:            Percentages(res.Decomp.Eigenvalues),
+			Eigenvalues:        numbers(res.Decomp.Eigenvalues),
+			Percent:            numbers(Percentages(res.Decomp.Eigenvalues)),
 			Counts:             res.Counts.Counts,
 			Permutations:       res.Counts.Parallel.Permutations,
-			PermutationP95:     res.Counts.Parallel.P95,
+			PermutationP95:     numbers(res.Counts.Parallel.P95),
 			BrokenStickPercent: scaled(res.Counts.BrokenStickShares, 100),
 		},
 		Limits: LimitsInfo{
-			T2_95:    finite(lim.T2_95),
-			T2_99:    finite(lim.T2_99),
-			Q95:      finite(lim.Q95),
-			Q99:      finite(lim.Q99),
+			T2_95:    Number(lim.T2_95),
+			T2_99:    Number(lim.T2_99),
+			Q95:      Number(lim.Q95),
+			Q99:      Number(lim.Q99),
 			QMethod:  string(lim.QMethod),
-			Leverage: lim.Leverage,
+			Leverage: Number(lim.Leverage),
 		},
 		Stability: stabilityInfo(res),
 		Review:    reviewInfo(audit.Review, results),
-		Checks:    results,
+		Checks:    jsonChecks(results),
 		Verdict:   checks.Verdict(results),
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"encoding/csv"
 	"fmt"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -13,9 +14,16 @@ import (
 	"pcqc/analysis"
 )
 
-// num formats a number for the CSV tables and JSON: the shortest decimal
-// that reads back as the same float64, so tables are exact and diff-friendly.
-func num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+// num formats a number for the CSV tables: the shortest decimal that reads
+// back as the same float64, so tables are exact and diff-friendly. A value
+// that is not a finite number is an empty cell, which every reader
+// (pcqc's included) takes as missing, rather than "NaN" or "+Inf".
+func num(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(x, 'g', -1, 64)
+}
 
 // componentName is the label of the a-th component (0-based).
 func componentName(a int) string { return fmt.Sprintf("PC%d", a+1) }
@@ -35,7 +43,10 @@ func streamCSV(path string, header []string, n int, row func(i int, dst []string
 	}
 	bw := bufio.NewWriterSize(f, 1<<20)
 	w := csv.NewWriter(bw)
-	w.Write(header)
+	if err := w.Write(header); err != nil {
+		f.Close()
+		return err
+	}
 	dst := make([]string, len(header))
 	for i := 0; i < n; i++ {
 		if err := w.Write(row(i, dst[:0])); err != nil {

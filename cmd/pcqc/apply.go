@@ -80,6 +80,9 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
+	if err := analysis.CheckNewValues(model, t); err != nil {
+		return 0, err
+	}
 	app := analysis.Apply(model, t)
 	app.Extra = append(app.Extra, others...)
 	run := report.ApplyRun{

@@ -24,6 +24,8 @@ import (
 //	                   usarrests.csv (instead of a data file for run)
 //	apply: scores      the file is an audit folder's scores.csv, beside
 //	                   usarrests-model.json as its model.json
+//	apply: data        the file is new data, scored against
+//	                   usarrests-model.json
 //	review: ROLE       the file is review's --loadings, --scores or
 //	                   --variance (ROLE) for usarrests.csv; --loadings is
 //	                   usarrests-loadings.csv when ROLE is another
@@ -160,6 +162,9 @@ func caseArgs(t *testing.T, testdata, mode, role, file, dir, out string) []strin
 		case "scores":
 			copyTo(filepath.Join(bad, "usarrests-model.json"), "model.json")
 			copyTo(file, "scores.csv")
+		case "data":
+			copyTo(filepath.Join(bad, "usarrests-model.json"), "model.json")
+			return []string{"apply", audit, file, "--out", out}
 		default:
 			t.Fatalf("unknown apply role %q", role)
 		}

@@ -64,6 +64,8 @@ func TestNumericalEdgeCases(t *testing.T) {
 		{"huge values", 150, 5, func(i, j int) float64 { return 1e150 * (3 + noise[i][j]) }, nil, ""},
 		{"tiny values", 150, 5, func(i, j int) float64 { return 1e-150 * (3 + noise[i][j]) }, nil, ""},
 		{"huge values unscaled", 150, 5, func(i, j int) float64 { return 1e150 * (3 + noise[i][j]) }, []string{"--scale", "none"}, "leave the range of double precision"},
+		{"near the largest double, Pareto", 30, 5, func(i, j int) float64 { return 1e306 * (3 + noise[i][j]) }, []string{"--scale", "pareto"}, "leave the range of double precision"},
+		{"sums beyond the largest double", 150, 5, func(i, j int) float64 { return 1e308 * (1 + 0.1*noise[i][j]) }, nil, "overflow double precision when the column's mean"},
 		{"one huge outlier", 200, 5, func(i, j int) float64 {
 			if i == 17 && j == 2 {
 				return 1e12
