@@ -1,11 +1,8 @@
 package analysis
 
 import (
-	"bufio"
-	"bytes"
 	"fmt"
 	"io"
-	"os"
 	"strconv"
 	"strings"
 	"unicode"
@@ -24,31 +21,26 @@ type LooseTable struct {
 	Lines     []int // line of each row
 }
 
-// ReadLooseTable reads the named file.
-func ReadLooseTable(path string) (*LooseTable, error) {
-	f, err := os.Open(path)
+// ReadLooseTable reads the named file; enc, when given, is its encoding
+// (default UTF-8).
+func ReadLooseTable(path string, enc ...Encoding) (*LooseTable, error) {
+	f, err := openData(path)
 	if err != nil {
-		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+		return nil, err
 	}
 	defer f.Close()
-	return ReadLooseTableFrom(path, f)
+	return ReadLooseTableFrom(path, f, enc...)
 }
 
-// ReadLooseTableFrom reads a loose table from r; name is used in messages.
-func ReadLooseTableFrom(name string, r io.Reader) (*LooseTable, error) {
-	br := bufio.NewReaderSize(r, 1<<20)
-	if _, line, reason := sniffEncoding(br); reason != "" {
-		return nil, &InputError{File: name, Line: line, Reason: reason}
+// ReadLooseTableFrom reads a loose table from r; name is used in messages;
+// enc, when given, is its encoding (default UTF-8).
+func ReadLooseTableFrom(name string, r io.Reader, enc ...Encoding) (*LooseTable, error) {
+	src, err := openText(name, r, 0, encodingOr(enc))
+	if err != nil {
+		return nil, err
 	}
-	peek, _ := br.Peek(br.Size())
-	if i := bytes.IndexByte(peek, '\n'); i >= 0 {
-		peek = peek[:i]
-	}
-	delim := detectDelimiter(peek)
-	if delim == 0 {
-		delim = ','
-	}
-	rr := newRecordReader(br, delim)
+	delim := src.delimiter(0)
+	rr := src.records(delim)
 	t := &LooseTable{Name: name, Delimiter: delim}
 	header, err := rr.read()
 	if err == io.EOF {

@@ -120,7 +120,7 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 // training means for missing cells. It also returns the file's other
 // columns, which are ignored.
 func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*analysis.Table, []string, error) {
-	header, err := analysis.ReadHeader(path, read.Delimiter)
+	header, err := analysis.ReadHeader(path, read)
 	if err != nil {
 		return nil, nil, err
 	}
