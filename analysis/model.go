@@ -43,9 +43,10 @@ type ModelTool struct {
 
 // ModelInput identifies the training data.
 type ModelInput struct {
-	File   string `json:"file"`
-	SHA256 string `json:"sha256"`
-	Rows   int    `json:"rows"`
+	File     string `json:"file"`
+	SHA256   string `json:"sha256"`
+	Rows     int    `json:"rows"`
+	Encoding string `json:"encoding,omitempty"` // of the training file's text
 }
 
 // ModelLimits are the control limits stored with a model: for new samples,
@@ -66,7 +67,7 @@ func NewModel(r *Result, version string) *Model {
 	m := &Model{
 		Format:      ModelFormat,
 		Tool:        ModelTool{Name: "pcqc", Version: version},
-		Input:       ModelInput{File: r.Table.File, SHA256: r.Table.SHA256, Rows: n},
+		Input:       ModelInput{File: r.Table.File, SHA256: r.Table.SHA256, Rows: n, Encoding: string(r.Table.Encoding)},
 		Variables:   r.Table.Variables,
 		Transform:   r.Prep.Transform,
 		Scaling:     r.Prep.Scaling,
