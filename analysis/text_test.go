@@ -5,6 +5,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"io"
+	"net"
 	"os"
 	"path/filepath"
 	"strings"
@@ -164,6 +165,13 @@ func TestSpecialFiles(t *testing.T) {
 			if _, err := ReadLooseTable(path); err == nil || !strings.Contains(err.Error(), "is a device") {
 				t.Errorf("ReadLooseTable %s: got %v", path, err)
 			}
+		}
+	}
+	sock := filepath.Join(dir, "s.csv")
+	if l, err := net.Listen("unix", sock); err == nil {
+		defer l.Close()
+		if _, err := ReadTable(sock, ReadOptions{}); err == nil || !strings.Contains(err.Error(), "is a socket, not a data table") {
+			t.Errorf("socket: got %v", err)
 		}
 	}
 	fifo := filepath.Join(dir, "data.csv")
