@@ -213,8 +213,9 @@ type chunk struct {
 }
 
 // parallelThreshold is the file size from which the rows are parsed by
-// several workers.
-const parallelThreshold = 8 << 20
+// several workers. It is a variable so that tests can send small files
+// down that path.
+var parallelThreshold int64 = 8 << 20
 
 // parseChunks parses the data lines of a seekable file with no quotes in
 // parallel. Each physical line L (the header is line 1, or later when blank

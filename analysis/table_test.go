@@ -207,8 +207,10 @@ func TestNumberGrammar(t *testing.T) {
 // The same bad cell gets the same message (reason, text, column) in row 5,
 // which the first pass samples to classify the columns, in row 150, which
 // only the row parser sees, and in rows 5 and 150 of a file large enough to
-// be parsed in parallel.
+// be parsed in parallel (the threshold lowered to keep the test quick).
 func TestSameTypoSameMessage(t *testing.T) {
+	defer func(v int64) { parallelThreshold = v }(parallelThreshold)
+	parallelThreshold = 16 << 10
 	// table returns the lines of a table of at least rows rows and size
 	// bytes; line i+1 is row i.
 	table := func(rows, size int) []string {
@@ -219,7 +221,7 @@ func TestSameTypoSameMessage(t *testing.T) {
 		}
 		return lines
 	}
-	small, large := table(200, 0), table(0, parallelThreshold)
+	small, large := table(200, 0), table(0, 2*int(parallelThreshold))
 	for _, typo := range []string{"0x1p3", "1_000", "1e-999", "12..5", "1'000", "abc", "inf", "NA"} {
 		t.Run(typo, func(t *testing.T) {
 			var reasons []string
