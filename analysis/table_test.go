@@ -216,13 +216,15 @@ func TestSameTypoSameMessage(t *testing.T) {
 	table := func(rows, size int) []string {
 		lines := []string{"id,a,b"}
 		for i, n := 1, 7; i <= rows || n < size; i++ {
-			lines = append(lines, fmt.Sprintf("s%d,%s,%d", i, strconv.FormatFloat(float64(i%17)/4, 'f', 2, 64), i%5))
+			lines = append(lines, fmt.Sprintf("s%04d,%s,%d", i, strconv.FormatFloat(float64(i%17)/4, 'f', 2, 64), i%5))
 			n += len(lines[i]) + 1
 		}
 		return lines
 	}
 	small, large := table(200, 0), table(0, 2*int(parallelThreshold))
-	for _, typo := range []string{"0x1p3", "1_000", "1e-999", "12..5", "1'000", "abc", "inf", "NA"} {
+	// Ids of one width put the cell at the same byte of every line, which
+	// the messages about bad bytes name.
+	for _, typo := range []string{"0x1p3", "1_000", "1e-999", "12..5", "1'000", "abc", "inf", "NA", "1\xb0", "1\x00"} {
 		t.Run(typo, func(t *testing.T) {
 			var reasons []string
 			for _, c := range []struct {
@@ -230,7 +232,7 @@ func TestSameTypoSameMessage(t *testing.T) {
 				lines []string
 			}{{5, small}, {150, small}, {5, large}, {150, large}} {
 				lines := slices.Clone(c.lines)
-				lines[c.row] = fmt.Sprintf("s%d,%s,1", c.row, typo)
+				lines[c.row] = fmt.Sprintf("s%04d,%s,1", c.row, typo)
 				path := writeTemp(t, "t.csv", strings.Join(lines, "\n")+"\n")
 				_, err := ReadTable(path, ReadOptions{})
 				var ie *InputError
