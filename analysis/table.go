@@ -154,6 +154,9 @@ func parseCell(b []byte) (float64, cellKind) {
 	ok, nonzero := scanNumber(b)
 	if !ok {
 		if isInfinityWord(b) {
+			if b[0] == '-' {
+				return math.Inf(-1), cellInfinite
+			}
 			return math.Inf(1), cellInfinite
 		}
 		return 0, cellText
