@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+	"unicode/utf8"
 )
 
 // addSeeds adds every file of the given folders as a seed.
@@ -28,9 +29,18 @@ func addSeeds(f *testing.F, globs ...string) {
 	}
 }
 
-// lineCount is the number of lines in b (a last line without its line end
-// counts).
-func lineCount(b []byte) int { return bytes.Count(b, []byte{'\n'}) + 1 }
+// lineCount is the most lines b can have (a last line without its line end
+// counts): LF and CRLF end a line, and so does a lone CR in a file read
+// with CR line ends.
+func lineCount(b []byte) int {
+	n := bytes.Count(b, []byte{'\n'}) + 1
+	for i, c := range b {
+		if c == '\r' && (i+1 == len(b) || b[i+1] != '\n') {
+			n++
+		}
+	}
+	return n
+}
 
 // checkInputError requires err to be an InputError naming the file, a line
 // within the input (or none), and a reason.
@@ -46,8 +56,15 @@ func checkInputError(t *testing.T, err error, input []byte) {
 	if ie.Line < 0 || ie.Line > lineCount(input) {
 		t.Fatalf("error names line %d of a %d-line input: %v", ie.Line, lineCount(input), err)
 	}
-	if bytes.ContainsAny([]byte(ie.Error()), "\n\r") && !bytes.ContainsAny(input, "\n\r") {
-		t.Fatalf("multi-line error: %q", ie.Error())
+	// The message reaches a terminal: it must be UTF-8 without controls.
+	msg := ie.Error()
+	if !utf8.ValidString(msg) {
+		t.Fatalf("error is not UTF-8: %q", msg)
+	}
+	for _, r := range msg {
+		if r != utf8.RuneError && mustEscape(r) {
+			t.Fatalf("error holds control character %U: %q", r, msg)
+		}
 	}
 }
 
@@ -57,7 +74,8 @@ func checkInputError(t *testing.T, err error, input []byte) {
 func FuzzReadTable(f *testing.F) {
 	addSeeds(f, "../testdata/fuzz/table/*", "../testdata/bad/*", "../testdata/datasets/*.csv")
 	f.Fuzz(func(t *testing.T, data []byte) {
-		for _, opt := range []ReadOptions{{}, {Missing: MissingMean, Decimal: ','}, {Missing: MissingDrop, Transform: TransformLog1p}} {
+		for _, opt := range []ReadOptions{{}, {Missing: MissingMean, Decimal: ','}, {Missing: MissingDrop, Transform: TransformLog1p},
+			{Encoding: EncodingLatin1, Delimiter: ';'}, {Encoding: EncodingCP1252, Missing: MissingMean}} {
 			tab, err := ReadTableFrom("fuzz.csv", bytes.NewReader(data), opt)
 			if err != nil {
 				checkInputError(t, err, data)
@@ -91,6 +109,9 @@ func FuzzReadReviewTables(f *testing.F) {
 	variables := []string{"Murder", "Assault", "UrbanPop", "Rape"}
 	ids := []string{"Alabama", "Alaska", "Arizona", "Arkansas"}
 	f.Fuzz(func(t *testing.T, data []byte) {
+		if _, err := ReadLooseTableFrom("their.csv", bytes.NewReader(data), EncodingCP1252); err != nil {
+			checkInputError(t, err, data)
+		}
 		lt, err := ReadLooseTableFrom("their.csv", bytes.NewReader(data))
 		if err != nil {
 			checkInputError(t, err, data)

@@ -1,8 +1,6 @@
 package analysis
 
 import (
-	"bufio"
-	"bytes"
 	"fmt"
 	"io"
 	"math"
@@ -25,31 +23,26 @@ type LooseTable struct {
 }
 
 // ReadLooseTable reads the named file, which must be a regular file of at
-// most TheirTable.Max bytes (see OpenRegular).
-func ReadLooseTable(path string) (*LooseTable, error) {
+// most TheirTable.Max bytes (see OpenRegular); enc, when given, is its
+// encoding (default UTF-8).
+func ReadLooseTable(path string, enc ...Encoding) (*LooseTable, error) {
 	r, err := OpenRegular(path, TheirTable)
 	if err != nil {
 		return nil, err
 	}
 	defer r.Close()
-	return ReadLooseTableFrom(path, r)
+	return ReadLooseTableFrom(path, r, enc...)
 }
 
-// ReadLooseTableFrom reads a loose table from r; name is used in messages.
-func ReadLooseTableFrom(name string, r io.Reader) (*LooseTable, error) {
-	br := bufio.NewReaderSize(r, 1<<20)
-	if _, line, reason := sniffEncoding(br); reason != "" {
-		return nil, &InputError{File: name, Line: line, Reason: reason}
+// ReadLooseTableFrom reads a loose table from r; name is used in messages;
+// enc, when given, is its encoding (default UTF-8).
+func ReadLooseTableFrom(name string, r io.Reader, enc ...Encoding) (*LooseTable, error) {
+	src, err := openText(name, r, 0, encodingOr(enc))
+	if err != nil {
+		return nil, err
 	}
-	peek, _ := br.Peek(br.Size())
-	if i := bytes.IndexByte(peek, '\n'); i >= 0 {
-		peek = peek[:i]
-	}
-	delim := detectDelimiter(peek)
-	if delim == 0 {
-		delim = ','
-	}
-	rr := newRecordReader(br, delim)
+	delim := src.delimiter(0)
+	rr := src.records(delim)
 	t := &LooseTable{Name: name, Delimiter: delim}
 	header, err := rr.read()
 	if err == io.EOF {

@@ -51,9 +51,10 @@ type ModelTool struct {
 
 // ModelInput identifies the training data.
 type ModelInput struct {
-	File   string `json:"file"`
-	SHA256 string `json:"sha256"`
-	Rows   int    `json:"rows"`
+	File     string `json:"file"`
+	SHA256   string `json:"sha256"`
+	Rows     int    `json:"rows"`
+	Encoding string `json:"encoding,omitempty"` // of the training file's text
 }
 
 // ModelLimits are the control limits stored with a model: for new samples,
@@ -74,7 +75,7 @@ func NewModel(r *Result, version string) *Model {
 	m := &Model{
 		Format:      ModelFormat,
 		Tool:        ModelTool{Name: "pcqc", Version: version},
-		Input:       ModelInput{File: r.Table.File, SHA256: r.Table.SHA256, Rows: n},
+		Input:       ModelInput{File: r.Table.File, SHA256: r.Table.SHA256, Rows: n, Encoding: string(r.Table.Encoding)},
 		Variables:   r.Table.Variables,
 		Transform:   r.Prep.Transform,
 		Scaling:     r.Prep.Scaling,
@@ -273,11 +274,15 @@ func (m *Model) checkShape() error {
 	return nil
 }
 
-// checkPreprocessing: the transform and scaling are known; means are finite;
+// checkPreprocessing: the training encoding (absent in models written
+// before it was recorded), transform and scaling are known; means are finite;
 // standard deviations and scales are finite and > 0, and the scales are
 // what the scaling makes of the standard deviations (1, sd or √sd; a range
 // cannot be checked without the data).
 func (m *Model) checkPreprocessing() error {
+	if _, ok := ParseEncoding(m.Input.Encoding); !ok && m.Input.Encoding != "" {
+		return fmt.Errorf("input encoding %s is not utf-8, latin1 or cp1252", quoteText(m.Input.Encoding))
+	}
 	if !slices.Contains(Transforms, m.Transform) {
 		return fmt.Errorf("transform %q is not one of %v", m.Transform, Transforms)
 	}

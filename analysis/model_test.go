@@ -115,6 +115,7 @@ func TestDamagedModelsAreRefused(t *testing.T) {
 		name, model, want string
 	}{
 		// Dimensions.
+		{"unknown encoding", edit(func(m *Model) { m.Input.Encoding = "ebcdic" }), `input encoding "ebcdic" is not utf-8, latin1 or cp1252`},
 		{"one variable", edit(func(m *Model) { m.Variables = m.Variables[:1] }), "1 variables; a model has at least 2"},
 		{"means short", edit(func(m *Model) { m.Means = m.Means[:4] }), "means has 4 values for 5 variables"},
 		{"sds long", edit(func(m *Model) { m.SDs = append(m.SDs, 1) }), "sds has 6 values for 5 variables"},

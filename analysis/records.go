@@ -4,16 +4,23 @@ import (
 	"bufio"
 	"bytes"
 	"errors"
+	"fmt"
 	"io"
+	"unicode"
+	"unicode/utf8"
+
+	"golang.org/x/text/encoding/charmap"
 )
 
 // recordReader splits delimited text into records of fields.
 //
 // It accepts RFC 4180 quoting (a quote inside a quoted field is doubled, and
-// a quoted field may span lines), LF and CRLF line ends, and blank lines
-// (skipped). It is lenient where spreadsheet exports need it: a quote in the
-// middle of an unquoted field is kept as a literal character, and text after
-// a closing quote is appended to the field.
+// a quoted field may span lines), LF and CRLF line ends, lone CR line ends
+// when told (cr), and blank lines (skipped). It is lenient where spreadsheet
+// exports need it: a quote in the middle of an unquoted field is kept as a
+// literal character, and text after a closing quote is appended to the
+// field. It is strict about bytes: a NUL, a byte that is not UTF-8, or a
+// character that betrays a wrong --encoding stops it with the line and field.
 //
 // Unlike encoding/csv it does not allocate per record: the fields returned by
 // read alias internal buffers and are valid only until the next call. That
@@ -21,6 +28,8 @@ import (
 type recordReader struct {
 	br    *bufio.Reader
 	delim byte
+	cr    bool     // lines end in a lone CR
+	enc   Encoding // what the text was converted from ("" for UTF-8)
 
 	line    int // physical lines consumed so far
 	recLine int // line on which the record last returned starts
@@ -30,6 +39,8 @@ type recordReader struct {
 	store  []byte   // unescaped field bytes for records with quotes
 	ends   []int    // field end offsets into store
 	fields [][]byte // the fields returned by read
+
+	badOff int // where readLine found a bad byte in the line it returned
 }
 
 // errUnterminatedQuote is returned (wrapped by the caller with a position)
@@ -40,14 +51,41 @@ func newRecordReader(br *bufio.Reader, delim byte) *recordReader {
 	return &recordReader{br: br, delim: delim}
 }
 
+// errBadText is returned by readLine with a line holding a byte that no
+// table may hold, at r.badOff; the caller, which knows where fields start,
+// turns it into a textError.
+var errBadText = errors.New("bad text")
+
+// textError is a bad byte placed in the input: line and field (1-based),
+// the field's text and the reason.
+type textError struct {
+	line, col int
+	text      string
+	reason    string
+}
+
+func (e *textError) Error() string { return e.reason }
+
 // readLine returns the next physical line without its line end. The slice is
-// valid until the next call. At the end of input it returns io.EOF.
+// valid until the next call. At the end of input it returns io.EOF; with a
+// line that holds a bad byte (see badByte) it returns the line and
+// errBadText.
 func (r *recordReader) readLine() ([]byte, error) {
-	chunk, err := r.br.ReadSlice('\n')
+	eol := byte('\n')
+	if r.cr {
+		eol = '\r'
+	}
+	chunk, err := r.br.ReadSlice(eol)
 	if err == bufio.ErrBufferFull {
 		r.long = append(r.long[:0], chunk...)
 		for err == bufio.ErrBufferFull {
-			chunk, err = r.br.ReadSlice('\n')
+			if bytes.IndexByte(chunk, 0) >= 0 {
+				// A flood of zeros (a pipe from /dev/zero) never ends its
+				// line: stop at the first NUL rather than read it all.
+				err = nil
+				break
+			}
+			chunk, err = r.br.ReadSlice(eol)
 			r.long = append(r.long, chunk...)
 		}
 		chunk = r.long
@@ -59,13 +97,149 @@ func (r *recordReader) readLine() ([]byte, error) {
 		return nil, io.EOF
 	}
 	r.line++
-	if n := len(chunk); n > 0 && chunk[n-1] == '\n' {
+	if n := len(chunk); n > 0 && chunk[n-1] == eol {
 		chunk = chunk[:n-1]
 	}
-	if n := len(chunk); n > 0 && chunk[n-1] == '\r' {
+	if r.cr {
+		// The LF of a CRLF in a file that began with lone CRs.
+		if len(chunk) > 0 && chunk[0] == '\n' {
+			chunk = chunk[1:]
+		}
+	} else if n := len(chunk); n > 0 && chunk[n-1] == '\r' {
 		chunk = chunk[:n-1]
+	}
+	if r.badOff = r.badByte(chunk); r.badOff >= 0 {
+		return chunk, errBadText
 	}
 	return chunk, nil
+}
+
+// badByte returns the offset of the first byte of line that no table may
+// hold, or -1: a NUL; a byte that is not UTF-8; after conversion from
+// Windows-1252, U+FFFD, which stands for the five bytes that encoding leaves
+// undefined; after conversion from Latin-1, a C1 control character (U+0080
+// to U+009F), which real Latin-1 text never holds but Windows-1252 text
+// (curly quotes, the euro sign) read as Latin-1 does.
+func (r *recordReader) badByte(line []byte) int {
+	if bytes.IndexByte(line, 0) < 0 && utf8.Valid(line) {
+		switch r.enc {
+		case EncodingCP1252:
+			if !bytes.Contains(line, []byte("\uFFFD")) {
+				return -1
+			}
+		case EncodingLatin1:
+			if bytes.IndexByte(line, 0xC2) < 0 {
+				return -1
+			}
+		default:
+			return -1
+		}
+	}
+	for i := 0; i < len(line); {
+		c := line[i]
+		if c == 0 {
+			return i
+		}
+		if c < utf8.RuneSelf {
+			i++
+			continue
+		}
+		ru, size := utf8.DecodeRune(line[i:])
+		switch {
+		case ru == utf8.RuneError && size == 1:
+			return i
+		case r.enc == EncodingCP1252 && ru == utf8.RuneError:
+			return i
+		case r.enc == EncodingLatin1 && ru >= 0x80 && ru <= 0x9F:
+			return i
+		}
+		i += size
+	}
+	return -1
+}
+
+// textErr describes the bad byte readLine found in line. base is the number
+// of fields of the record before the line, and inQuote says that the line
+// continues a quoted field.
+func (r *recordReader) textErr(line []byte, base int, inQuote bool) error {
+	off := r.badOff
+	idx, from, to := fieldAt(line, off, r.delim, base, inQuote)
+	e := &textError{line: r.line, col: idx + 1, text: string(line[from:to])}
+	// Each byte of Latin-1 or Windows-1252 is one character of the
+	// converted line, so counting characters gives the byte in the file.
+	at := off + 1
+	if r.enc == EncodingLatin1 || r.enc == EncodingCP1252 {
+		at = utf8.RuneCount(line[:off]) + 1
+	}
+	switch ru, _ := utf8.DecodeRune(line[off:]); {
+	case line[off] == 0:
+		e.reason = fmt.Sprintf("NUL (zero) byte at byte %d of the line; a text table cannot hold one: remove it, or export the data as CSV again:", at)
+	case r.enc == EncodingCP1252:
+		e.reason = fmt.Sprintf("byte %d of the line is one of the five bytes Windows-1252 leaves undefined (0x81, 0x8d, 0x8f, 0x90, 0x9d), so the file is not Windows-1252; save it as UTF-8 (CSV UTF-8) and try again without --encoding:", at)
+	case r.enc == EncodingLatin1:
+		e.reason = fmt.Sprintf("byte 0x%02x at byte %d of the line is a control character in Latin-1, which suggests Windows-1252 text (curly quotes, dashes, the euro sign); give --encoding cp1252:", ru, at)
+	default:
+		// Name the character the byte is in the likely encodings, so that
+		// the user can tell which one the file is in.
+		b := line[off]
+		seen := ""
+		switch c := charmap.Windows1252.DecodeByte(b); {
+		case c == utf8.RuneError || !unicode.IsPrint(c):
+		case b >= 0xA0:
+			seen = fmt.Sprintf(" (%c in Latin-1 and Windows-1252)", c)
+		default:
+			seen = fmt.Sprintf(" (%c in Windows-1252)", c)
+		}
+		e.reason = fmt.Sprintf("not UTF-8: byte %d of the line is \\x%02x%s; save the file as UTF-8 (CSV UTF-8), or give --encoding latin1 or --encoding cp1252 for what it is:", at, b, seen)
+	}
+	return e
+}
+
+// fieldAt returns the index, counted from base, of the field of line that
+// holds byte off, and that field's extent in line. It follows readQuoted's
+// rules; inQuote says that the line continues an open quoted field.
+func fieldAt(line []byte, off int, delim byte, base int, inQuote bool) (idx, start, end int) {
+	const (
+		fieldStart = iota
+		unquoted
+		quoted
+		afterQuote
+	)
+	state := fieldStart
+	if inQuote {
+		state = quoted
+	}
+	idx, end = base, len(line)
+	for i := 0; i < len(line); i++ {
+		c := line[i]
+		if state != quoted && c == delim {
+			if i >= off {
+				end = i
+				break
+			}
+			idx++
+			start = i + 1
+			state = fieldStart
+			continue
+		}
+		switch state {
+		case fieldStart:
+			if c == '"' {
+				state = quoted
+			} else if c != ' ' {
+				state = unquoted
+			}
+		case quoted:
+			if c == '"' {
+				if i+1 < len(line) && line[i+1] == '"' {
+					i++
+				} else {
+					state = afterQuote
+				}
+			}
+		}
+	}
+	return idx, start, end
 }
 
 // read returns the fields of the next record, skipping blank lines. It
@@ -75,6 +249,10 @@ func (r *recordReader) read() ([][]byte, error) {
 	var line []byte
 	for {
 		l, err := r.readLine()
+		if err == errBadText {
+			r.recLine = r.line
+			return nil, r.textErr(l, 0, false)
+		}
 		if err != nil {
 			return nil, err
 		}
@@ -131,6 +309,9 @@ func (r *recordReader) readQuoted(line []byte) ([][]byte, error) {
 					next, err := r.readLine()
 					if err == io.EOF {
 						return nil, errUnterminatedQuote
+					}
+					if err == errBadText {
+						return nil, r.textErr(next, len(r.ends), true)
 					}
 					if err != nil {
 						return nil, err

@@ -21,6 +21,7 @@ type rowParser struct {
 	missing  MissingPolicy
 	tr       Transform
 	decimal  byte // '.' or ','
+	trailing bool // the header ends with a delimiter (see dropTrailing)
 }
 
 // rowSink holds the parsed rows. Row i occupies values[i*p:(i+1)*p]; a row
@@ -102,9 +103,18 @@ func (rp *rowParser) cell(raw []byte, s *rowSink) (float64, cellKind) {
 }
 
 // textHint suggests what may be wrong with a cell that is not a number.
+// It depends on the cell alone, so that the same cell gets the same message
+// wherever it is in the file.
 func (rp *rowParser) textHint(raw []byte) string {
 	t := strings.TrimSpace(string(raw))
+	unsigned := strings.TrimLeft(t, "+-")
 	switch {
+	case len(unsigned) > 2 && unsigned[0] == '0' && (unsigned[1] == 'x' || unsigned[1] == 'X'):
+		return "cannot read as a number (hexadecimal notation; write the number in decimal):"
+	case strings.Contains(t, "_"):
+		if _, kind := parseCell([]byte(strings.ReplaceAll(t, "_", ""))); kind == cellNumber {
+			return "cannot read as a number (digits grouped with _; write numbers without digit grouping):"
+		}
 	case rp.decimal == '.' && strings.Count(t, ",") == 1 && !strings.Contains(t, "."):
 		if _, kind := parseCell([]byte(strings.Replace(t, ",", ".", 1))); kind == cellNumber {
 			return "cannot read as a number (a decimal comma? use --decimal comma):"
@@ -140,7 +150,13 @@ func looksGrouped(t string) bool {
 // it is assigned later.
 func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) error {
 	if len(rec) != len(rp.names) {
-		return checkWidth(rp.file, line, rec, rp.names)
+		var err error
+		if rec, err = dropTrailing(rp.file, line, rec, rp.names, rp.trailing); err != nil {
+			return err
+		}
+		if err := checkWidth(rp.file, line, rec, rp.names); err != nil {
+			return err
+		}
 	}
 	row := s.values[at*s.p : (at+1)*s.p]
 	for k, j := range rp.varCols {
@@ -151,6 +167,8 @@ func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) er
 			return rp.fail(line, j+1, string(raw), rp.textHint(raw))
 		case cellInfinite:
 			return rp.fail(line, j+1, string(raw), "infinite value; pcqc needs finite numbers:")
+		case cellUnderflow:
+			return rp.fail(line, j+1, string(raw), "number too small for double precision: it would be read as 0 (underflow; the smallest is about 4.9e-324); write 0 if zero is meant:")
 		case cellMissing:
 			if rp.missing == MissingFail {
 				return rp.fail(line, j+1, string(raw), "missing value (use --missing drop or --missing mean to handle missing cells):")
@@ -195,8 +213,9 @@ type chunk struct {
 }
 
 // parallelThreshold is the file size from which the rows are parsed by
-// several workers.
-const parallelThreshold = 8 << 20
+// several workers. It is a variable so that tests can send small files
+// down that path.
+var parallelThreshold int64 = 8 << 20
 
 // parseChunks parses the data lines of a seekable file with no quotes in
 // parallel. Each physical line L (the header is line 1, or later when blank
@@ -237,7 +256,7 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 						break
 					}
 					if err != nil {
-						errs[i] = readError(rp.file, rr, err)
+						errs[i] = namedReadError(rp.file, rr, err, rp.names)
 						break
 					}
 					if err := rp.parse(rec, rr.recLine, 0, rr.recLine-headerLine-1, local); err != nil {

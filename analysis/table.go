@@ -1,7 +1,6 @@
 package analysis
 
 import (
-	"bufio"
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
@@ -15,6 +14,7 @@ import (
 	"strings"
 	"unsafe"
 
+	"golang.org/x/text/unicode/norm"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -55,6 +55,8 @@ type ReadOptions struct {
 	// (for semicolon- or tab-separated exports of spreadsheets set to a
 	// language that writes 3,14).
 	Decimal byte
+	// Encoding is the text encoding of the file; empty means UTF-8.
+	Encoding Encoding
 
 	// For new samples scored against a saved model (apply): MinRows is the
 	// fewest rows accepted (default 3, which a PCA needs); KeepConstant
@@ -79,6 +81,7 @@ type Table struct {
 	File      string // file name as given by the user
 	SHA256    string // of the bytes read
 	Delimiter byte
+	Encoding  Encoding // the text encoding the file was read in
 
 	IDColumn    string   // "" when ids are row numbers
 	IDs         []string // one per row used
@@ -138,42 +141,99 @@ const (
 	cellNumber cellKind = iota
 	cellMissing
 	cellInfinite
+	cellUnderflow // a nonzero number that rounds to 0
 	cellText
 )
 
-// parseCell reads one variable cell.
+// parseCell reads one variable cell. A number follows a strict grammar (see
+// scanNumber): strconv.ParseFloat alone would also read Go's 0x1p3 and
+// 1_000, which no spreadsheet writes and which are far likelier typos or
+// foreign notations than numbers. The words inf and infinity (any case,
+// either sign) are infinite; the missing spellings are missing.
 func parseCell(b []byte) (float64, cellKind) {
 	b = bytes.TrimSpace(b)
 	if isMissingToken(b) {
 		return 0, cellMissing
 	}
-	v, err := strconv.ParseFloat(unsafeString(b), 64)
-	if err != nil {
-		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange && math.IsInf(v, 0) {
-			return v, cellInfinite
+	ok, nonzero := scanNumber(b)
+	if !ok {
+		if isInfinityWord(b) {
+			if b[0] == '-' {
+				return math.Inf(-1), cellInfinite
+			}
+			return math.Inf(1), cellInfinite
 		}
 		return 0, cellText
 	}
-	if math.IsNaN(v) {
-		return 0, cellMissing
-	}
-	if math.IsInf(v, 0) {
-		return v, cellInfinite
+	v, err := strconv.ParseFloat(unsafeString(b), 64)
+	switch {
+	case math.IsInf(v, 0):
+		return v, cellInfinite // beyond about 1.8e308
+	case err != nil:
+		return 0, cellText
+	case v == 0 && nonzero:
+		return 0, cellUnderflow // below about 2.5e-324
 	}
 	return v, cellNumber
 }
 
+// scanNumber reports whether b is a number of the grammar
+//
+//	[+-] (digits [. [digits]] | . digits) [(e|E) [+-] digits]
+//
+// and whether its digits before the exponent hold one that is not zero.
+func scanNumber(b []byte) (ok, nonzero bool) {
+	i := 0
+	if i < len(b) && (b[i] == '+' || b[i] == '-') {
+		i++
+	}
+	digits := 0
+	for ; i < len(b) && b[i] >= '0' && b[i] <= '9'; i++ {
+		digits++
+		nonzero = nonzero || b[i] != '0'
+	}
+	if i < len(b) && b[i] == '.' {
+		for i++; i < len(b) && b[i] >= '0' && b[i] <= '9'; i++ {
+			digits++
+			nonzero = nonzero || b[i] != '0'
+		}
+	}
+	if digits == 0 {
+		return false, false
+	}
+	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
+		i++
+		if i < len(b) && (b[i] == '+' || b[i] == '-') {
+			i++
+		}
+		exp := 0
+		for ; i < len(b) && b[i] >= '0' && b[i] <= '9'; i++ {
+			exp++
+		}
+		if exp == 0 {
+			return false, false
+		}
+	}
+	return i == len(b), nonzero
+}
+
+// isInfinityWord reports whether b is inf or infinity, in any case, with an
+// optional sign.
+func isInfinityWord(b []byte) bool {
+	if len(b) > 0 && (b[0] == '+' || b[0] == '-') {
+		b = b[1:]
+	}
+	return strings.EqualFold(unsafeString(b), "inf") || strings.EqualFold(unsafeString(b), "infinity")
+}
+
 // ReadTable reads and validates the table in the named file.
 func ReadTable(path string, opt ReadOptions) (*Table, error) {
-	f, err := os.Open(path)
+	f, err := openData(path)
 	if err != nil {
-		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+		return nil, err
 	}
 	defer f.Close()
 	st, err := f.Stat()
-	if err == nil && st.IsDir() {
-		return nil, &InputError{File: path, Reason: "is a directory, not a data table"}
-	}
 	if err == nil && st.Mode().IsRegular() {
 		// A first, fast pass hashes the bytes and counts the lines, so that
 		// the matrix is allocated once at its final size instead of growing
@@ -189,45 +249,6 @@ func ReadTable(path string, opt ReadOptions) (*Table, error) {
 		return readTable(path, f, opt, &scan)
 	}
 	return ReadTableFrom(path, f, opt)
-}
-
-// sniffEncoding looks at the start of a text table: it skips a UTF-8 byte
-// order mark (returning its length) and, when the bytes are UTF-16 or binary,
-// returns the line to blame and the reason to refuse them.
-func sniffEncoding(br *bufio.Reader) (bom, line int, reason string) {
-	if head, _ := br.Peek(3); len(head) >= 2 {
-		switch {
-		case head[0] == 0xFF && head[1] == 0xFE, head[0] == 0xFE && head[1] == 0xFF:
-			return 0, 1, "the file is UTF-16 encoded; save it as UTF-8 (CSV UTF-8) and try again"
-		case len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF:
-			br.Discard(3)
-			bom = 3
-		}
-	}
-	if head, _ := br.Peek(4096); bytes.IndexByte(head, 0) >= 0 {
-		if looksUTF16(head) {
-			return bom, 1, "the file looks UTF-16 encoded (every other byte is zero); save it as UTF-8 (CSV UTF-8) and try again"
-		}
-		return bom, 0, "the file holds NUL bytes: it looks like a binary file (a spreadsheet workbook, an image, a compressed archive), not a text table; export it as CSV"
-	}
-	return bom, 0, ""
-}
-
-// looksUTF16 reports whether the bytes look like UTF-16 text without a byte
-// order mark: zeros in most even or most odd positions.
-func looksUTF16(b []byte) bool {
-	var even, odd int
-	for i, c := range b {
-		if c == 0 {
-			if i%2 == 0 {
-				even++
-			} else {
-				odd++
-			}
-		}
-	}
-	half := len(b) / 2
-	return half > 0 && (even > half*9/10 || odd > half*9/10)
 }
 
 // lineEnd returns the offset just after the line-th line end at or after
@@ -321,32 +342,24 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	if opt.Decimal == 0 {
 		opt.Decimal = '.'
 	}
+	if opt.Encoding == "" {
+		opt.Encoding = EncodingUTF8
+	}
 	hasher := sha256.New()
 	if scan == nil {
 		r = io.TeeReader(r, hasher)
 	}
-	br := bufio.NewReaderSize(r, 1<<20)
-	bom, line, reason := sniffEncoding(br)
-	if reason != "" {
-		return nil, fail(line, 0, "", "", reason)
+	src, err := openText(name, r, opt.Delimiter, opt.Encoding)
+	if err != nil {
+		return nil, err
 	}
-
-	delim := opt.Delimiter
-	if delim == 0 {
-		peek, _ := br.Peek(br.Size())
-		if i := bytes.IndexByte(peek, '\n'); i >= 0 {
-			peek = peek[:i]
-		}
-		delim = detectDelimiter(peek)
-		if delim == 0 {
-			delim = ','
-		}
-	}
+	br := src.br
+	delim := src.delimiter(opt.Delimiter)
 	if opt.Decimal == ',' && delim == ',' {
 		return nil, fail(1, 0, "", "", "--decimal comma needs another field separator than the comma (semicolons or tabs)")
 	}
 
-	rr := newRecordReader(br, delim)
+	rr := src.records(delim)
 	header, err := rr.read()
 	if err == io.EOF {
 		return nil, fail(0, 0, "", "", "empty file: a header row and at least 3 data rows are needed")
@@ -354,18 +367,22 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	if err != nil {
 		return nil, readError(name, rr, err)
 	}
-	names := make([]string, len(header))
-	seen := make(map[string]int, len(header))
-	for j, h := range header {
-		n := strings.TrimSpace(string(h))
-		if n == "" {
-			n = fmt.Sprintf("column_%d", j+1)
+	names, trailing := headerNames(header)
+	// Names are compared in Unicode normal form C, so that a name typed on
+	// one system and the same name saved by another (macOS file systems and
+	// some exports write é as e plus a combining accent) are one name; the
+	// names are kept as written.
+	seen := make(map[string]int, len(names))
+	for j, n := range names {
+		key := norm.NFC.String(n)
+		if k, dup := seen[key]; dup {
+			reason := fmt.Sprintf("duplicate column name (also column %d):", k+1)
+			if names[k] != n {
+				reason = fmt.Sprintf("duplicate column name (also column %d, the same name in another Unicode normal form):", k+1)
+			}
+			return nil, fail(rr.recLine, j+1, "", n, reason)
 		}
-		if k, dup := seen[n]; dup {
-			return nil, fail(rr.recLine, j+1, "", n, fmt.Sprintf("duplicate column name (also column %d):", k+1))
-		}
-		seen[n] = j
-		names[j] = n
+		seen[key] = j
 	}
 	headerLine := rr.recLine
 	if len(names) < 2 {
@@ -373,7 +390,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	}
 
 	lookup := func(flag, col string) (int, error) {
-		j, ok := seen[col]
+		j, ok := seen[norm.NFC.String(col)]
 		if !ok {
 			return -1, fail(headerLine, 0, "", col, fmt.Sprintf("unknown column in %s (the columns are %s):", flag, listNames(names, 12)))
 		}
@@ -424,7 +441,10 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 			break
 		}
 		if err != nil {
-			return nil, readError(name, rr, err)
+			return nil, namedReadError(name, rr, err, names)
+		}
+		if rec, err = dropTrailing(name, rr.recLine, rec, names, trailing); err != nil {
+			return nil, err
 		}
 		if err := checkWidth(name, rr.recLine, rec, names); err != nil {
 			return nil, err
@@ -441,13 +461,30 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	}
 	probe := &rowParser{decimal: opt.Decimal}
 	scratch := &rowSink{}
+	// firstText returns the first text cell of column j of the sample (its
+	// row, or -1) when the column reads as text: it has text cells and no
+	// more numbers than text. A column of numbers with a stray typo is not
+	// text: its bad cell is reported by the row parser, with the message
+	// the same cell would get in row 5, in row 150, or in a large file
+	// parsed in parallel.
 	firstText := func(j int) (int, string) {
+		first, texts, numbers := -1, 0, 0
 		for i, row := range sample {
-			if _, kind := probe.cell([]byte(row[j]), scratch); kind == cellText {
-				return i, row[j]
+			switch _, kind := probe.cell([]byte(row[j]), scratch); kind {
+			case cellText:
+				texts++
+				if first < 0 {
+					first = i
+				}
+			case cellMissing:
+			default:
+				numbers++
 			}
 		}
-		return -1, ""
+		if texts == 0 || numbers > texts {
+			return -1, ""
+		}
+		return first, sample[first][j]
 	}
 	explicitVars := len(opt.Columns) > 0
 	if opt.IDColumn == "" && groupCol != 0 && !chosen[0] && !dropped[0] {
@@ -495,12 +532,13 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 
 	p := len(varCols)
 	rp := &rowParser{file: name, names: names, varCols: varCols, idCol: idCol, groupCol: groupCol,
-		missing: opt.Missing, tr: opt.Transform, decimal: opt.Decimal}
+		missing: opt.Missing, tr: opt.Transform, decimal: opt.Decimal, trailing: trailing}
 	var sink *rowSink
-	if scan != nil && !scan.quotes && scan.size >= parallelThreshold && opt.Delimiter != '"' {
-		// Large file without quotes: parse line ranges in parallel, each
-		// line into its own slot.
-		dataStart, err := lineEnd(scan.file, int64(bom), headerLine)
+	if scan != nil && !scan.quotes && scan.size >= parallelThreshold && opt.Delimiter != '"' && !src.cr && src.enc == EncodingUTF8 {
+		// Large UTF-8 file without quotes and with LF line ends: parse line
+		// ranges of the file in parallel, each line into its own slot.
+		// Converted text and CR line ends are read by the sequential path.
+		dataStart, err := lineEnd(scan.file, int64(src.bom), headerLine)
 		if err != nil {
 			return nil, fail(0, 0, "", "", "read error: "+err.Error())
 		}
@@ -536,7 +574,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 				break
 			}
 			if err != nil {
-				return nil, readError(name, rr, err)
+				return nil, namedReadError(name, rr, err, names)
 			}
 			sink.ensure(n)
 			if err := rp.parse(rec, rr.recLine, n+1, n, sink); err != nil {
@@ -565,7 +603,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		File:         name,
 		SHA256:       hash,
 		Delimiter:    delim,
-		GroupColumn:  opt.GroupColumn,
+		Encoding:     opt.Encoding,
 		MissingCells: nMissing,
 		MissingIDs:   missingIDs,
 		RowsRead:     rowsRead,
@@ -574,6 +612,9 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	}
 	if idCol >= 0 {
 		t.IDColumn = names[idCol]
+	}
+	if groupCol >= 0 {
+		t.GroupColumn = names[groupCol] // as written in the file
 	}
 
 	// Missing values: drop rows or impute column means.
@@ -721,9 +762,45 @@ func isConstant(lo, hi float64) bool {
 // epsilon is the float64 machine epsilon (2⁻⁵²).
 const epsilon = 0x1p-52
 
+// headerNames names the columns of a header record: trimmed, and
+// column_N for an empty name. When the header ends with a delimiter (an
+// empty last name after at least one other), that empty column is left out
+// and trailing is true: spreadsheets and some exporters end every line with
+// the delimiter.
+func headerNames(header [][]byte) (names []string, trailing bool) {
+	if n := len(header); n >= 2 && len(bytes.TrimSpace(header[n-1])) == 0 {
+		header, trailing = header[:n-1], true
+	}
+	names = make([]string, len(header))
+	for j, h := range header {
+		if names[j] = strings.TrimSpace(string(h)); names[j] == "" {
+			names[j] = fmt.Sprintf("column_%d", j+1)
+		}
+	}
+	return names, trailing
+}
+
+// dropTrailing removes the empty last field of a record whose header ended
+// with a delimiter, and refuses a value there: it has no column name, and
+// leaving it out silently would lose it.
+func dropTrailing(name string, line int, rec [][]byte, names []string, trailing bool) ([][]byte, error) {
+	if !trailing || len(rec) != len(names)+1 {
+		return rec, nil
+	}
+	if v := rec[len(names)]; len(bytes.TrimSpace(v)) > 0 {
+		return nil, &InputError{File: name, Line: line, Column: len(names) + 1, Text: string(v),
+			Reason: "value in the last column, which has no name (the header line ends with a delimiter); name the column in the header, or remove the value:"}
+	}
+	return rec[:len(names)], nil
+}
+
 func checkWidth(name string, line int, rec [][]byte, names []string) error {
 	if len(rec) == len(names) {
 		return nil
+	}
+	if len(rec) == len(names)+1 && len(bytes.TrimSpace(rec[len(names)])) == 0 {
+		return &InputError{File: name, Line: line, Column: len(names) + 1,
+			Reason: fmt.Sprintf("ragged row: %d fields but the header has %d (the line ends with a delimiter, the header line does not)", len(rec), len(names))}
 	}
 	if len(rec) > len(names) {
 		return &InputError{File: name, Line: line, Column: len(names) + 1, Text: string(rec[len(names)]),
@@ -734,10 +811,23 @@ func checkWidth(name string, line int, rec [][]byte, names []string) error {
 }
 
 func readError(name string, rr *recordReader, err error) error {
+	if te, ok := err.(*textError); ok {
+		return &InputError{File: name, Line: te.line, Column: te.col, Text: te.text, Reason: te.reason}
+	}
 	if err == errUnterminatedQuote {
 		return &InputError{File: name, Line: rr.recLine, Reason: err.Error()}
 	}
 	return &InputError{File: name, Line: rr.line, Reason: "read error: " + err.Error()}
+}
+
+// namedReadError is readError for a record under a known header: a bad byte
+// in a data row is named by its column, as a bad number would be.
+func namedReadError(name string, rr *recordReader, err error, names []string) error {
+	e := readError(name, rr, err)
+	if ie, ok := e.(*InputError); ok && ie.Column > 0 && ie.Column <= len(names) {
+		ie.Name = names[ie.Column-1]
+	}
+	return e
 }
 
 // listNames joins names for a message, naming at most max of them.
@@ -793,35 +883,26 @@ func TableFromMatrix(name string, x *mat.Dense, variables, ids []string) *Table 
 }
 
 // ReadHeader returns the column names of a table file, as ReadTable would
-// name them, so that callers can choose columns before reading.
-func ReadHeader(path string, delimiter byte) ([]string, error) {
-	f, err := os.Open(path)
+// name them, so that callers can choose columns before reading. It uses the
+// Delimiter and Encoding of opt.
+func ReadHeader(path string, opt ReadOptions) ([]string, error) {
+	f, err := openData(path)
 	if err != nil {
-		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
+		return nil, err
 	}
 	defer f.Close()
-	br := bufio.NewReaderSize(f, 1<<20)
-	if head, _ := br.Peek(3); len(head) == 3 && head[0] == 0xEF && head[1] == 0xBB && head[2] == 0xBF {
-		br.Discard(3)
-	}
-	if delimiter == 0 {
-		peek, _ := br.Peek(br.Size())
-		if i := bytes.IndexByte(peek, '\n'); i >= 0 {
-			peek = peek[:i]
-		}
-		if delimiter = detectDelimiter(peek); delimiter == 0 {
-			delimiter = ','
-		}
-	}
-	header, err := newRecordReader(br, delimiter).read()
+	src, err := openText(path, f, opt.Delimiter, opt.Encoding)
 	if err != nil {
-		return nil, &InputError{File: path, Reason: "cannot read the header"}
+		return nil, err
 	}
-	names := make([]string, len(header))
-	for j, h := range header {
-		if names[j] = strings.TrimSpace(string(h)); names[j] == "" {
-			names[j] = fmt.Sprintf("column_%d", j+1)
-		}
+	rr := src.records(src.delimiter(opt.Delimiter))
+	header, err := rr.read()
+	if err == io.EOF {
+		return nil, &InputError{File: path, Reason: "empty file: a header row and at least 3 data rows are needed"}
 	}
+	if err != nil {
+		return nil, readError(path, rr, err)
+	}
+	names, _ := headerNames(header)
 	return names, nil
 }

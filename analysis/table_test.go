@@ -2,6 +2,9 @@ package analysis
 
 import (
 	"errors"
+	"fmt"
+	"slices"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -146,5 +149,125 @@ func TestHashIsOfBytesRead(t *testing.T) {
 	const want = "9accaf7069e80f1e713109d1ebab444300c17a4f1b5d9213686b12f09ae8bf00"
 	if tab.SHA256 != want {
 		t.Errorf("sha256 %s, want %s", tab.SHA256, want)
+	}
+}
+
+// Numbers follow a strict grammar; what ParseFloat alone would also read
+// (Go's hexadecimal floats and digit underscores) is text, and a nonzero
+// number that rounds to 0 is refused. The limits are IEEE 754 binary64's:
+// the largest finite value is about 1.8e308, the smallest subnormal
+// 4.9e-324, and below half of it a value rounds to 0 (from memory).
+func TestNumberGrammar(t *testing.T) {
+	cases := []struct {
+		cell string
+		kind cellKind
+		v    float64
+	}{
+		{"8", cellNumber, 8},
+		{" -1.5e+3 ", cellNumber, -1500},
+		{"+.5", cellNumber, 0.5},
+		{"5.", cellNumber, 5},
+		{"1E-2", cellNumber, 0.01},
+		{"-0", cellNumber, 0},
+		{"0e-999", cellNumber, 0},
+		{"0.000e5", cellNumber, 0},
+		{"5e-324", cellNumber, 5e-324},
+		{"3e-324", cellNumber, 5e-324},
+		{"2e-324", cellUnderflow, 0},
+		{"1e-999", cellUnderflow, 0},
+		{"-0.001e-330", cellUnderflow, 0},
+		{"1e999", cellInfinite, 0},
+		{"inf", cellInfinite, 0},
+		{"-Infinity", cellInfinite, 0},
+		{"+INF", cellInfinite, 0},
+		{"NaN", cellMissing, 0},
+		{"n/a", cellMissing, 0},
+		{"0x1p3", cellText, 0},
+		{"0x10", cellText, 0},
+		{"1_000", cellText, 0},
+		{"1e", cellText, 0},
+		{"e5", cellText, 0},
+		{".", cellText, 0},
+		{"1.2.3", cellText, 0},
+		{"--1", cellText, 0},
+		{"1e+", cellText, 0},
+		{"+nan", cellText, 0},
+		{"infinit", cellText, 0},
+		{"1 000", cellText, 0},
+		{"١٢", cellText, 0}, // Arabic-Indic digits
+	}
+	for _, c := range cases {
+		v, kind := parseCell([]byte(c.cell))
+		if kind != c.kind || kind == cellNumber && v != c.v {
+			t.Errorf("%q: %v kind %d, want %v kind %d", c.cell, v, kind, c.v, c.kind)
+		}
+	}
+}
+
+// The same bad cell gets the same message (reason, text, column) in row 5,
+// which the first pass samples to classify the columns, in row 150, which
+// only the row parser sees, and in rows 5 and 150 of a file large enough to
+// be parsed in parallel (the threshold lowered to keep the test quick).
+func TestSameTypoSameMessage(t *testing.T) {
+	defer func(v int64) { parallelThreshold = v }(parallelThreshold)
+	parallelThreshold = 16 << 10
+	// table returns the lines of a table of at least rows rows and size
+	// bytes; line i+1 is row i.
+	table := func(rows, size int) []string {
+		lines := []string{"id,a,b"}
+		for i, n := 1, 7; i <= rows || n < size; i++ {
+			lines = append(lines, fmt.Sprintf("s%04d,%s,%d", i, strconv.FormatFloat(float64(i%17)/4, 'f', 2, 64), i%5))
+			n += len(lines[i]) + 1
+		}
+		return lines
+	}
+	small, large := table(200, 0), table(0, 2*int(parallelThreshold))
+	// Ids of one width put the cell at the same byte of every line, which
+	// the messages about bad bytes name.
+	for _, typo := range []string{"0x1p3", "1_000", "1e-999", "12..5", "1'000", "abc", "inf", "NA", "1\xb0", "1\x00"} {
+		t.Run(typo, func(t *testing.T) {
+			var reasons []string
+			for _, c := range []struct {
+				row   int
+				lines []string
+			}{{5, small}, {150, small}, {5, large}, {150, large}} {
+				lines := slices.Clone(c.lines)
+				lines[c.row] = fmt.Sprintf("s%04d,%s,1", c.row, typo)
+				path := writeTemp(t, "t.csv", strings.Join(lines, "\n")+"\n")
+				_, err := ReadTable(path, ReadOptions{})
+				var ie *InputError
+				if !errors.As(err, &ie) {
+					t.Fatalf("row %d of %d: got %v", c.row, len(lines), err)
+				}
+				if ie.Line != c.row+1 || ie.Column != 2 || ie.Name != "a" || ie.Text != typo {
+					t.Errorf("row %d of %d: at %d:%d (%s) %q", c.row, len(lines), ie.Line, ie.Column, ie.Name, ie.Text)
+				}
+				reasons = append(reasons, ie.Reason)
+			}
+			for _, r := range reasons[1:] {
+				if r != reasons[0] {
+					t.Errorf("messages differ: %q", reasons)
+					break
+				}
+			}
+		})
+	}
+}
+
+// A column is text, and gets the message about text columns, only when its
+// sampled cells are mostly text; the first column is the id column on the
+// same condition.
+func TestTextColumnsByMajority(t *testing.T) {
+	e := readErr(t, "id,a,b\nx,1,2\ny,u,5\nz,v,4\n", ReadOptions{})
+	if e.Line != 3 || e.Column != 2 || !strings.Contains(e.Reason, "column is not numeric") {
+		t.Errorf("text column: %v", e)
+	}
+	e = readErr(t, "a,b,c\n1,2,3\n4,5,6\nx7,8,9\n10,11,12\n", ReadOptions{})
+	if e.Line != 4 || e.Column != 1 || !strings.Contains(e.Reason, "cannot read as a number") {
+		t.Errorf("a typo in a numeric first column must not make it the id column: %v", e)
+	}
+	tab := read(t, "a,b,c\nx1,2,3\nx4,5,7\n7,8,8\n", ReadOptions{})
+	if tab.IDColumn != "a" {
+		t.Errorf("mostly text first column: id column %q", tab.IDColumn)
 	}
 }

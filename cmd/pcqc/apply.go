@@ -29,12 +29,14 @@ The variables are found by name; columns the model does not know are
 ignored. The transform, scaling and components come from the model, so
 --transform, --scale, --components, --columns and --drop are refused, as are
 --bootstrap and --permutations (apply resamples nothing). With
---missing mean, missing cells get the training means.
+--missing mean, missing cells get the training means. NEW_DATA is read in
+the training data's encoding unless --encoding is given.
 
 The output folder defaults to <NEW_DATA name>-apply.
 
 Input, output and report flags as for run:
   --id COL, --group COL, --missing fail|drop|mean, --delim D, --decimal MARK,
+  --encoding ENC,
   --out DIR, --force, --format LIST, --title TEXT, --author TEXT,
   --date YYYY-MM-DD, --fail-on LEVEL, --quiet
 `,
@@ -71,6 +73,11 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	model, err := analysis.LoadModel(filepath.Join(auditDir, "model.json"))
 	if err != nil {
 		return 0, err
+	}
+	// New batches usually come from where the training data came from, so
+	// they are read in the training file's encoding unless told otherwise.
+	if enc, ok := analysis.ParseEncoding(model.Input.Encoding); ok && !f.set["encoding"] {
+		read.Encoding = enc
 	}
 	training, err := analysis.ReadTrainingScores(filepath.Join(auditDir, "scores.csv"), model)
 	if err != nil {
@@ -125,7 +132,7 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 // training means for missing cells. It also returns the file's other
 // columns, which are ignored.
 func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*analysis.Table, []string, error) {
-	header, err := analysis.ReadHeader(path, read.Delimiter)
+	header, err := analysis.ReadHeader(path, read)
 	if err != nil {
 		return nil, nil, err
 	}

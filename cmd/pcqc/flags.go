@@ -28,6 +28,7 @@ type auditFlags struct {
 	missing      string
 	delim        string
 	decimal      string
+	encoding     string
 	transform    string
 	scale        string
 	components   string
@@ -55,6 +56,7 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.missing, "missing", string(analysis.MissingFail), "")
 	fs.StringVar(&f.delim, "delim", "auto", "")
 	fs.StringVar(&f.decimal, "decimal", "point", "")
+	fs.StringVar(&f.encoding, "encoding", string(analysis.EncodingUTF8), "")
 	fs.StringVar(&f.transform, "transform", string(analysis.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
@@ -85,6 +87,11 @@ const auditFlagHelp = `Input:
   --delim D           auto | , | ; | tab (default auto: detected from the header)
   --decimal MARK      point | comma (default point); comma reads 3,14 in
                       semicolon- or tab-separated files
+  --encoding ENC      utf-8 | latin1 | cp1252 (default utf-8): the text
+                      encoding of the data (and of review's tables); latin1
+                      and cp1252 (Windows-1252) are converted to UTF-8 as
+                      they are read. Text that is not UTF-8 is refused
+                      without it
 
 Preprocessing (centring is always done):
   --transform T       none | log | log10 | log1p (default none)
@@ -173,6 +180,11 @@ func (f *auditFlags) readOptions() (analysis.ReadOptions, error) {
 	default:
 		return opt, usagef("invalid --decimal %q: use point or comma", f.decimal)
 	}
+	enc, ok := analysis.ParseEncoding(f.encoding)
+	if !ok {
+		return opt, usagef("invalid --encoding %q: use utf-8, latin1 or cp1252", f.encoding)
+	}
+	opt.Encoding = enc
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
 	if opt.Missing, err = oneOf("missing", f.missing, []analysis.MissingPolicy{analysis.MissingFail, analysis.MissingDrop, analysis.MissingMean}); err != nil {
@@ -273,6 +285,7 @@ func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) rep
 		{Name: "delim", Value: delim},
 		{Name: "delim_used", Value: string(t.Delimiter)},
 		{Name: "decimal", Value: f.decimal},
+		{Name: "encoding", Value: string(read.Encoding)},
 		{Name: "transform", Value: string(read.Transform)},
 		{Name: "scale", Value: f.scale},
 		{Name: "center", Value: true},

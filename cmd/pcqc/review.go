@@ -75,7 +75,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
-	lt, err := analysis.ReadLooseTable(loadingsPath)
+	lt, err := analysis.ReadLooseTable(loadingsPath, read.Encoding)
 	if err != nil {
 		return 0, err
 	}
@@ -87,7 +87,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	_, k := loadings.V.Dims()
 	var scores *analysis.TheirScores
 	if scoresPath != "" {
-		st, err := analysis.ReadLooseTable(scoresPath)
+		st, err := analysis.ReadLooseTable(scoresPath, read.Encoding)
 		if err != nil {
 			return 0, err
 		}
@@ -98,7 +98,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	var values []float64
 	var hint string
 	if variancePath != "" {
-		vt, err := analysis.ReadLooseTable(variancePath)
+		vt, err := analysis.ReadLooseTable(variancePath, read.Encoding)
 		if err != nil {
 			return 0, err
 		}
