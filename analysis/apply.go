@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"fmt"
+	"golang.org/x/text/unicode/norm"
 	"math"
 	"slices"
 	"strconv"
@@ -57,16 +58,22 @@ type Contribution struct {
 // contributions are finite; the same bound applies to the training data.
 const MaxPreprocessed = 1e100
 
+// ColumnKey is the form in which column names are compared: Unicode NFC,
+// so that a name typed with a precomposed "ä" and one written as "a" plus a
+// combining diaeresis (as some systems save file names and headers) are one
+// name.
+func ColumnKey(name string) string { return norm.NFC.String(name) }
+
 // modelColumns returns, for each model variable, its column in t, or −1
 // when t lacks it.
 func modelColumns(m *Model, t *Table) []int {
 	have := map[string]int{}
 	for j, v := range t.Variables {
-		have[v] = j
+		have[ColumnKey(v)] = j
 	}
 	idx := make([]int, len(m.Variables))
 	for j, v := range m.Variables {
-		c, ok := have[v]
+		c, ok := have[ColumnKey(v)]
 		if !ok {
 			c = -1
 		}

@@ -42,7 +42,7 @@ func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			defer failed.catch(&next, count)
+			defer failed.catch(func() { next.Store(int64(count)) })
 			w := newWorkspace()
 			for {
 				i := int(next.Add(1) - 1)
@@ -68,12 +68,12 @@ type workerPanic struct {
 	set   bool
 }
 
-// catch, deferred in a worker, records a panic and makes the other workers
-// run out of tasks (next is moved past count).
-func (p *workerPanic) catch(next *atomic.Int64, count int) {
+// catch, deferred in a worker, records a panic and calls stop, which
+// should make the other workers run out of tasks.
+func (p *workerPanic) catch(stop func()) {
 	if r := recover(); r != nil {
 		p.once.Do(func() { p.value, p.set = r, true })
-		next.Store(int64(count))
+		stop()
 	}
 }
 

@@ -138,12 +138,12 @@ func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*a
 	}
 	index := map[string]int{}
 	for j, v := range m.Variables {
-		index[v] = j
+		index[analysis.ColumnKey(v)] = j
 	}
 	var present []string
 	var means []float64
 	for _, h := range header {
-		if j, ok := index[h]; ok && h != read.IDColumn && h != read.GroupColumn {
+		if j, ok := index[analysis.ColumnKey(h)]; ok && h != read.IDColumn && h != read.GroupColumn {
 			present = append(present, h)
 			means = append(means, m.Means[j])
 		}
@@ -160,13 +160,13 @@ func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*a
 	if err != nil {
 		return nil, nil, err
 	}
-	known := map[string]bool{t.IDColumn: true, t.GroupColumn: true}
+	known := map[string]bool{analysis.ColumnKey(t.IDColumn): true, analysis.ColumnKey(t.GroupColumn): true}
 	for _, v := range m.Variables {
-		known[v] = true
+		known[analysis.ColumnKey(v)] = true
 	}
 	var others []string
 	for _, h := range header {
-		if !known[h] {
+		if !known[analysis.ColumnKey(h)] {
 			others = append(others, h)
 		}
 	}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -149,5 +150,38 @@ func TestApplyCommand(t *testing.T) {
 	status, _, stderr = runPCQC(t, "apply", audit, usarrestsPath, "--out", filepath.Join(dir, "y"))
 	if status != exitUsage || !strings.Contains(stderr, "format 7, newer than") {
 		t.Errorf("newer model: %d %q", status, stderr)
+	}
+}
+
+// A new batch whose header spells a name in another Unicode normal form
+// (NFD "a" + combining diaeresis) meets the model's NFC variable.
+func TestApplyMatchesNamesInNFC(t *testing.T) {
+	dir := t.TempDir()
+	const nfc, nfd = "K\u00e4lte", "Ka\u0308lte"
+	rows := "id,%s,b,c\ns1,1,2,3.5\ns2,2,1,4\ns3,3,5,1\ns4,4,3,2\ns5,5,4,6\ns6,6,7,5\ns7,7,5,8\n"
+	train := filepath.Join(dir, "train.csv")
+	batch := filepath.Join(dir, "batch.csv")
+	os.WriteFile(train, []byte(fmt.Sprintf(rows, nfc)), 0o644)
+	os.WriteFile(batch, []byte(fmt.Sprintf(rows, nfd)), 0o644)
+	audit := filepath.Join(dir, "audit")
+	if status, _, stderr := runPCQC(t, "run", train, "--out", audit, "--format", "none", "--bootstrap", "0", "--components", "2", "--fail-on", "never"); status != exitOK {
+		t.Fatalf("run: %d %s", status, stderr)
+	}
+	out := filepath.Join(dir, "applied")
+	status, stdout, stderr := runPCQC(t, "apply", audit, batch, "--out", out, "--format", "none", "--fail-on", "never")
+	if status != exitOK || !strings.Contains(stdout, "7 new samples scored") {
+		t.Fatalf("apply: %d %s %s", status, stdout, stderr)
+	}
+	var summary struct {
+		Checks []struct{ ID, Status string }
+	}
+	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
+	if err := json.Unmarshal(b, &summary); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range summary.Checks {
+		if c.ID == "apply-variables" && c.Status != "pass" {
+			t.Errorf("apply-variables is %s: a variable was not matched", c.Status)
+		}
 	}
 }
