@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"fmt"
+	"pcqc/internal/safetext"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -63,54 +64,7 @@ func quoteText(s string) string {
 	return fmt.Sprintf("%s… (%d characters)", strconv.Quote(s[:cut]), n)
 }
 
-// escapeControls escapes, Go style, the characters of s that a terminal
-// would act on instead of showing: C0 controls (tab and line ends included,
-// so that a message stays one line), DEL, C1 controls, the bidirectional
-// embedding, override and isolate controls, and bytes that are not UTF-8.
-// Everything else, accented letters included, is kept as it is.
-func escapeControls(s string) string {
-	clean := true
-	for _, r := range s {
-		if mustEscape(r) {
-			clean = false
-			break
-		}
-	}
-	if clean {
-		return s
-	}
-	var b strings.Builder
-	for i := 0; i < len(s); {
-		r, size := utf8.DecodeRuneInString(s[i:])
-		switch {
-		case r == utf8.RuneError && size == 1:
-			fmt.Fprintf(&b, `\x%02x`, s[i])
-		case r == '\t':
-			b.WriteString(`\t`)
-		case r == '\n':
-			b.WriteString(`\n`)
-		case r == '\r':
-			b.WriteString(`\r`)
-		case r < 0x80 && mustEscape(r):
-			fmt.Fprintf(&b, `\x%02x`, r)
-		case mustEscape(r):
-			fmt.Fprintf(&b, `\u%04x`, r)
-		default:
-			b.WriteString(s[i : i+size])
-		}
-		i += size
-	}
-	return b.String()
-}
-
-// mustEscape reports whether r is a character escapeControls escapes. A
-// byte that is not UTF-8 decodes as utf8.RuneError, which is escaped too.
-func mustEscape(r rune) bool {
-	switch {
-	case r < 0x20, r == 0x7f, r >= 0x80 && r <= 0x9f:
-		return true
-	case r >= 0x202a && r <= 0x202e, r >= 0x2066 && r <= 0x2069:
-		return true
-	}
-	return r == utf8.RuneError
-}
+// escapeControls escapes the characters of s that a terminal would act on
+// instead of showing (see internal/safetext), line ends and tabs included,
+// so that a message stays one line.
+func escapeControls(s string) string { return safetext.Escape(s) }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"pcqc/internal/safetext"
 	"slices"
 	"strings"
 	"testing"
@@ -62,7 +63,7 @@ func checkInputError(t *testing.T, err error, input []byte) {
 		t.Fatalf("error is not UTF-8: %q", msg)
 	}
 	for _, r := range msg {
-		if r != utf8.RuneError && mustEscape(r) {
+		if r != utf8.RuneError && safetext.NeedsEscape(r) {
 			t.Fatalf("error holds control character %U: %q", r, msg)
 		}
 	}

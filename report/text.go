@@ -1,7 +1,7 @@
 package report
 
 import (
-	"fmt"
+	"pcqc/internal/safetext"
 	"strings"
 	"sync"
 	"unicode"
@@ -21,48 +21,12 @@ import (
 // characters those fonts lack replaced by a box and right-to-left runs put
 // in the order in which they are read.
 
-// oneLine returns s as one line of literal text. Line breaks, tabs and the
-// Unicode line and paragraph separators become spaces; other control
-// characters and the bidirectional embedding, override and isolate
-// controls (which would silently reorder the text around them) become
-// visible escapes such as \x1b and \u202e.
-func oneLine(s string) string {
-	if !strings.ContainsFunc(s, needsEscape) && utf8.ValidString(s) {
-		return s
-	}
-	var b strings.Builder
-	for i, w := 0, 0; i < len(s); i += w {
-		r, size := utf8.DecodeRuneInString(s[i:])
-		w = size
-		switch {
-		case r == utf8.RuneError && size == 1:
-			fmt.Fprintf(&b, `\x%02x`, s[i])
-		case r == '\n' || r == '\r' || r == '\t' || r == '\v' || r == '\f' || r == '\u2028' || r == '\u2029':
-			b.WriteByte(' ')
-		case r < 0x80 && needsEscape(r):
-			fmt.Fprintf(&b, `\x%02x`, r)
-		case needsEscape(r):
-			fmt.Fprintf(&b, `\u%04x`, r)
-		default:
-			b.WriteRune(r)
-		}
-	}
-	return b.String()
-}
+// oneLine returns s as one line of literal text (see internal/safetext).
+func oneLine(s string) string { return safetext.OneLine(s) }
 
 // needsEscape reports whether r cannot stand for itself in one line of
-// text: a control character, a line or paragraph separator, or an
-// explicit bidirectional formatting character.
-func needsEscape(r rune) bool {
-	return unicode.IsControl(r) || r == '\u2028' || r == '\u2029' || isBidiControl(r)
-}
-
-// isBidiControl reports the explicit embeddings, overrides and isolates
-// (LRE, RLE, PDF, LRO, RLO; LRI, RLI, FSI, PDI). The implicit marks LRM
-// and RLM are left alone: they only resolve neutral characters.
-func isBidiControl(r rune) bool {
-	return r >= '\u202a' && r <= '\u202e' || r >= '\u2066' && r <= '\u2069'
-}
+// literal text.
+func needsEscape(r rune) bool { return safetext.NeedsEscape(r) }
 
 // shorten keeps at most max runes of s, cutting it with an ellipsis.
 func shorten(s string, max int) string {

@@ -80,12 +80,12 @@ func TestWriteFailureStatus(t *testing.T) {
 func TestOneLineEscapesControls(t *testing.T) {
 	cases := map[string]string{
 		"a\nb":                      `a b`,
-		"bell\a and \x1b[31mred":    `bell\a and \x1b[31mred`,
-		"osc \x1b]0;title\x07":      `osc \x1b]0;title\a`,
+		"bell\a and \x1b[31mred":    `bell\x07 and \x1b[31mred`,
+		"osc \x1b]0;title\x07":      `osc \x1b]0;title\x07`,
 		"rtl \u202eevil":            `rtl \u202eevil`,
 		"c1 \u009b":                 `c1 \u009b`,
 		"bad \xff byte":             `bad \xff byte`,
-		"tab\tand µ°ä kept":         "tab\tand µ°ä kept",
+		"tab\tand µ°ä kept":         "tab and µ°ä kept",
 		"isolate \u2066x\u2069 end": `isolate \u2066x\u2069 end`,
 	}
 	for in, want := range cases {

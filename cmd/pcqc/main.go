@@ -13,11 +13,9 @@ import (
 	"io"
 	"io/fs"
 	"os"
+	"pcqc/internal/safetext"
 	"runtime/pprof"
-	"strconv"
-	"strings"
 	"syscall"
-	"unicode/utf8"
 
 	"pcqc/analysis"
 	"pcqc/outdir"
@@ -82,7 +80,7 @@ func writeFailure(err error) error {
 func reportWritten(stdout, stderr io.Writer, out *outdir.Output) {
 	fmt.Fprintf(stdout, "pcqc: wrote %s\n", out.Target())
 	if kept := out.Leftover(); kept != "" {
-		fmt.Fprintf(stderr, "pcqc: the replaced folder held files pcqc did not write; they were kept in %s\n", escapeControls(kept))
+		fmt.Fprintf(stderr, "pcqc: the replaced folder held files pcqc did not write; they were kept in %s\n", oneLine(kept))
 	}
 }
 
@@ -183,36 +181,6 @@ func statusFor(err error) int {
 }
 
 // oneLine keeps an error message on one line of stderr, with every other
-// control character escaped.
-func oneLine(s string) string {
-	return escapeControls(strings.NewReplacer("\r\n", " ", "\n", " ", "\r", " ").Replace(s))
-}
-
-// escapeControls writes control characters as Go escapes (\x1b, \u202e),
-// so that text from a user's file cannot drive the terminal (ESC and OSC
-// sequences) or reorder what it shows (bidirectional overrides). Invalid
-// UTF-8 is escaped byte by byte.
-func escapeControls(s string) string {
-	var b strings.Builder
-	for i, w := 0, 0; i < len(s); i += w {
-		r, size := utf8.DecodeRuneInString(s[i:])
-		w = size
-		switch {
-		case r == utf8.RuneError && size == 1:
-			fmt.Fprintf(&b, "\\x%02x", s[i])
-		case isControl(r):
-			q := strconv.QuoteRune(r)
-			b.WriteString(q[1 : len(q)-1])
-		default:
-			b.WriteRune(r)
-		}
-	}
-	return b.String()
-}
-
-// isControl reports the characters escaped on stderr: C0 (but tab), DEL,
-// C1, and the bidirectional embedding, override and isolate controls.
-func isControl(r rune) bool {
-	return (r < 0x20 && r != '\t') || (r >= 0x7f && r < 0xa0) ||
-		(r >= 0x202a && r <= 0x202e) || (r >= 0x2066 && r <= 0x2069)
-}
+// control character escaped (see internal/safetext), so that text from a
+// user's file cannot drive the terminal or reorder what it shows.
+func oneLine(s string) string { return safetext.OneLine(s) }
