@@ -47,6 +47,7 @@ func writeAll(t *testing.T, dir string, res *analysis.Result, results []checks.R
 // Acceptance: two runs with the same inputs and date give byte-identical
 // report files, figures included.
 func TestReportIsReproducible(t *testing.T) {
+	skipRenderingWhenShort(t)
 	res, results := demoAudit(t, 100)
 	a, b := t.TempDir(), t.TempDir()
 	writeAll(t, a, res, results)
@@ -77,6 +78,7 @@ func TestReportIsReproducible(t *testing.T) {
 // names every check; report.md renders with goldmark with no template
 // syntax left.
 func TestHTMLAndMarkdown(t *testing.T) {
+	skipRenderingWhenShort(t)
 	res, results := demoAudit(t, 50)
 	dir := t.TempDir()
 	writeAll(t, dir, res, results)
@@ -208,6 +210,7 @@ func normal(s string) string { return strings.TrimSpace(spaces.ReplaceAllString(
 // Acceptance: the demo's report.pdf opens in a real PDF reader, which finds
 // the title, the verdict, every check title and the methods paragraph.
 func TestPDFReadsInPoppler(t *testing.T) {
+	skipRenderingWhenShort(t)
 	res, results := demoAudit(t, 100)
 	dir := t.TempDir()
 	writeAll(t, dir, res, results)
@@ -235,6 +238,7 @@ func TestPDFReadsInPoppler(t *testing.T) {
 // Acceptance: long tables break across PDF pages with their header repeated,
 // and long sample ids stay inside their cells.
 func TestLongTablesInPDF(t *testing.T) {
+	skipRenderingWhenShort(t)
 	const n, p = 260, 200
 	x, _ := synth.LowRank(synth.RNG(3, 60), n, p, []float64{4, 3}, 1)
 	ids := make([]string, n)
@@ -344,5 +348,16 @@ func TestMarkdownEscaping(t *testing.T) {
 		if got := escapeMarkdown(plain); got != plain {
 			t.Errorf("%q escaped as %q", plain, got)
 		}
+	}
+}
+
+// skipRenderingWhenShort skips a test that renders whole reports when
+// -short is given: CI runs the race detector with -short, since these
+// tests exercise no concurrency of their own and take minutes under it;
+// the full run (go test ./...) always includes them.
+func skipRenderingWhenShort(t *testing.T) {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("renders whole reports; run without -short")
 	}
 }

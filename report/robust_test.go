@@ -105,6 +105,7 @@ func TestSummaryWritesNonFiniteAsNull(t *testing.T) {
 // their captions; a figure with nothing left to draw is left out with a
 // sentence; the report is written either way.
 func TestFiguresWithNonFiniteValues(t *testing.T) {
+	skipRenderingWhenShort(t)
 	cases := []struct {
 		name    string
 		poison  func(res *analysis.Result)

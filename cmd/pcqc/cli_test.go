@@ -33,6 +33,7 @@ func readCSV(t *testing.T, path string) [][]string {
 }
 
 func TestDemoWritesAllOutputs(t *testing.T) {
+	skipRenderingWhenShort(t)
 	out := filepath.Join(t.TempDir(), "demo")
 	status, stdout, stderr := runPCQC(t, "demo", "--out", out)
 	if status != exitOK {
@@ -259,6 +260,7 @@ func TestBootstrapOffSkipsStability(t *testing.T) {
 }
 
 func TestReportFormatsAndDate(t *testing.T) {
+	skipRenderingWhenShort(t)
 	dir := t.TempDir()
 	out := filepath.Join(dir, "all")
 	if status, _, stderr := runPCQC(t, "demo", "--out", out, "--date", "2026-03-04", "--bootstrap", "50", "--permutations", "50", "--title", "River check", "--author", "Q. Analyst"); status != exitOK {
@@ -302,5 +304,16 @@ func TestReportFormatsAndDate(t *testing.T) {
 		if status != exitUsage || !strings.Contains(stderr, "invalid") {
 			t.Errorf("%v: %d %s", bad, status, stderr)
 		}
+	}
+}
+
+// skipRenderingWhenShort skips a test that renders whole reports when
+// -short is given: CI runs the race detector with -short, since these
+// tests exercise no concurrency of their own and take minutes under it;
+// the full run (go test ./...) always includes them.
+func skipRenderingWhenShort(t *testing.T) {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("renders whole reports; run without -short")
 	}
 }
