@@ -3,6 +3,7 @@ package analysis
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -66,7 +67,7 @@ func influenceCost(n, p int) float64 {
 //   - Wide data (p > n). The nonzero spectrum is that of the Gram matrix
 //     of the n−1 remaining rows, centred on their own mean: without
 //     scaling it is a re-centred submatrix of ZZᵀ, K_rs + (K_ri + K_si)/(n−1)
-//     + K_ii/(n−1)², at O(n²) per sample; with scaling the rows are
+//   - K_ii/(n−1)², at O(n²) per sample; with scaling the rows are
 //     rescaled first, G changing every product, at O(n²p) per sample.
 //     Loadings are V = Wᵀ U Σ⁻¹ from the rescaled rows W.
 //
@@ -358,4 +359,18 @@ func LargestPrincipalAngle(a, b mat.Matrix) float64 {
 	s := svd.Values(nil)
 	cos := s[len(s)-1]
 	return math.Atan2(math.Min(sin, 1), math.Min(cos, 1)) * 180 / math.Pi
+}
+
+// InfluenceLimit returns the 95th percentile of the bootstrap subspace
+// angles (degrees): how far resampling the whole table typically turns the
+// retained subspace. A sample whose removal alone turns it further moves
+// the model more than sampling variation does. NaN when the bootstrap did
+// not run.
+func InfluenceLimit(st Stability) float64 {
+	if len(st.SubspaceAngles) == 0 {
+		return math.NaN()
+	}
+	s := slices.Clone(st.SubspaceAngles)
+	slices.Sort(s)
+	return percentile(s, 95)
 }

@@ -69,6 +69,9 @@ type SampleStats struct {
 	// has of the component's variance, t_ia²/Σ_j t_ja², and that sample.
 	Dominance       []float64
 	DominanceSample []int
+	// Influence is each sample's exact leave-one-out effect on the
+	// retained components (LeaveOneOut).
+	Influence Influence
 }
 
 // LeverageFactor is the multiplier in the leverage rule h > c(k+1)/n: the

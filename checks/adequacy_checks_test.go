@@ -175,7 +175,7 @@ func TestSampleChecks(t *testing.T) {
 	for _, c := range []struct {
 		check Check
 		id    string
-	}{{outliersT2, "11"}, {outliersQ, "21"}, {leverage, "11"}, {dominance, "11"}} {
+	}{{outliersT2, "11"}, {outliersQ, "21"}, {dominance, "11"}} {
 		r := c.check.Run(in)
 		if r.Status != Warn || !strings.Contains(r.Message, c.id) {
 			t.Errorf("%s: %s %q; want warn naming sample %s", c.check.ID, r.Status, r.Message, c.id)

@@ -36,7 +36,7 @@ func limitCheck(values []float64, l familyLimits, ids []string, what, remedy str
 		"limit_family": l.family, "family_confidence": l.conf,
 		"binomial_alpha": BinomialAlpha,
 	}}
-	familyText := fmt.Sprintf("the family-wise limit of %s (%s) at per-sample confidence %s, which %d clean samples together pass with probability %s (Šidák)",
+	familyText := fmt.Sprintf("the family-wise limit of %s, %s at per-sample confidence %s (Šidák: %d clean samples together pass it with probability %s)",
 		what, g3(l.family), confText(l.conf), n, pct(analysis.FamilyAlpha))
 	chance := fmt.Sprintf("%s beyond the 95 %% limit (%s) where chance gives %s (binomial %s, alarm below %s); %s beyond the 99 %% limit (%s expected).",
 		countNoun(n95, "sample"), g3(l.lim95), g3(0.05*float64(n)), pvalue(p), sci(BinomialAlpha), countNoun(n99, "sample"), g3(0.01*float64(n)))
@@ -98,7 +98,7 @@ var outliersQ = Check{
 		}
 		l := s.Limits
 		return limitCheck(s.Q, familyLimits{l.Q95, l.Q99, l.QFamily, l.FamilyConf}, in.Run.Table.IDs,
-			fmt.Sprintf("Q (by %s)", method),
+			fmt.Sprintf("Q (%s)", method),
 			"These samples do not fit the correlation structure of the rest (a broken sensor, a unit error, a contamination, or a genuinely different kind of sample). Look at their residuals variable by variable.")
 	},
 }
