@@ -111,6 +111,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	r.Adequacy = adequacy
 	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
 	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
+	r.Samples.Influence.Limit = InfluenceLimits(r.Samples.Influence, r.Stability, opt.Seed)
 	return r, nil
 }
 

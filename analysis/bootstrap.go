@@ -42,10 +42,10 @@ type Stability struct {
 	// component's eigenvalue and share of the variance (in percent).
 	Eigenvalues []Interval
 	Percent     []Interval
-	// SubspaceAngles holds, per used resample (in resample order), the
-	// largest principal angle in degrees between the reference retained
-	// subspace and the resample's: how far resampling turns the model,
-	// the yardstick of the influence check.
+	// SubspaceAngles holds, per resample (in resample order; NaN for one
+	// not used), the largest principal angle in degrees between the
+	// reference retained subspace and the resample's: how far resampling
+	// turns the model, the yardstick of the influence check.
 	SubspaceAngles []float64
 }
 
@@ -146,7 +146,7 @@ func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Prog
 	workers := workersFor(threads, perWorker)
 	newWorkspace := func() *bootWorkspace { return &bootWorkspace{} }
 	parallelFor(resamples, workers, newWorkspace, func(w *bootWorkspace, i int) {
-		c := drawCounts(taskRNG(seed, streamBootstrap, i), n)
+		c := bootstrapDraw(seed, i, n)
 		counts[i] = c
 		results[i] = b.resample(w, c)
 	}, "bootstrap", progress)
@@ -596,8 +596,12 @@ func (st *Stability) summarise(b *bootstrapper, results []resampleResult, counts
 		slices.Sort(vals)
 		return percentile(vals, 2.5), percentile(vals, 97.5), percentile(vals, 50), percentile(vals, 5), sum / float64(u)
 	}
-	for _, i := range used {
-		st.SubspaceAngles = append(st.SubspaceAngles, results[i].angle)
+	st.SubspaceAngles = make([]float64, len(results))
+	for i, res := range results {
+		st.SubspaceAngles[i] = math.NaN()
+		if res.ok {
+			st.SubspaceAngles[i] = res.angle
+		}
 	}
 	st.Components = make([]ComponentStability, k)
 	st.Congruence = make([][]float64, k)

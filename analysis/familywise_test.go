@@ -27,7 +27,7 @@ func TestFamilyWiseLimitsMatchSciPy(t *testing.T) {
 	}
 	rel := func(got, want float64) float64 { return math.Abs(got-want) / want }
 	for _, c := range cases {
-		conf := SidakConfidence(FamilyAlpha, c.n)
+		conf := SidakConfidence(0.05, c.n) // the level of the SciPy reference
 		if d := math.Abs(conf - c.conf); d > 1e-15 {
 			t.Errorf("n=%d: Šidák confidence %.17g, SciPy %.17g", c.n, conf, c.conf)
 		}
@@ -44,7 +44,9 @@ func TestFamilyWiseLimitsMatchSciPy(t *testing.T) {
 			t.Errorf("n=%d: Box Q family limit %.12g, SciPy %.12g", c.n, got, c.qBox)
 		}
 		l := TrainingLimits(c.n, c.k, append([]float64{5, 4, 3, 2}[:c.k], discarded...))
-		if l.FamilyConf != conf || rel(l.T2Family, c.t2) > 1e-8 || rel(l.QFamily, c.qJM) > 1e-8 {
+		fc := SidakConfidence(FamilyAlpha, c.n)
+		qf, _ := QLimit(discarded, fc)
+		if l.FamilyConf != fc || l.T2Family != T2LimitModel(c.n, c.k, fc) || l.QFamily != qf {
 			t.Errorf("n=%d: TrainingLimits family fields %+v", c.n, l)
 		}
 		if !(l.T2Family > l.T2_99 && l.QFamily > l.Q99) {

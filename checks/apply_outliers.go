@@ -18,7 +18,7 @@ func applyLimitCheck(in Input, values []float64, l familyLimits, what, remedy st
 var applyOutliersT2 = Check{
 	ID:     "apply-outliers-t2",
 	Title:  "New samples within the model (Hotelling T²)",
-	Source: "Hotelling T² with the F-distribution limits for new observations, k(n²−1)/(n(n−k))·F(k, n−k) (Tracy, Young & Mason 1992), judged family-wise over the batch: Šidák (1967) at α = 0.05, and a binomial tail test of the count beyond 95 % at α = 0.001",
+	Source: "Hotelling T² with the F-distribution limits for new observations, k(n²−1)/(n(n−k))·F(k, n−k) (Tracy, Young & Mason 1992), judged family-wise over the batch: Šidák (1967) at α = 0.01, and a binomial tail test of the count beyond 95 % at α = 0.001",
 	Mode:   ModeApply,
 	judge: func(in Input) Result {
 		app := in.Apply
@@ -35,7 +35,7 @@ var applyOutliersT2 = Check{
 var applyOutliersQ = Check{
 	ID:     "apply-outliers-q",
 	Title:  "New samples fit the model (Q residual)",
-	Source: "Q residual against the training limits (Jackson & Mudholkar 1979), judged family-wise over the batch: Šidák (1967) at α = 0.05, and a binomial tail test of the count beyond 95 % at α = 0.001",
+	Source: "Q residual against the training limits (Jackson & Mudholkar 1979), judged family-wise over the batch: Šidák (1967) at α = 0.01, and a binomial tail test of the count beyond 95 % at α = 0.001",
 	Mode:   ModeApply,
 	judge: func(in Input) Result {
 		app := in.Apply

@@ -15,7 +15,7 @@ import (
 var influence = Check{
 	ID:     "influence",
 	Title:  "No single sample turns the components",
-	Source: "exact leave-one-out principal angles (Björck & Golub 1973) against the 95th percentile of the bootstrap subspace angles (common practice: a sample matters when it alone moves the model more than resampling typically does)",
+	Source: "exact leave-one-out principal angles (Björck & Golub 1973) against the 95th percentile of the bootstrap subspace angles over the resamples that drew the sample (common practice: a sample matters when it alone moves the model more than resampling typically does)",
 	judge: func(in Input) Result {
 		s := in.Run.Samples
 		inf := s.Influence
@@ -23,15 +23,15 @@ var influence = Check{
 			return Result{Status: Skip, Message: fmt.Sprintf("Not measured: %s.", inf.Skipped)}
 		}
 		limit := analysis.InfluenceLimit(in.Run.Stability)
-		if math.IsNaN(limit) {
+		if math.IsNaN(limit) || len(inf.Limit) != len(inf.Angle) {
 			return Result{Status: Skip, Message: "The yardstick, the bootstrap subspace angles, needs the bootstrap (--bootstrap > 0); samples.csv still holds each sample's influence_deg."}
 		}
 		var idx []int
 		worst := 0
 		for i, a := range inf.Angle {
-			// A sample whose angle is not a number could not be judged; it
-			// is listed so that it is looked at.
-			if math.IsNaN(a) || a > limit {
+			// A sample whose angle or limit is not a number could not be
+			// judged; it is listed so that it is looked at.
+			if !(a <= inf.Limit[i]) {
 				idx = append(idx, i)
 			}
 			if a > inf.Angle[worst] {
@@ -40,8 +40,14 @@ var influence = Check{
 		}
 		slices.SortStableFunc(idx, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
 		r := Result{Value: inf.Angle[worst], Limit: limit}
-		yard := fmt.Sprintf("Leaving out one sample at a time (preprocessing refitted, computed exactly), the retained subspace turns by at most %s° (sample %s, which changes the eigenvalues by %s); bootstrap resamples of the whole table turn it by up to %s° (95th percentile of %d).",
-			g3(inf.Angle[worst]), in.Run.Table.IDs[worst], changeText(inf.EigenChange[worst]), g3(limit), len(in.Run.Stability.SubspaceAngles))
+		used := 0
+		for _, a := range in.Run.Stability.SubspaceAngles {
+			if !math.IsNaN(a) {
+				used++
+			}
+		}
+		yard := fmt.Sprintf("Leaving out one sample at a time (preprocessing refitted, computed exactly), the retained subspace turns by at most %s° (sample %s, which changes the eigenvalues by %s); the %d bootstrap resamples of the whole table turn it by up to %s° (95th percentile), and each sample is held against the 95th percentile over the resamples that drew it (for %s: %s°).",
+			g3(inf.Angle[worst]), in.Run.Table.IDs[worst], changeText(inf.EigenChange[worst]), used, g3(limit), in.Run.Table.IDs[worst], g3(inf.Limit[worst]))
 		if len(idx) == 0 {
 			r.Status = Pass
 			r.Message = yard + " No sample alone moves the model more than resampling does."

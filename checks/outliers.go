@@ -70,7 +70,7 @@ func confText(c float64) string {
 var outliersT2 = Check{
 	ID:     "outliers-t2",
 	Title:  "Outliers within the model (Hotelling T²)",
-	Source: "Hotelling T² with the beta-distribution limits of Tracy, Young & Mason (1992), judged family-wise: Šidák (1967) correction for n samples at α = 0.05, and a binomial tail test of the count beyond 95 % at α = 0.001",
+	Source: "Hotelling T² with the beta-distribution limits of Tracy, Young & Mason (1992), judged family-wise: Šidák (1967) correction for n samples at α = 0.01, and a binomial tail test of the count beyond 95 % at α = 0.001",
 	judge: func(in Input) Result {
 		s := in.Run.Samples
 		if math.IsNaN(s.Limits.T2_99) || math.IsNaN(s.Limits.T2Family) {
@@ -86,7 +86,7 @@ var outliersT2 = Check{
 var outliersQ = Check{
 	ID:     "outliers-q",
 	Title:  "Outliers off the model (Q residual)",
-	Source: "Q residual (squared prediction error) with Jackson & Mudholkar (1979) limits, Box (1954) χ² approximation where JM is undefined, judged family-wise: Šidák (1967) correction for n samples at α = 0.05, and a binomial tail test of the count beyond 95 % at α = 0.001",
+	Source: "Q residual (squared prediction error) with Jackson & Mudholkar (1979) limits, Box (1954) χ² approximation where JM is undefined, judged family-wise: Šidák (1967) correction for n samples at α = 0.01, and a binomial tail test of the count beyond 95 % at α = 0.001",
 	judge: func(in Input) Result {
 		s := in.Run.Samples
 		if s.Limits.QMethod == analysis.QNone {
