@@ -165,7 +165,9 @@ func TrainingLimits(n, k int, eigenvalues []float64) Limits {
 
 // Beyond lists, for sample i, the limits it passes: "t2-99" (which implies
 // t2-95) or "t2-95", likewise "q-99" or "q-95", then "t2-family" and
-// "q-family" for the family-wise limits, and "leverage".
+// "q-family" for the family-wise limits, "leverage", and "influence" when
+// leaving the sample out turns the retained subspace beyond its bootstrap
+// yardstick.
 func (s SampleStats) Beyond(i int) []string {
 	var out []string
 	l := s.Limits
@@ -193,6 +195,9 @@ func (s SampleStats) Beyond(i int) []string {
 	}
 	if above(s.Leverage[i], l.Leverage) {
 		out = append(out, "leverage")
+	}
+	if inf := s.Influence; i < len(inf.Angle) && i < len(inf.Limit) && above(inf.Angle[i], inf.Limit[i]) {
+		out = append(out, "influence")
 	}
 	return out
 }
