@@ -795,6 +795,7 @@ func influenceFigure(res *analysis.Result) drawing {
 	n := len(inf.Angle)
 	pl := newPlot("Influence of each sample on the retained subspace", "sample (input order)", "angle without the sample (°)")
 	pl.Add(guides{})
+	pl.X.Tick.Marker = integerTicks{}
 	if lim := analysis.InfluenceLimit(res.Stability); isFinite(lim) {
 		pl.Add(refLine{at: lim, style: lineStyle(accent95, 1, 4, 2), label: "bootstrap 95th percentile"})
 	}
