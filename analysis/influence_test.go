@@ -124,3 +124,33 @@ func TestLeaveOneOutSkips(t *testing.T) {
 		t.Error("over budget: not skipped")
 	}
 }
+
+// For one retained component the largest principal angle is the angle
+// between two unit vectors, arccos |φ| of Tucker's congruence (fact of the
+// trade): the bootstrap's subspace angles must agree with its congruences.
+func TestBootstrapSubspaceAnglesMatchCongruence(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(4, 4), 80, 6, []float64{3}, 1)
+	r, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}, Bootstrap: 50, Seed: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := r.Stability
+	if len(st.SubspaceAngles) != 50 || st.Used != 50 {
+		t.Fatalf("%d angles for %d used resamples", len(st.SubspaceAngles), st.Used)
+	}
+	for b, a := range st.SubspaceAngles {
+		want := math.Acos(math.Min(1, st.Congruence[0][b])) * 180 / math.Pi
+		if math.Abs(a-want) > 1e-6 {
+			t.Errorf("resample %d: angle %g°, arccos φ %g°", b, a, want)
+		}
+	}
+	// Every sample has a yardstick, and the samples.csv token follows it.
+	lim := r.Samples.Influence.Limit
+	if len(lim) != 80 || math.IsNaN(lim[0]) {
+		t.Fatalf("influence limits %v", lim)
+	}
+	r.Samples.Influence.Limit[3] = -1
+	if b := r.Samples.Beyond(3); len(b) == 0 || b[len(b)-1] != "influence" {
+		t.Errorf("beyond %v: want the influence token", b)
+	}
+}
