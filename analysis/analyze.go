@@ -107,9 +107,11 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	v := r.RetainedLoadings()
 	r.Properties = MeasureProperties(z, v, r.Scores, d.Eigenvalues)
 	r.Samples = ComputeSampleStats(z, v, r.Scores, d.Eigenvalues)
+	r.Samples.Influence = LeaveOneOut(z, pp, v, d.Eigenvalues, opt.Threads)
 	r.Adequacy = adequacy
 	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
 	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
+	r.Samples.Influence.Limit = InfluenceLimits(r.Samples.Influence, r.Stability, opt.Seed)
 	return r, nil
 }
 

@@ -29,6 +29,11 @@ type Application struct {
 	T2, Q    []float64
 	Leverage []float64 // 1/n₀ + T²/(n₀−1), n₀ the training size, as for training samples
 	Limits   ModelLimits
+	// FamilyConf is the Šidák per-sample confidence for this batch of n
+	// new samples, (1 − α)^(1/n) with α = FamilyAlpha, and T2Family and
+	// QFamily the new-observation T² limit and the Q limit at it.
+	FamilyConf        float64
+	T2Family, QFamily float64
 
 	// Shift is, per variable, the new batch's mean in training standard
 	// deviations from the training mean (transformed units).
@@ -196,6 +201,11 @@ func Apply(m *Model, t *Table) *Application {
 	for j := 0; j < p; j++ {
 		app.Shift[j] = (ColumnMean(t.X, idx[j]) - m.Means[j]) / m.SDs[j]
 	}
+	app.FamilyConf = SidakConfidence(FamilyAlpha, n)
+	app.T2Family = T2LimitNew(m.Input.Rows, k, app.FamilyConf)
+	if k < len(m.Eigenvalues) {
+		app.QFamily, _ = QLimit(m.Eigenvalues[k:], app.FamilyConf)
+	}
 	app.Flagged = RankBeyond99(app.T2, app.Q, app.Limits.T2_99, app.Limits.Q99)
 	for _, i := range app.Flagged {
 		app.Contributions = append(app.Contributions, app.contribution(i, v))
@@ -284,6 +294,7 @@ func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
 func (app *Application) Beyond(i int) []string {
 	s := SampleStats{T2: app.T2, Q: app.Q, Leverage: app.Leverage,
 		Limits: Limits{T2_95: app.Limits.T2_95, T2_99: app.Limits.T2_99, Q95: app.Limits.Q95, Q99: app.Limits.Q99,
-			QMethod: app.Limits.QMethod, Leverage: LeverageFactor * float64(app.Model.Retained+1) / float64(app.Model.Input.Rows)}}
+			QMethod: app.Limits.QMethod, Leverage: LeverageFactor * float64(app.Model.Retained+1) / float64(app.Model.Input.Rows),
+			FamilyConf: app.FamilyConf, T2Family: app.T2Family, QFamily: app.QFamily}}
 	return s.Beyond(i)
 }

@@ -42,6 +42,11 @@ type Stability struct {
 	// component's eigenvalue and share of the variance (in percent).
 	Eigenvalues []Interval
 	Percent     []Interval
+	// SubspaceAngles holds, per resample (in resample order; NaN for one
+	// not used), the largest principal angle in degrees between the
+	// reference retained subspace and the resample's: how far resampling
+	// turns the model, the yardstick of the influence check.
+	SubspaceAngles []float64
 }
 
 // ComponentStability summarises Tucker's congruence coefficient between the
@@ -82,6 +87,7 @@ type resampleResult struct {
 	eigen      []float64 // all m eigenvalues
 	total      float64   // total variance of the resample
 	phi, procr []float64 // per retained component
+	angle      float64   // largest principal angle to the reference subspace, degrees
 	loadings   []float64 // p × k aligned loadings (tall path), row-major
 	coef       []float64 // n × k coefficients (wide path), see wideLoadings
 }
@@ -140,7 +146,7 @@ func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Prog
 	workers := workersFor(threads, perWorker)
 	newWorkspace := func() *bootWorkspace { return &bootWorkspace{} }
 	parallelFor(resamples, workers, newWorkspace, func(w *bootWorkspace, i int) {
-		c := drawCounts(taskRNG(seed, streamBootstrap, i), n)
+		c := bootstrapDraw(seed, i, n)
 		counts[i] = c
 		results[i] = b.resample(w, c)
 	}, "bootstrap", progress)
@@ -535,6 +541,7 @@ func (b *bootstrapper) wideLoadings(means, g, coef []float64, from, to int) *mat
 // of the retained block onto the reference.
 func (b *bootstrapper) align(res *resampleResult, v *mat.Dense, coef []float64) {
 	p, k := b.p, b.k
+	res.angle = LargestPrincipalAngle(b.ref, v)
 	res.phi = make([]float64, k)
 	res.procr = make([]float64, k)
 	col := make([]float64, p)
@@ -588,6 +595,13 @@ func (st *Stability) summarise(b *bootstrapper, results []resampleResult, counts
 		}
 		slices.Sort(vals)
 		return percentile(vals, 2.5), percentile(vals, 97.5), percentile(vals, 50), percentile(vals, 5), sum / float64(u)
+	}
+	st.SubspaceAngles = make([]float64, len(results))
+	for i, res := range results {
+		st.SubspaceAngles[i] = math.NaN()
+		if res.ok {
+			st.SubspaceAngles[i] = res.angle
+		}
 	}
 	st.Components = make([]ComponentStability, k)
 	st.Congruence = make([][]float64, k)

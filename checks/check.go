@@ -153,7 +153,7 @@ var Registry = []Check{
 	// The samples: outliers and influence.
 	outliersT2,
 	outliersQ,
-	leverage,
+	influence,
 	dominance,
 	// Stability: would the loadings come out the same on another sample?
 	loadingStability,

@@ -7,38 +7,78 @@ import (
 	"pcqc/analysis"
 )
 
-// limitCheck judges per-sample statistics against their 95 % and 99 %
-// limits: warn when any sample passes the 99 % limit, naming them, and in
-// every case say how many pass the 95 % limit against the 5 % expected by
-// chance.
-func limitCheck(values []float64, lim95, lim99 float64, ids []string, what, remedy string) Result {
+// familyLimits are the limits one outlier check judges against.
+type familyLimits struct {
+	lim95, lim99 float64
+	family, conf float64 // the Šidák family-wise limit and its per-sample confidence
+}
+
+// limitCheck judges per-sample statistics family-wise, so that a clean
+// table of any size passes with probability about 1 − α. It warns when
+//
+//   - a sample passes the limit at the Šidák per-sample confidence
+//     (1 − α)^(1/n), α = analysis.FamilyAlpha: that sample is unlikely even
+//     allowing for n chances, and it is named; or
+//   - the count beyond the 95 % limit is far more than chance allows: the
+//     binomial tail P(X ≥ count | n, 0.05) is below BinomialAlpha. This
+//     catches many moderate outliers, none of which is extreme alone.
+//
+// Passing the 99 % limit alone is expected of about 1 % of clean samples,
+// so it no longer warns; samples.csv and the figures keep those limits.
+func limitCheck(values []float64, l familyLimits, ids []string, what, remedy string) Result {
 	n := len(values)
-	n95, _ := analysis.CountAbove(values, lim95)
-	n99, idx99 := analysis.CountAbove(values, lim99)
-	r := Result{Value: n99, Limit: map[string]float64{"limit_95": lim95, "limit_99": lim99}}
-	chance := fmt.Sprintf("%s beyond the 95 %% limit (%s expected by chance, 5 %% of %d) and %s beyond the 99 %% limit (%s expected).",
-		countNoun(n95, "sample"), g3(0.05*float64(n)), n, countNoun(n99, "sample"), g3(0.01*float64(n)))
-	if n99 == 0 {
+	n95, _ := analysis.CountAbove(values, l.lim95)
+	n99, idx99 := analysis.CountAbove(values, l.lim99)
+	nFam, idxFam := analysis.CountAbove(values, l.family)
+	p := analysis.BinomialUpperTail(n95, n, 1-analysis.Conf95)
+	r := Result{Value: nFam, Limit: map[string]float64{
+		"limit_95": l.lim95, "limit_99": l.lim99,
+		"limit_family": l.family, "family_confidence": l.conf,
+		"binomial_alpha": BinomialAlpha,
+	}}
+	familyText := fmt.Sprintf("the family-wise limit of %s, %s at per-sample confidence %s (Šidák: %d clean samples together pass it with probability %s)",
+		what, g3(l.family), confText(l.conf), n, pct(analysis.FamilyAlpha))
+	chance := fmt.Sprintf("%s beyond the 95 %% limit (%s) where chance gives %s (binomial %s, alarm below %s); %s beyond the 99 %% limit (%s expected).",
+		countNoun(n95, "sample"), g3(l.lim95), g3(0.05*float64(n)), pvalue(p), sci(BinomialAlpha), countNoun(n99, "sample"), g3(0.01*float64(n)))
+	excess := p < BinomialAlpha
+	switch {
+	case nFam == 0 && !excess:
 		r.Status = Pass
-		r.Message = fmt.Sprintf("No sample passes the 99 %% limit of %s. %s", what, chance)
-		return r
+		r.Message = fmt.Sprintf("No sample passes %s. %s", familyText, chance)
+	case nFam > 0:
+		r.Status = Warn
+		r.Message = fmt.Sprintf("%s %s %s. They are: %s. %s %s", countNoun(nFam, "sample"), plural("passes", "pass", nFam), familyText, listIDs(idsOf(ids, idxFam)), chance, remedy)
+	default:
+		r.Status = Warn
+		named := ""
+		if n99 > 0 {
+			named = fmt.Sprintf(" Those beyond the 99 %% limit are: %s.", listIDs(idsOf(ids, idx99)))
+		}
+		r.Message = fmt.Sprintf("Too many samples lie beyond the 95 %% limit for chance, though none passes %s: %s%s %s", familyText, chance, named, remedy)
 	}
-	r.Status = Warn
-	r.Message = fmt.Sprintf("%s %s the 99 %% limit of %s, where chance gives %s. They are: %s. %s %s", countNoun(n99, "sample"), plural("passes", "pass", n99), what, g3(0.01*float64(n)), listIDs(idsOf(ids, idx99)), chance, remedy)
 	return r
+}
+
+// confText writes a confidence near 1 with enough digits to differ from 1.
+func confText(c float64) string {
+	if math.IsNaN(c) {
+		return "NaN"
+	}
+	return fmt.Sprintf("1 − %.3g", 1-c)
 }
 
 var outliersT2 = Check{
 	ID:     "outliers-t2",
 	Title:  "Outliers within the model (Hotelling T²)",
-	Source: "Hotelling T² with the beta-distribution limits of Tracy, Young & Mason (1992) at 95 % and 99 %",
+	Source: "Hotelling T² with the beta-distribution limits of Tracy, Young & Mason (1992), judged family-wise: Šidák (1967) correction for n samples at α = 0.01, and a binomial tail test of the count beyond 95 % at α = 0.001",
 	judge: func(in Input) Result {
 		s := in.Run.Samples
-		if math.IsNaN(s.Limits.T2_99) {
+		if math.IsNaN(s.Limits.T2_99) || math.IsNaN(s.Limits.T2Family) {
 			return Result{Status: Skip, Message: fmt.Sprintf("The T² limit needs n > k + 1 (n = %d, k = %d).", in.Run.Decomp.Rows, in.Run.Retained)}
 		}
-		return limitCheck(s.T2, s.Limits.T2_95, s.Limits.T2_99, in.Run.Table.IDs,
-			fmt.Sprintf("Hotelling T² (%s)", g3(s.Limits.T2_99)),
+		l := s.Limits
+		return limitCheck(s.T2, familyLimits{l.T2_95, l.T2_99, l.T2Family, l.FamilyConf}, in.Run.Table.IDs,
+			"Hotelling T²",
 			"These samples lie unusually far from the centre within the component plane: extreme but consistent with the correlation structure. Check them for real extremes or errors before they shape the components.")
 	},
 }
@@ -46,7 +86,7 @@ var outliersT2 = Check{
 var outliersQ = Check{
 	ID:     "outliers-q",
 	Title:  "Outliers off the model (Q residual)",
-	Source: "Q residual (squared prediction error) with Jackson & Mudholkar (1979) limits at 95 % and 99 %, Box (1954) χ² approximation where JM is undefined",
+	Source: "Q residual (squared prediction error) with Jackson & Mudholkar (1979) limits, Box (1954) χ² approximation where JM is undefined, judged family-wise: Šidák (1967) correction for n samples at α = 0.01, and a binomial tail test of the count beyond 95 % at α = 0.001",
 	judge: func(in Input) Result {
 		s := in.Run.Samples
 		if s.Limits.QMethod == analysis.QNone {
@@ -56,9 +96,9 @@ var outliersQ = Check{
 		if s.Limits.QMethod == analysis.QBox {
 			method = "Box's χ² approximation, as the Jackson–Mudholkar formula is undefined for these eigenvalues"
 		}
-		r := limitCheck(s.Q, s.Limits.Q95, s.Limits.Q99, in.Run.Table.IDs,
-			fmt.Sprintf("Q (%s, by %s)", g3(s.Limits.Q99), method),
+		l := s.Limits
+		return limitCheck(s.Q, familyLimits{l.Q95, l.Q99, l.QFamily, l.FamilyConf}, in.Run.Table.IDs,
+			fmt.Sprintf("Q (%s)", method),
 			"These samples do not fit the correlation structure of the rest (a broken sensor, a unit error, a contamination, or a genuinely different kind of sample). Look at their residuals variable by variable.")
-		return r
 	},
 }

@@ -58,6 +58,15 @@ const (
 	// ListedSamples is how many sample ids a message names before it
 	// counts the rest.
 	ListedSamples = 20
+	// BinomialAlpha: the outlier checks warn when the count of samples
+	// beyond the 95 % limit has a binomial upper tail P(X ≥ count | n,
+	// 0.05) below 0.001. The level is stricter than the usual 5 % because
+	// it is a second test beside the family-wise limit (whose α is
+	// analysis.FamilyAlpha = 0.01, Šidák 1967, JASA 62:626–633), on
+	// statistics whose reference distributions are themselves
+	// approximations (common practice: 0.001 is the conventional "highly
+	// significant" level).
+	BinomialAlpha = 0.001
 )
 
 // Components.

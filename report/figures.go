@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"cmp"
 	"errors"
 	"fmt"
 	"image"
@@ -780,6 +781,43 @@ func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []i
 		pl.Add(lab)
 	}
 	pl.X.Min, pl.Y.Min = 0, 0
+	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr.leaveOut(left+l2, "sample")
+	return dr
+}
+
+// influenceFigure draws each sample's leave-one-out subspace angle in
+// input order, with the 95th percentile of the bootstrap subspace angles;
+// samples beyond their own yardstick (analysis.InfluenceLimits) are marked
+// and named, most influential first.
+func influenceFigure(res *analysis.Result) drawing {
+	inf := res.Samples.Influence
+	n := len(inf.Angle)
+	pl := newPlot("Influence of each sample on the retained subspace", "sample (input order)", "angle without the sample (°)")
+	pl.Add(guides{})
+	pl.X.Tick.Marker = integerTicks{}
+	if lim := analysis.InfluenceLimit(res.Stability); isFinite(lim) {
+		pl.Add(refLine{at: lim, style: lineStyle(accent95, 1, 4, 2), label: "bootstrap 95th percentile"})
+	}
+	var flagged []int
+	var ix, iy, fx, fy []float64
+	x := make([]float64, n)
+	for i, a := range inf.Angle {
+		x[i] = float64(i + 1)
+		if i < len(inf.Limit) && a > inf.Limit[i] {
+			flagged = append(flagged, i)
+			fx, fy = append(fx, x[i]), append(fy, a)
+		} else {
+			ix, iy = append(ix, x[i]), append(iy, a)
+		}
+	}
+	slices.SortStableFunc(flagged, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the bootstrap's range")
+	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "turns the model more")
+	if lab := labelPoints(res.Table.IDs, flagged, x, inf.Angle); lab != nil {
+		pl.Add(lab)
+	}
+	pl.Y.Min = 0
 	dr := drawing{plot: pl, w: figWidth, h: figHeight}
 	dr.leaveOut(left+l2, "sample")
 	return dr

@@ -40,6 +40,10 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{jackson1979, author = {Jackson, J. Edward and Mudholkar, Govind S.}, title = {Control procedures for residuals associated with principal component analysis}, journal = {Technometrics}, volume = {21}, number = {3}, pages = {341--349}, year = {1979}}`},
 	"box1954": {Citation: "Box, G. E. P. (1954). Some theorems on quadratic forms applied in the study of analysis of variance problems, I. Annals of Mathematical Statistics 25: 290–302.",
 		BibTeX: `@article{box1954, author = {Box, George E. P.}, title = {Some theorems on quadratic forms applied in the study of analysis of variance problems, {I}. {E}ffect of inequality of variance in the one-way classification}, journal = {Annals of Mathematical Statistics}, volume = {25}, number = {2}, pages = {290--302}, year = {1954}}`},
+	"sidak1967": {Citation: "Šidák, Z. (1967). Rectangular confidence regions for the means of multivariate normal distributions. Journal of the American Statistical Association 62: 626–633.",
+		BibTeX: `@article{sidak1967, author = {{\v{S}}id{\'a}k, Zbyn{\v{e}}k}, title = {Rectangular confidence regions for the means of multivariate normal distributions}, journal = {Journal of the American Statistical Association}, volume = {62}, number = {318}, pages = {626--633}, year = {1967}}`},
+	"bjorck1973": {Citation: "Björck, Å. & Golub, G. H. (1973). Numerical methods for computing angles between linear subspaces. Mathematics of Computation 27: 579–594.",
+		BibTeX: `@article{bjorck1973, author = {Bj{\"o}rck, {\AA}ke and Golub, Gene H.}, title = {Numerical methods for computing angles between linear subspaces}, journal = {Mathematics of Computation}, volume = {27}, number = {123}, pages = {579--594}, year = {1973}}`},
 	"hoaglin1978": {Citation: "Hoaglin, D. C. & Welsch, R. E. (1978). The hat matrix in regression and ANOVA. The American Statistician 32: 17–22.",
 		BibTeX: `@article{hoaglin1978, author = {Hoaglin, David C. and Welsch, Roy E.}, title = {The hat matrix in regression and {ANOVA}}, journal = {The American Statistician}, volume = {32}, number = {1}, pages = {17--22}, year = {1978}}`},
 	"bartlett1950": {Citation: "Bartlett, M. S. (1950). Tests of significance in factor analysis. British Journal of Psychology, Statistical Section 3: 77–85.",
@@ -211,8 +215,13 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 		fmt.Fprintf(&b, ", Q residuals against Box's (1954) χ² approximation (%s and %s), as the Jackson & Mudholkar (1979) formula is undefined for these eigenvalues", g4(l.Q95), g4(l.Q99))
 		c.cite("box1954", "jackson1979")
 	}
-	fmt.Fprintf(&b, ", and leverage above 3(k + 1)/n = %s (Hoaglin & Welsch 1978). ", g4(l.Leverage))
-	c.cite("hoaglin1978")
+	fmt.Fprintf(&b, ", judged family-wise with Šidák's (1967) correction for the %d samples at α = %g (T² %s, Q %s) and a binomial tail test of the count beyond the 95 %% limit. ",
+		res.Decomp.Rows, analysis.FamilyAlpha, g4(l.T2Family), g4(l.QFamily))
+	c.cite("sidak1967")
+	if inf := res.Samples.Influence; inf.Angle != nil {
+		b.WriteString("Each sample's influence is the largest principal angle (Björck & Golub 1973) between the retained subspace and the one refitted without that sample, preprocessing included, computed exactly for every sample. ")
+		c.cite("bjorck1973")
+	}
 
 	// Adequacy.
 	ad := res.Adequacy

@@ -98,6 +98,7 @@ type ScoresBlock struct {
 type OutliersBlock struct {
 	Limits    string
 	Figure    Figure
+	Influence *Figure // nil when influence was not computed
 	Header    []string
 	Rows      [][]string
 	Truncated string
@@ -260,6 +261,9 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 		d.figures = append(d.figures, figureJob{d.Scores.Biplot, func() drawing { return biplotFigure(res) }})
 	}
 	d.figures = append(d.figures, figureJob{&d.Outliers.Figure, func() drawing { return t2qFigure(res) }})
+	if d.Outliers.Influence != nil {
+		d.figures = append(d.figures, figureJob{d.Outliers.Influence, func() drawing { return influenceFigure(res) }})
+	}
 	if d.Stability.Enabled {
 		d.figures = append(d.figures,
 			figureJob{&d.Stability.Congruence, func() drawing { return congruenceFigure(res) }},
@@ -546,6 +550,14 @@ func outliersBlock(res *analysis.Result) OutliersBlock {
 		g4(l.T2_95), g4(l.T2_99), qText, g4(l.Leverage))
 	b.Figure = Figure{Stem: "t2-q", Alt: "Hotelling T² against Q residual",
 		Caption: "Hotelling T² (distance within the model) against the Q residual (distance from it), with the 95 % (dashed) and 99 % (solid) limits; samples beyond a 99 % limit are named."}
+	if s.Influence.Angle != nil {
+		yard := "no bootstrap line: the bootstrap was turned off"
+		if !math.IsNaN(analysis.InfluenceLimit(res.Stability)) {
+			yard = "dashed line: the 95th percentile of the bootstrap subspace angles; samples beyond the 95th percentile of the angles of the resamples that drew them are marked and named"
+		}
+		b.Influence = &Figure{Stem: "influence", Alt: "Influence of each sample on the retained subspace",
+			Caption: "Influence: for each sample in input order, the largest principal angle (degrees) between the retained subspace and the one refitted without that sample, preprocessing included; " + yard + "."}
+	}
 	var flagged []int
 	for i := range s.T2 {
 		beyond := s.Beyond(i)

@@ -104,6 +104,15 @@ type LimitsInfo struct {
 	Q99      Number `json:"q_99"`
 	QMethod  string `json:"q_method"`
 	Leverage Number `json:"leverage"`
+	// The family-wise limits of the outlier checks: Šidák's per-sample
+	// confidence (1 − α)^(1/n) for the family-wise α, and T² and Q there.
+	FamilyAlpha      Number `json:"family_alpha"`
+	FamilyConfidence Number `json:"family_confidence"`
+	T2Family         Number `json:"t2_family"`
+	QFamily          Number `json:"q_family"`
+	// Influence95 is the 95th percentile of the bootstrap subspace angles
+	// (degrees), the influence check's yardstick; null without bootstrap.
+	Influence95 Number `json:"influence_p95_deg"`
 }
 
 // StabilityInfo summarises the bootstrap; null when it did not run.
@@ -283,6 +292,12 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			Q99:      Number(lim.Q99),
 			QMethod:  string(lim.QMethod),
 			Leverage: Number(lim.Leverage),
+
+			FamilyAlpha:      Number(analysis.FamilyAlpha),
+			FamilyConfidence: Number(lim.FamilyConf),
+			T2Family:         Number(lim.T2Family),
+			QFamily:          Number(lim.QFamily),
+			Influence95:      Number(analysis.InfluenceLimit(res.Stability)),
 		},
 		Stability: stabilityInfo(res),
 		Review:    reviewInfo(audit.Review, results),

@@ -102,14 +102,33 @@ func VarianceRows(res *analysis.Result) [][]string {
 	return rows
 }
 
-// writeSamples writes samples.csv: per sample T², Q, leverage and the
-// limits it passes (e.g. "t2-99 q-95"; empty when none).
+// writeSamples writes samples.csv: per sample T², Q, leverage, the limits
+// it passes (e.g. "t2-99 q-95"; empty when none), and its influence: the
+// angle in degrees by which leaving it out turns the retained subspace,
+// and the largest relative change of a retained eigenvalue, signed (both
+// empty when influence was not computed).
 func writeSamples(path string, res *analysis.Result) error {
 	s := res.Samples
-	header := []string{IDHeader(res.Table), "t2", "q", "leverage", "beyond"}
+	header := []string{IDHeader(res.Table), "t2", "q", "leverage", "beyond", "influence_deg", "eigenvalue_change"}
+	inf := s.Influence
 	return streamCSV(path, header, len(res.Table.IDs), func(i int, dst []string) []string {
-		return append(dst, res.Table.IDs[i], num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " "))
+		angle, change := "", ""
+		if inf.Angle != nil {
+			angle, change = num(inf.Angle[i]), num(largestChange(inf.EigenChange[i]))
+		}
+		return append(dst, res.Table.IDs[i], num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " "), angle, change)
 	})
+}
+
+// largestChange returns the change of largest magnitude, with its sign.
+func largestChange(c []float64) float64 {
+	best := 0.0
+	for _, x := range c {
+		if math.Abs(x) > math.Abs(best) || math.IsNaN(x) {
+			best = x
+		}
+	}
+	return best
 }
 
 // Percentages returns each eigenvalue as a percentage of their sum.

@@ -60,7 +60,7 @@ func TestDemoWritesAllOutputs(t *testing.T) {
 		t.Errorf("loadings.csv: header %v, %d rows", loadings[0], len(loadings)-1)
 	}
 	samples := readCSV(t, filepath.Join(out, "samples.csv"))
-	if strings.Join(samples[0], ",") != "sample_id,t2,q,leverage,beyond" || len(samples) != 241 {
+	if strings.Join(samples[0], ",") != "sample_id,t2,q,leverage,beyond,influence_deg,eigenvalue_change" || len(samples) != 241 {
 		t.Errorf("samples.csv: header %v, %d rows", samples[0], len(samples)-1)
 	}
 	var summary map[string]any
