@@ -16,7 +16,7 @@ var loadingStability = Check{
 			return Result{Status: Skip, Limit: limit, Message: "Not computed: the bootstrap was turned off (--bootstrap 0)."}
 		}
 		if st.Used == 0 {
-			return Result{Status: Skip, Limit: limit, Message: fmt.Sprintf("All %d resamples were degenerate (some variable took a single value in each), so stability cannot be judged.", st.Resamples)}
+			return Result{Status: Skip, Limit: limit, Message: fmt.Sprintf("All %d resamples were degenerate (their decomposition failed), so stability cannot be judged.", st.Resamples)}
 		}
 		r := Result{Limit: limit, Status: Pass}
 		worst, worstPC := 1.0, 0
@@ -38,8 +38,11 @@ var loadingStability = Check{
 		}
 		r.Value = worst
 		used := fmt.Sprintf("%d bootstrap resamples", st.Used)
+		if st.ConstantResamples > 0 {
+			used += fmt.Sprintf(" (in %d a variable was constant and entered with zero variance)", st.ConstantResamples)
+		}
 		if st.Degenerate > 0 {
-			used += fmt.Sprintf(" (%d more skipped: a variable was constant in them)", st.Degenerate)
+			used += fmt.Sprintf(" (%d more skipped: their decomposition failed)", st.Degenerate)
 		}
 		r.Message = fmt.Sprintf("Lowest 5th-percentile congruence with the reference loadings φ₅ = %.3f (PC%d) over %s. Per component: %s.", worst, worstPC+1, used, strings.Join(parts, "; "))
 		switch r.Status {

@@ -580,7 +580,7 @@ func stabilityBlock(res *analysis.Result) StabilityBlock {
 	if st.Used == 0 {
 		reason := "The bootstrap was turned off (--bootstrap 0)."
 		if st.Resamples > 0 {
-			reason = "Every resample was degenerate (some variable was constant in it)."
+			reason = "Every resample was degenerate (its decomposition failed)."
 		}
 		return StabilityBlock{Skipped: reason}
 	}
@@ -588,8 +588,11 @@ func stabilityBlock(res *analysis.Result) StabilityBlock {
 		Summary: fmt.Sprintf("%d bootstrap resamples of the whole pipeline (rows drawn with replacement, preprocessing redone in each)", st.Used),
 		Header:  []string{"Component", "φ median", "φ 5th pct.", "Procrustes φ median", "Procrustes φ 5th pct."},
 	}
+	if st.ConstantResamples > 0 {
+		b.Summary += fmt.Sprintf("; in %d of them a variable took a single value and entered with zero variance (its centred values are all zero)", st.ConstantResamples)
+	}
 	if st.Degenerate > 0 {
-		b.Summary += fmt.Sprintf("; %d more were skipped because a variable was constant in them", st.Degenerate)
+		b.Summary += fmt.Sprintf("; %d more were skipped because their decomposition failed", st.Degenerate)
 	}
 	b.Summary += "."
 	for a, c := range st.Components {

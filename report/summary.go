@@ -108,11 +108,14 @@ type LimitsInfo struct {
 
 // StabilityInfo summarises the bootstrap; null when it did not run.
 type StabilityInfo struct {
-	Resamples   int                  `json:"resamples"`
-	Used        int                  `json:"used"`
-	Degenerate  int                  `json:"degenerate"`
-	Components  []ComponentStability `json:"components"`
-	Eigenvalues []EigenInterval      `json:"eigenvalues"`
+	Resamples  int `json:"resamples"`
+	Used       int `json:"used"`
+	Degenerate int `json:"degenerate"`
+	// ConstantResamples counts used resamples in which a variable was
+	// constant (kept, with that variable at zero variance).
+	ConstantResamples int                  `json:"constant_resamples"`
+	Components        []ComponentStability `json:"components"`
+	Eigenvalues       []EigenInterval      `json:"eigenvalues"`
 }
 
 type ComponentStability struct {
@@ -138,7 +141,7 @@ func stabilityInfo(res *analysis.Result) *StabilityInfo {
 	if st.Used == 0 {
 		return nil
 	}
-	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate}
+	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate, ConstantResamples: st.ConstantResamples}
 	for a, c := range st.Components {
 		info.Components = append(info.Components, ComponentStability{
 			Component: componentName(a), CongruenceMedian: Number(c.CongruenceMedian), CongruenceP5: Number(c.CongruenceP5),
