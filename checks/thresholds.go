@@ -31,7 +31,9 @@ const (
 	MissingShareLimit = 0.05
 	// MinSamplesPerVariable: n ≥ 5p (common practice; e.g. Gorsuch 1983,
 	// Factor Analysis, 2nd ed., recommends at least five subjects per
-	// variable).
+	// variable). Information only: sample-size never warns on it, since no
+	// fixed ratio predicts stable components (MacCallum, Widaman, Zhang &
+	// Hong 1999, Psychol. Methods 4:84–99).
 	MinSamplesPerVariable = 5
 	// VarianceRatioLimit: without scaling, a variable whose variance exceeds
 	// another's by more than 100× dominates the first component (common
