@@ -78,6 +78,16 @@ const (
 	CongruenceFail = 0.85
 )
 
+// The retained subspace, judged by the Procrustes-aligned congruence
+// (Schönemann 1966 rotation of the retained block; then Tucker's φ per
+// component), against the same bands of Lorenzo-Seva & ten Berge (2006).
+// See the README's calibration figures for the rate at which they alarm on
+// clean simulated tables.
+const (
+	StableSubspacePass = CongruencePass
+	StableSubspaceFail = CongruenceFail
+)
+
 // Review mode.
 const (
 	// SubspacePass and SubspaceWarn bound the largest principal angle (in
