@@ -29,6 +29,14 @@ func directResample(t *testing.T, x *mat.Dense, counts []int32, scaling Scaling,
 	if err != nil {
 		t.Fatal(err)
 	}
+	return directPipeline(t, xb, ref, scaling, k)
+}
+
+// directPipeline preprocesses xb with its own means and scales, except that
+// a variable constant in xb keeps the divisor of ref, and decomposes it.
+func directPipeline(t *testing.T, xb *mat.Dense, ref Preprocessing, scaling Scaling, k int) ([]float64, *mat.Dense) {
+	t.Helper()
+	_, p := xb.Dims()
 	pp, err := FitPreprocessing(xb, TransformNone, scaling)
 	if err != nil {
 		t.Fatal(err)

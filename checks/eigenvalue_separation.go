@@ -20,7 +20,7 @@ var eigenvalueSeparation = Check{
 	judge: func(in Input) Result {
 		res := in.Run
 		mix := findAxisMixing(res)
-		r := Result{Value: len(mix.northPairs) + len(mix.rotating), Limit: "gap > δλ₁ + δλ₂ for retained neighbours; sign-aligned φ₅ ≥ 0.95 where the subspace is stable"}
+		r := Result{Value: len(mix.northPairs) + len(mix.rotating), Limit: fmt.Sprintf("gap > δλ₁ + δλ₂ for retained neighbours; sign-aligned φ₅ ≥ %g where the subspace is stable", AxisMixingLimit)}
 		if len(res.Separation) == 0 {
 			r.Status = Skip
 			r.Message = "Every component is retained, so there is no neighbouring eigenvalue to compare with."
@@ -54,7 +54,7 @@ var eigenvalueSeparation = Check{
 			parts = append(parts, "sampling-error intervals overlap for "+strings.Join(pairs, "; "))
 		}
 		if len(mix.rotating) > 0 {
-			parts = append(parts, fmt.Sprintf("under the bootstrap %s %s within a stable subspace (sign-aligned φ₅ < %g, Procrustes φ₅ ≥ %g)", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), CongruencePass, StableSubspacePass))
+			parts = append(parts, fmt.Sprintf("under the bootstrap %s %s within a stable subspace (sign-aligned φ₅ < %g, Procrustes φ₅ ≥ %g)", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), AxisMixingLimit, StableSubspacePass))
 		}
 		r.Message = "Nearly equal eigenvalues: " + strings.Join(parts, "; and ") + ". Those components are not separate axes: read them together as a plane (or space) and do not interpret their individual loadings." + boundary
 		return r

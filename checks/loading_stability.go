@@ -62,7 +62,15 @@ var loadingStability = Check{
 		if len(mix.rotating) > 0 {
 			r.Message += fmt.Sprintf(" %s %s within the stable subspace (see eigenvalue-separation): read those components together, not as separate axes.", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)))
 		} else if r.Status == Pass {
-			r.Message += " Each retained axis is stable on its own too (sign-aligned φ₅ ≥ 0.95), so its loadings can be interpreted."
+			lowest := 1.0
+			for _, c := range st.Components {
+				lowest = min(lowest, c.CongruenceP5)
+			}
+			if lowest >= CongruencePass {
+				r.Message += fmt.Sprintf(" Each retained axis is stable on its own too (sign-aligned φ₅ ≥ %g), so its loadings can be interpreted.", CongruencePass)
+			} else {
+				r.Message += fmt.Sprintf(" Individual axes are at least fairly similar across resamples (sign-aligned φ₅ ≥ %g): interpret their larger loadings, with their intervals.", AxisMixingLimit)
+			}
 		}
 		return r
 	},

@@ -11,7 +11,7 @@ import (
 // axes: pairs of retained neighbours whose eigenvalues overlap by North's
 // rule, and components whose sign-aligned bootstrap congruence is low while
 // the Procrustes-aligned one is high (the axes rotate within a stable
-// subspace). Both are one finding with one cause, nearly equal eigenvalues,
+// subspace: sign-aligned φ₅ below AxisMixingLimit). Both are one finding with one cause, nearly equal eigenvalues,
 // and eigenvalue-separation alone raises it; loading-stability refers to it.
 type axisMixing struct {
 	northPairs []analysis.Separation // both retained, intervals overlap
@@ -28,7 +28,7 @@ func findAxisMixing(res *analysis.Result) axisMixing {
 	st := res.Stability
 	if st.Used > 0 && res.Retained > 1 {
 		for a, c := range st.Components {
-			if c.CongruenceP5 < CongruencePass && c.ProcrustesP5 >= StableSubspacePass {
+			if c.CongruenceP5 < AxisMixingLimit && c.ProcrustesP5 >= StableSubspacePass {
 				m.rotating = append(m.rotating, a)
 			}
 		}
