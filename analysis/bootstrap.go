@@ -50,6 +50,14 @@ type Stability struct {
 	// component's eigenvalue and share of the variance (in percent).
 	Eigenvalues []Interval
 	Percent     []Interval
+	// EigenvaluesBCa and PercentBCa hold 95 % BCa intervals of the same
+	// (BCaInterval, acceleration from the leave-one-out eigenvalues): they
+	// correct the percentile intervals for the bias of sample eigenvalues
+	// (the largest overestimated, the smallest underestimated), which puts
+	// the estimate near one edge of its percentile interval. NaN where
+	// undefined, or when the leave-one-out work exceeds MaxJackknifeWork.
+	EigenvaluesBCa []Interval
+	PercentBCa     []Interval
 }
 
 // ComponentStability summarises Tucker's congruence coefficient between the
@@ -168,7 +176,50 @@ func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Prog
 		return st
 	}
 	st.summarise(b, results, counts, used, tall, workers)
+	jk, jkTotal := jackknifeEigenvalues(r, threads)
+	st.bcaIntervals(r, results, used, jk, jkTotal)
 	return st
+}
+
+// BootstrapLevel is the level of every bootstrap interval.
+const BootstrapLevel = 0.95
+
+// bcaIntervals fills EigenvaluesBCa and PercentBCa from the used resamples
+// and the leave-one-out eigenvalues jk (nil: no acceleration available, so
+// the intervals are left undefined).
+func (st *Stability) bcaIntervals(r *Result, results []resampleResult, used []int, jk [][]float64, jkTotal []float64) {
+	m := len(r.Decomp.Eigenvalues)
+	refTotal := 0.0
+	for _, l := range r.Decomp.Eigenvalues {
+		refTotal += l
+	}
+	st.EigenvaluesBCa = make([]Interval, m)
+	st.PercentBCa = make([]Interval, m)
+	reps := make([]float64, len(used))
+	pct := make([]float64, len(used))
+	var jack, jackPct []float64
+	if jk != nil {
+		jack, jackPct = make([]float64, len(jk)), make([]float64, len(jk))
+	}
+	for a := 0; a < m; a++ {
+		if jk == nil {
+			st.EigenvaluesBCa[a] = Interval{math.NaN(), math.NaN()}
+			st.PercentBCa[a] = Interval{math.NaN(), math.NaN()}
+			continue
+		}
+		for x, i := range used {
+			reps[x] = results[i].eigen[a]
+			pct[x] = 100 * results[i].eigen[a] / results[i].total
+		}
+		for i := range jk {
+			jack[i] = jk[i][a]
+			jackPct[i] = 100 * jk[i][a] / jkTotal[i]
+		}
+		lo, hi := BCaInterval(r.Decomp.Eigenvalues[a], reps, jack, BootstrapLevel)
+		st.EigenvaluesBCa[a] = Interval{lo, hi}
+		lo, hi = BCaInterval(100*r.Decomp.Eigenvalues[a]/refTotal, pct, jackPct, BootstrapLevel)
+		st.PercentBCa[a] = Interval{lo, hi}
+	}
 }
 
 func newBootstrapper(r *Result) *bootstrapper {
