@@ -54,7 +54,7 @@ var eigenvalueSeparation = Check{
 			parts = append(parts, "sampling-error intervals overlap for "+strings.Join(pairs, "; "))
 		}
 		if len(mix.rotating) > 0 {
-			parts = append(parts, fmt.Sprintf("under the bootstrap %s %s within a stable subspace (sign-aligned φ₅ < %g, Procrustes φ₅ ≥ %g)", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), AxisMixingLimit, StableSubspacePass))
+			parts = append(parts, fmt.Sprintf("under the bootstrap %s %s within a stable subspace (sign-aligned φ₅ < %g, Procrustes φ₅ ≥ %g)", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), AxisMixingLimit, CongruencePass))
 		}
 		r.Message = "Nearly equal eigenvalues: " + strings.Join(parts, "; and ") + ". Those components are not separate axes: read them together as a plane (or space) and do not interpret their individual loadings." + boundary
 		return r

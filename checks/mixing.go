@@ -28,7 +28,7 @@ func findAxisMixing(res *analysis.Result) axisMixing {
 	st := res.Stability
 	if st.Used > 0 && res.Retained > 1 {
 		for a, c := range st.Components {
-			if c.CongruenceP5 < AxisMixingLimit && c.ProcrustesP5 >= StableSubspacePass {
+			if c.CongruenceP5 < AxisMixingLimit && c.ProcrustesP5 >= CongruencePass {
 				m.rotating = append(m.rotating, a)
 			}
 		}

@@ -80,11 +80,15 @@ const (
 
 // The retained subspace, judged by the Procrustes-aligned congruence
 // (Schönemann 1966 rotation of the retained block; then Tucker's φ per
-// component), against the same bands of Lorenzo-Seva & ten Berge (2006).
-// See the README's calibration figures for the rate at which they alarm on
-// clean simulated tables.
+// component), against the lower end of "fair similarity", 0.85
+// (Lorenzo-Seva & ten Berge 2006): warn when the 5th percentile over the
+// resamples falls below it, fail when the median does (a typical resample
+// is not even fairly similar). Holding the 5th percentile to 0.95 ("equal")
+// instead alarmed on 15 % of clean simulated tables, nearly all at
+// n ≤ 2–5p with a correctly retained count (φ₅ 0.85–0.95 there): sampling
+// wobble of a component that is there, not instability.
 const (
-	StableSubspacePass = CongruencePass
+	StableSubspaceWarn = CongruenceFail
 	StableSubspaceFail = CongruenceFail
 	// AxisMixingLimit: within a stable subspace, a retained axis whose
 	// sign-aligned φ₅ falls below the lower end of "fair similarity"

@@ -134,6 +134,12 @@ type EigenInterval struct {
 	Percent       Number `json:"percent"`
 	PercentCILow  Number `json:"percent_ci_low"`
 	PercentCIHigh Number `json:"percent_ci_high"`
+	// BCa intervals (Efron 1987) beside the percentile ones above; null
+	// where undefined.
+	BCaLow         Number `json:"bca_low"`
+	BCaHigh        Number `json:"bca_high"`
+	PercentBCaLow  Number `json:"percent_bca_low"`
+	PercentBCaHigh Number `json:"percent_bca_high"`
 }
 
 func stabilityInfo(res *analysis.Result) *StabilityInfo {
@@ -153,9 +159,22 @@ func stabilityInfo(res *analysis.Result) *StabilityInfo {
 		info.Eigenvalues = append(info.Eigenvalues, EigenInterval{
 			Component: componentName(a), Eigenvalue: Number(l), CILow: Number(st.Eigenvalues[a].Low), CIHigh: Number(st.Eigenvalues[a].High),
 			Percent: Number(pct[a]), PercentCILow: Number(st.Percent[a].Low), PercentCIHigh: Number(st.Percent[a].High),
+			BCaLow: intervalEnd(st.EigenvaluesBCa, a, false), BCaHigh: intervalEnd(st.EigenvaluesBCa, a, true),
+			PercentBCaLow: intervalEnd(st.PercentBCa, a, false), PercentBCaHigh: intervalEnd(st.PercentBCa, a, true),
 		})
 	}
 	return info
+}
+
+// intervalEnd returns one end of ivs[a], or NaN (null) when absent.
+func intervalEnd(ivs []analysis.Interval, a int, high bool) Number {
+	if a >= len(ivs) {
+		return Number(math.NaN())
+	}
+	if high {
+		return Number(ivs[a].High)
+	}
+	return Number(ivs[a].Low)
 }
 
 // Number is a float64 in summary.json. JSON has no NaN or infinity, so a
