@@ -59,6 +59,7 @@ type Summary struct {
 	Components ComponentsInfo  `json:"components"`
 	Limits     LimitsInfo      `json:"limits"`
 	Stability  *StabilityInfo  `json:"stability"`
+	Adequacy   AdequacyInfo    `json:"adequacy"`
 	Review     *ReviewInfo     `json:"review,omitempty"`
 	Checks     []checks.Result `json:"checks"`
 	Verdict    checks.Status   `json:"verdict"`
@@ -104,6 +105,74 @@ type LimitsInfo struct {
 	Q99      Number `json:"q_99"`
 	QMethod  string `json:"q_method"`
 	Leverage Number `json:"leverage"`
+}
+
+// AdequacyInfo holds the numbers behind the adequacy and separation checks.
+type AdequacyInfo struct {
+	KMO        KMOInfo          `json:"kmo"`
+	Bartlett   BartlettInfo     `json:"bartlett"`
+	Separation []SeparationInfo `json:"separation"`
+}
+
+// KMOInfo is the Kaiser–Meyer–Olkin measure; numbers are null when it was
+// not computed (SkipReason says why).
+type KMOInfo struct {
+	Overall     Number        `json:"overall"`
+	PerVariable []VariableKMO `json:"per_variable"`
+	SkipReason  string        `json:"skip_reason,omitempty"`
+}
+
+type VariableKMO struct {
+	Variable string `json:"variable"`
+	KMO      Number `json:"kmo"`
+}
+
+// BartlettInfo is Bartlett's test of sphericity.
+type BartlettInfo struct {
+	Chi2       Number `json:"chi2"`
+	DF         int    `json:"df"`
+	P          Number `json:"p"`
+	Singular   bool   `json:"singular"`
+	SkipReason string `json:"skip_reason,omitempty"`
+}
+
+// SeparationInfo is North's rule for one retained component and its next
+// neighbour: δλ = λ·√(2/n) for each, and whether λ ± δλ overlap.
+type SeparationInfo struct {
+	Component    string `json:"component"`
+	Eigenvalue   Number `json:"eigenvalue"`
+	Delta        Number `json:"delta"`
+	Next         string `json:"next"`
+	NextDelta    Number `json:"next_delta"`
+	Overlap      bool   `json:"overlap"`
+	BothRetained bool   `json:"both_retained"`
+}
+
+func adequacyInfo(res *analysis.Result) AdequacyInfo {
+	a := res.Adequacy
+	nan := Number(math.NaN())
+	info := AdequacyInfo{
+		KMO:        KMOInfo{Overall: nan, PerVariable: []VariableKMO{}, SkipReason: a.KMO.SkipReason},
+		Bartlett:   BartlettInfo{Chi2: nan, P: nan, SkipReason: a.Bartlett.SkipReason},
+		Separation: []SeparationInfo{},
+	}
+	if a.KMO.Computed {
+		info.KMO.Overall = Number(a.KMO.Overall)
+		for j, v := range a.KMO.PerVariable {
+			info.KMO.PerVariable = append(info.KMO.PerVariable, VariableKMO{Variable: res.Table.Variables[j], KMO: Number(v)})
+		}
+	}
+	if a.Bartlett.Computed {
+		b := a.Bartlett
+		info.Bartlett = BartlettInfo{Chi2: Number(b.Chi2), DF: b.DF, P: Number(b.P), Singular: b.Singular}
+	}
+	for _, s := range res.Separation {
+		info.Separation = append(info.Separation, SeparationInfo{
+			Component: componentName(s.A), Eigenvalue: Number(res.Decomp.Eigenvalues[s.A]), Delta: Number(s.DeltaA),
+			Next: componentName(s.A + 1), NextDelta: Number(s.DeltaB), Overlap: s.Overlap, BothRetained: s.BothRetained,
+		})
+	}
+	return info
 }
 
 // StabilityInfo summarises the bootstrap; null when it did not run.
@@ -307,6 +376,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			Leverage: Number(lim.Leverage),
 		},
 		Stability: stabilityInfo(res),
+		Adequacy:  adequacyInfo(res),
 		Review:    reviewInfo(audit.Review, results),
 		Checks:    jsonChecks(results),
 		Verdict:   checks.Verdict(results),
