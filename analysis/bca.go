@@ -22,8 +22,9 @@ import (
 // and the interval is the α₁ and α₂ percentiles of the replicates, linearly
 // interpolated (the conventions of scipy.stats.bootstrap, method 'BCa',
 // which a test reproduces). The percentile interval is the case z₀ = a = 0.
-// It returns NaN, NaN when the interval is undefined: no replicates, or an
-// estimate outside the range of every replicate (z₀ infinite).
+// It returns NaN, NaN when the interval is undefined: no replicates, an
+// estimate outside the range of every replicate (z₀ infinite), or
+// jackknife values that are not finite.
 func BCaInterval(estimate float64, replicates []float64, jackknife []float64, level float64) (lo, hi float64) {
 	b := len(replicates)
 	if b == 0 || !(level > 0 && level < 1) {
@@ -52,6 +53,9 @@ func BCaInterval(estimate float64, replicates []float64, jackknife []float64, le
 		return n01.CDF(z0 + num/(1-a*num))
 	}
 	a1, a2 := adjust(n01.Quantile(alpha)), adjust(n01.Quantile(1-alpha))
+	if math.IsNaN(a1) || math.IsNaN(a2) { // non-finite jackknife values
+		return math.NaN(), math.NaN()
+	}
 	return percentile(sorted, 100*a1), percentile(sorted, 100*a2)
 }
 

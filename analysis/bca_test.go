@@ -63,9 +63,14 @@ func TestBCaIntervalEdges(t *testing.T) {
 		{"no replicates", 5, nil, 0.95, true, 0, 0},
 		{"estimate below every replicate", 0, reps, 0.95, true, 0, 0},
 		{"level out of range", 5, reps, 1, true, 0, 0},
+		{"NaN jackknife", 5, reps, 0.95, true, 0, 0},
 	}
 	for _, c := range cases {
-		lo, hi := BCaInterval(c.estimate, c.reps, []float64{-1, 0, 1}, c.level)
+		jack := []float64{-1, 0, 1}
+		if c.name == "NaN jackknife" {
+			jack = []float64{-1, math.NaN(), 1}
+		}
+		lo, hi := BCaInterval(c.estimate, c.reps, jack, c.level)
 		if c.nan {
 			if !math.IsNaN(lo) || !math.IsNaN(hi) {
 				t.Errorf("%s: [%g, %g], want NaN", c.name, lo, hi)
