@@ -26,9 +26,17 @@ const DefaultBootstrap = 500
 // 1966, Psychometrika 31:1–10), which ignores how variance is shared out
 // within the retained subspace.
 type Stability struct {
-	Resamples  int // requested
-	Used       int // used: resamples in which no variable was constant
-	Degenerate int // skipped: some variable took one value only in the resample
+	Resamples int // requested
+	Used      int // used: every resample whose decomposition succeeded
+	// Degenerate counts resamples skipped because their decomposition
+	// failed or a retained eigenvalue was zero; with real data it is 0.
+	Degenerate int
+	// ConstantResamples counts the used resamples in which some variable
+	// took a single value. They are kept: that variable's centred column is
+	// identically zero in the resample, so it enters with zero variance
+	// whatever its divisor (the reference divisor, see scaleFactor), and
+	// its loadings there are zero.
+	ConstantResamples int
 
 	Components []ComponentStability // per retained component
 	// Congruence and Procrustes hold, per retained component, Tucker's φ of
@@ -47,6 +55,14 @@ type Stability struct {
 	// reference retained subspace and the resample's: how far resampling
 	// turns the model, the yardstick of the influence check.
 	SubspaceAngles []float64
+	// EigenvaluesBCa and PercentBCa hold 95 % BCa intervals of the same
+	// (BCaInterval, acceleration from the leave-one-out eigenvalues): they
+	// correct the percentile intervals for the bias of sample eigenvalues
+	// (the largest overestimated, the smallest underestimated), which puts
+	// the estimate near one edge of its percentile interval. NaN where
+	// undefined, or when the leave-one-out work exceeds InfluenceBudget.
+	EigenvaluesBCa []Interval
+	PercentBCa     []Interval
 }
 
 // ComponentStability summarises Tucker's congruence coefficient between the
@@ -84,6 +100,7 @@ func TuckerCongruence(x, y []float64) float64 {
 // resampleResult is what one resample contributes.
 type resampleResult struct {
 	ok         bool
+	constant   bool      // some variable was constant in the resample
 	eigen      []float64 // all m eigenvalues
 	total      float64   // total variance of the resample
 	phi, procr []float64 // per retained component
@@ -155,6 +172,9 @@ func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Prog
 	for i, res := range results {
 		if res.ok {
 			used = append(used, i)
+			if res.constant {
+				st.ConstantResamples++
+			}
 		}
 	}
 	st.Used, st.Degenerate = len(used), resamples-len(used)
@@ -162,7 +182,53 @@ func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Prog
 		return st
 	}
 	st.summarise(b, results, counts, used, tall, workers)
+	inf := r.Samples.Influence // exact leave-one-out eigenvalues, or nil
+	st.bcaIntervals(r, results, used, inf.Eigenvalues, inf.Total)
 	return st
+}
+
+// BootstrapLevel is the level of every bootstrap interval.
+const BootstrapLevel = 0.95
+
+// bcaIntervals fills EigenvaluesBCa and PercentBCa from the used resamples
+// and the leave-one-out eigenvalues jk (nil: no acceleration available, so
+// the intervals are left undefined).
+func (st *Stability) bcaIntervals(r *Result, results []resampleResult, used []int, jk [][]float64, jkTotal []float64) {
+	m := len(r.Decomp.Eigenvalues)
+	refTotal := 0.0
+	for _, l := range r.Decomp.Eigenvalues {
+		refTotal += l
+	}
+	st.EigenvaluesBCa = make([]Interval, m)
+	st.PercentBCa = make([]Interval, m)
+	reps := make([]float64, len(used))
+	pct := make([]float64, len(used))
+	var jack, jackPct []float64
+	if jk != nil {
+		jack, jackPct = make([]float64, len(jk)), make([]float64, len(jk))
+	}
+	for a := 0; a < m; a++ {
+		if jk == nil {
+			st.EigenvaluesBCa[a] = Interval{math.NaN(), math.NaN()}
+			st.PercentBCa[a] = Interval{math.NaN(), math.NaN()}
+			continue
+		}
+		for x, i := range used {
+			reps[x] = results[i].eigen[a]
+			pct[x] = 100 * results[i].eigen[a] / results[i].total
+		}
+		for i := range jk {
+			jack[i] = 0 // without a row, wide data have one eigenvalue fewer
+			if a < len(jk[i]) {
+				jack[i] = jk[i][a]
+			}
+			jackPct[i] = 100 * jack[i] / jkTotal[i]
+		}
+		lo, hi := BCaInterval(r.Decomp.Eigenvalues[a], reps, jack, BootstrapLevel)
+		st.EigenvaluesBCa[a] = Interval{lo, hi}
+		lo, hi = BCaInterval(100*r.Decomp.Eigenvalues[a]/refTotal, pct, jackPct, BootstrapLevel)
+		st.PercentBCa[a] = Interval{lo, hi}
+	}
 }
 
 func newBootstrapper(r *Result) *bootstrapper {
@@ -245,31 +311,39 @@ func grow(s []float64, n int) []float64 {
 
 // scaleFactor returns g_j, the factor that turns a reference-preprocessed
 // column into the resample's own preprocessing, given the resample's
-// standard deviation and range of that column in reference units; ok is
-// false when the column is constant in the resample.
+// standard deviation and range of that column in reference units; constant
+// is true when the column takes one value in the resample.
 //
 // With z = (x − μ)/c: unit scaling divides by sd_b(x) = c·sd_b(z), so
 // g = 1/sd_b(z); Pareto divides by √(c·sd_b(z)), so g = √(c/sd_b(z)); range
 // divides by c·range_b(z), so g = 1/range_b(z); none leaves g = 1.
-func (b *bootstrapper) scaleFactor(j int, sd, rng float64) (float64, bool) {
+//
+// A constant column has no scale of its own in the resample. Its centred
+// values are all zero, so any divisor gives the same matrix: the resample
+// keeps the reference divisor c_j for it (g would be 1), and g = 0 is
+// returned so that the rounding left by centring (x̄ subtracted from equal
+// values) enters as exact zeros. The resample is kept, not skipped: on a
+// small table with a variable of few distinct values such resamples are
+// common (a third of 500 on a 40-row table), and dropping them would bias
+// the stability summary towards the resamples that happen to spread that
+// variable.
+func (b *bootstrapper) scaleFactor(j int, sd, rng float64) (g float64, constant bool) {
+	// Constancy is judged on the range of the drawn values, which is exact,
+	// not on the standard deviation, which the cross-product path obtains by
+	// cancellation (Σwz² − n·m²) and so carries rounding of about 1e-8·|m|
+	// even when every drawn value is equal.
+	if b.scaling != ScaleNone && rng <= 1e-10*b.refSD[j] {
+		return 0, true
+	}
 	switch b.scaling {
 	case ScaleUnit:
-		if sd <= 1e-10*b.refSD[j] {
-			return 0, false
-		}
-		return 1 / sd, true
+		return 1 / sd, false
 	case ScalePareto:
-		if sd <= 1e-10*b.refSD[j] {
-			return 0, false
-		}
-		return math.Sqrt(b.refScale[j] / sd), true
+		return math.Sqrt(b.refScale[j] / sd), false
 	case ScaleRange:
-		if rng <= 1e-10*b.refSD[j] {
-			return 0, false
-		}
-		return 1 / rng, true
+		return 1 / rng, false
 	}
-	return 1, true
+	return 1, false
 }
 
 // columnRange returns the range of variable j over the rows drawn, in
@@ -295,8 +369,9 @@ func (b *bootstrapper) columnRange(j int, counts []int32) float64 {
 // [from, to): the resample's mean in reference units and its scale factor
 // (see scaleFactor), from the counts, by matrix–vector products with zᵀ and
 // (zᵀ)². weights holds the counts as floats; tmp needs to − from entries.
-// It returns false when a variable is constant in the resample.
-func (b *bootstrapper) resampleScaling(counts []int32, weights []float64, from, to int, means, g, tmp []float64) bool {
+// It returns true when some variable is constant in the resample (its g is
+// then 0, see scaleFactor).
+func (b *bootstrapper) resampleScaling(counts []int32, weights []float64, from, to int, means, g, tmp []float64) (constant bool) {
 	n, rows := b.n, to-from
 	nf := float64(n)
 	w := blas64.Vector{N: n, Inc: 1, Data: weights}
@@ -313,16 +388,14 @@ func (b *bootstrapper) resampleScaling(counts []int32, weights []float64, from, 
 			m := means[j]
 			sd = math.Sqrt(math.Max(tmp[j-from]-nf*m*m, 0) / (nf - 1))
 		}
-		if b.scaling == ScaleRange {
+		if b.scaling != ScaleNone {
 			rng = b.columnRange(j, counts)
 		}
-		gj, ok := b.scaleFactor(j, sd, rng)
-		if !ok {
-			return false
-		}
+		gj, c := b.scaleFactor(j, sd, rng)
 		g[j] = gj
+		constant = constant || c
 	}
-	return true
+	return constant
 }
 
 // tallResample handles n ≥ p through the p×p cross-product of the counts:
@@ -363,17 +436,16 @@ func (b *bootstrapper) tallResample(w *bootWorkspace, counts []int32) resampleRe
 			w.cross[j*p+l] -= nf * w.means[j] * w.means[l]
 		}
 	}
+	constant := false
 	for j := 0; j < p; j++ {
 		sd := math.Sqrt(math.Max(w.cross[j*p+j], 0) / (nf - 1))
 		rng := 0.0
-		if b.scaling == ScaleRange {
+		if b.scaling != ScaleNone {
 			rng = b.columnRange(j, counts)
 		}
-		g, ok := b.scaleFactor(j, sd, rng)
-		if !ok {
-			return resampleResult{}
-		}
+		g, c := b.scaleFactor(j, sd, rng)
 		w.g[j] = g
+		constant = constant || c
 	}
 	total := 0.0
 	for j := 0; j < p; j++ {
@@ -388,7 +460,7 @@ func (b *bootstrapper) tallResample(w *bootWorkspace, counts []int32) resampleRe
 	}
 	w.values = w.eig.Values(grow(w.values, sym.SymmetricDim()))
 	w.eig.VectorsTo(&w.vecs)
-	res := resampleResult{ok: true, total: total / (nf - 1), eigen: make([]float64, b.m)}
+	res := resampleResult{ok: true, constant: constant, total: total / (nf - 1), eigen: make([]float64, b.m)}
 	for a := 0; a < b.m; a++ {
 		res.eigen[a] = math.Max(w.values[p-1-a], 0) / (nf - 1)
 	}
@@ -423,9 +495,7 @@ func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleRe
 	for i, c := range counts {
 		w.weights[i] = float64(c)
 	}
-	if !b.resampleScaling(counts, w.weights, 0, p, w.means, w.g, w.tmp) {
-		return resampleResult{}
-	}
+	constant := b.resampleScaling(counts, w.weights, 0, p, w.means, w.g, w.tmp)
 	var cols int // width of the rows whose Gram matrix is taken
 	if b.scoresAll != nil {
 		// Row space: rows of z are rows of T Vᵀ, so work on T (n × m).
@@ -470,7 +540,7 @@ func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleRe
 	w.values = w.eig.Values(grow(w.values, sym.SymmetricDim()))
 	w.vecs.Reset() // the size changes from resample to resample
 	w.eig.VectorsTo(&w.vecs)
-	res := resampleResult{ok: true, total: total / (nf - 1), eigen: make([]float64, b.m)}
+	res := resampleResult{ok: true, constant: constant, total: total / (nf - 1), eigen: make([]float64, b.m)}
 	for a := 0; a < b.m && a < nu; a++ {
 		res.eigen[a] = math.Max(w.values[nu-1-a], 0) / (nf - 1)
 	}

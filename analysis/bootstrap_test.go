@@ -11,7 +11,9 @@ import (
 )
 
 // directResample preprocesses and decomposes the resampled rows explicitly —
-// the definition the fast paths must reproduce.
+// the definition the fast paths must reproduce. A variable constant in the
+// resample keeps the divisor of the full data (ref), as documented in
+// scaleFactor.
 func directResample(t *testing.T, x *mat.Dense, counts []int32, scaling Scaling, k int) ([]float64, *mat.Dense) {
 	t.Helper()
 	n, p := x.Dims()
@@ -23,9 +25,26 @@ func directResample(t *testing.T, x *mat.Dense, counts []int32, scaling Scaling,
 			r++
 		}
 	}
+	ref, err := FitPreprocessing(x, TransformNone, scaling)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return directPipeline(t, xb, ref, scaling, k)
+}
+
+// directPipeline preprocesses xb with its own means and scales, except that
+// a variable constant in xb keeps the divisor of ref, and decomposes it.
+func directPipeline(t *testing.T, xb *mat.Dense, ref Preprocessing, scaling Scaling, k int) ([]float64, *mat.Dense) {
+	t.Helper()
+	_, p := xb.Dims()
 	pp, err := FitPreprocessing(xb, TransformNone, scaling)
 	if err != nil {
 		t.Fatal(err)
+	}
+	for j := 0; j < p; j++ {
+		if pp.SDs[j] <= 1e-12*ref.SDs[j] {
+			pp.Scales[j] = ref.Scales[j]
+		}
 	}
 	d, err := Decompose(pp.Apply(nil, xb))
 	if err != nil {
@@ -37,10 +56,16 @@ func directResample(t *testing.T, x *mat.Dense, counts []int32, scaling Scaling,
 // Acceptance: each fast path equals direct recomputation to 1e-8, on tall,
 // wide and square data, with every scaling.
 func TestBootstrapFastPathsAreExact(t *testing.T) {
+	// "rare" shapes add a variable that is 0 in all rows but two, so that
+	// some resamples draw it constant (about (1 − 2/n)ⁿ of them: 12 % at
+	// n = 40): those must match the direct definition too.
 	shapes := []struct {
-		name string
-		n, p int
-	}{{"tall", 200, 12}, {"wide", 25, 300}, {"square", 40, 40}}
+		name      string
+		n, p      int
+		rare      bool
+		resamples int
+	}{{"tall", 200, 12, false, 5}, {"wide", 25, 300, false, 5}, {"square", 40, 40, false, 5},
+		{"tall-rare", 40, 8, true, 40}, {"wide-rare", 25, 60, true, 40}}
 	for _, sh := range shapes {
 		for _, sc := range Scalings {
 			name := fmt.Sprintf("%s/%s", sh.name, sc)
@@ -49,17 +74,28 @@ func TestBootstrapFastPathsAreExact(t *testing.T) {
 			// determined in every resample.
 			x, _ := synth.LowRank(rng, sh.n, sh.p, []float64{6, 3, 1.5}, 0.3)
 			synth.Stretch(rng, x)
+			if sh.rare {
+				for i := 0; i < sh.n; i++ {
+					x.Set(i, sh.p-1, 0)
+				}
+				x.Set(3, sh.p-1, 1)
+				x.Set(17, sh.p-1, 1)
+			}
 			res, err := Analyze(TableFromMatrix(name, x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
 			if err != nil {
 				t.Fatal(err)
 			}
 			b := newBootstrapper(res)
 			w := &bootWorkspace{}
-			for i := 0; i < 5; i++ {
+			constant := 0
+			for i := 0; i < sh.resamples; i++ {
 				counts := drawCounts(taskRNG(3, streamBootstrap, i), sh.n)
 				fast := b.resample(w, counts)
 				if !fast.ok {
 					t.Fatalf("%s: resample %d degenerate", name, i)
+				}
+				if fast.constant {
+					constant++
 				}
 				ev, v := directResample(t, x, counts, sc, 3)
 				for a := range fast.eigen {
@@ -90,6 +126,11 @@ func TestBootstrapFastPathsAreExact(t *testing.T) {
 						}
 					}
 				}
+			}
+			// Without scaling no divisor depends on the resample, so
+			// "constant" is never reported there.
+			if sh.rare && sc != ScaleNone && constant == 0 {
+				t.Errorf("%s: no resample drew the rare variable constant; the case is not exercised", name)
 			}
 		}
 	}
@@ -186,6 +227,43 @@ func TestBootstrapDetectsMixingPair(t *testing.T) {
 	}
 	if c[2].CongruenceP5 < 0.95 {
 		t.Errorf("the separate third component should be stable: φ5 %.3f", c[2].CongruenceP5)
+	}
+}
+
+// Acceptance (issue 12): on a 40-row table with a variable of few distinct
+// values, resamples in which it is constant are kept, so the summary rests
+// on all B resamples.
+func TestBootstrapKeepsConstantVariableResamples(t *testing.T) {
+	const n, p, B = 40, 6, 500
+	x, _ := synth.LowRank(synth.RNG(4, 56), n, p, []float64{3, 1.5}, 0.5)
+	for i := 0; i < n; i++ {
+		v := 0.0
+		if i%13 == 0 { // rows 0, 13, 26, 39: a 0/1 variable with four ones
+			v = 1
+		}
+		x.Set(i, p-1, v)
+	}
+	for _, sc := range []Scaling{ScaleUnit, ScalePareto, ScaleRange} {
+		res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}, Bootstrap: B})
+		if err != nil {
+			t.Fatal(err)
+		}
+		st := res.Stability
+		if st.Used != B || st.Degenerate != 0 {
+			t.Errorf("%s: used %d degenerate %d of %d", sc, st.Used, st.Degenerate, B)
+		}
+		// P(no 1 drawn) = (36/40)^40 ≈ 1.5 %: expect about 7 of 500.
+		if st.ConstantResamples < 1 || st.ConstantResamples > 25 {
+			t.Errorf("%s: %d resamples with a constant variable, expected about 7", sc, st.ConstantResamples)
+		}
+		if len(st.Congruence[0]) != B {
+			t.Errorf("%s: congruence over %d resamples, want %d", sc, len(st.Congruence[0]), B)
+		}
+		for a, iv := range st.Eigenvalues {
+			if math.IsNaN(iv.Low) || math.IsNaN(iv.High) || iv.Low > iv.High {
+				t.Errorf("%s: eigenvalue %d interval %v", sc, a+1, iv)
+			}
+		}
 	}
 }
 

@@ -27,7 +27,14 @@ type Influence struct {
 	// Limit[i] is the yardstick for sample i, set after the bootstrap
 	// (InfluenceLimits); NaN without it.
 	Limit []float64
-	// Method says how it was computed; Skipped, when Angle is nil, why not.
+	// Eigenvalues[i] are all the eigenvalues of the pipeline applied to the
+	// data without sample i (min(n−2, p) of them, largest first), and
+	// Total[i] their sum: the jackknife values behind the acceleration of
+	// the BCa intervals. nil when the computation was skipped.
+	Eigenvalues [][]float64
+	Total       []float64
+	// Method says how it was computed; Skipped, when Angle is nil, why not
+	// (the eigenvalues may still be there).
 	Method, Skipped string
 }
 
@@ -89,20 +96,24 @@ func LeaveOneOut(z *mat.Dense, pp Preprocessing, v mat.Matrix, eigenvalues []flo
 	case n < 3:
 		inf.Skipped = fmt.Sprintf("leaving one sample out needs at least 3 samples (n = %d)", n)
 		return inf
-	case k > min(n-2, p):
-		inf.Skipped = fmt.Sprintf("without one sample at most %d components remain, fewer than the %d retained", min(n-2, p), k)
-		return inf
-	case k == p:
-		inf.Skipped = "every component is retained, so the retained subspace is the whole space and cannot turn"
-		return inf
 	case influenceCost(n, p) > InfluenceBudget:
 		inf.Skipped = fmt.Sprintf("the exact computation for %d × %d data (about %.1g operations) exceeds the budget of %.1g", n, p, influenceCost(n, p), InfluenceBudget)
 		return inf
 	}
 	l := &looSetup{n: n, p: p, k: k, z: z, scaling: pp.Scaling, scales: pp.Scales, v: mat.DenseCopyOf(v), eigen: eigenvalues[:k]}
+	switch {
+	case k > min(n-2, p):
+		inf.Skipped = fmt.Sprintf("without one sample at most %d components remain, fewer than the %d retained", min(n-2, p), k)
+	case k == p:
+		inf.Skipped = "every component is retained, so the retained subspace is the whole space and cannot turn"
+	default:
+		l.angles = true
+		inf.Angle = make([]float64, n)
+		inf.EigenChange = make([][]float64, n)
+	}
 	l.prepare()
-	inf.Angle = make([]float64, n)
-	inf.EigenChange = make([][]float64, n)
+	inf.Eigenvalues = make([][]float64, n)
+	inf.Total = make([]float64, n)
 	task := l.tallSample
 	inf.Method = InfluenceTall
 	perWorker := int64(8 * 4 * p * p)
@@ -112,9 +123,21 @@ func LeaveOneOut(z *mat.Dense, pp Preprocessing, v mat.Matrix, eigenvalues []flo
 		perWorker = int64(8 * (n*p + 3*n*n))
 	}
 	parallelFor(n, workersFor(threads, perWorker), func() *looWorkspace { return &looWorkspace{} }, func(w *looWorkspace, i int) {
-		inf.Angle[i], inf.EigenChange[i] = task(w, i)
+		res := task(w, i)
+		inf.Eigenvalues[i], inf.Total[i] = res.eigenvalues, res.total
+		if l.angles {
+			inf.Angle[i], inf.EigenChange[i] = res.angle, res.change
+		}
 	}, "", nil)
 	return inf
+}
+
+// looResult is what one sample's leave-one-out computation gives.
+type looResult struct {
+	eigenvalues []float64 // all, largest first
+	total       float64
+	angle       float64   // NaN unless angles are computed
+	change      []float64 // of the retained eigenvalues
 }
 
 // looSetup holds what every sample's computation reads.
@@ -125,12 +148,11 @@ type looSetup struct {
 	scales  []float64  // reference divisors c_j
 	v       *mat.Dense // p × k reference loadings
 	eigen   []float64  // k reference eigenvalues
+	angles  bool       // whether the retained subspace's angle is computed
 	cross   []float64  // tall: ZᵀZ, p×p full; wide without scaling: ZZᵀ, n×n full
 	colSS   []float64  // Σ_r z_rj², the centred sum of squares of each column
 	refSD   []float64  // sd of each preprocessed column
-	// lo[j] and hi[j] are the row indices of the two smallest and two
-	// largest values of column j (range scaling).
-	lo, hi [][2]int
+	ranges  looRanges  // each column's range without one row
 }
 
 type looWorkspace struct {
@@ -164,28 +186,7 @@ func (l *looSetup) prepare() {
 	for j := range l.colSS {
 		l.refSD[j] = math.Sqrt(l.colSS[j] / float64(n-1))
 	}
-	if l.scaling == ScaleRange {
-		l.lo, l.hi = make([][2]int, p), make([][2]int, p)
-		for j := 0; j < p; j++ {
-			lo, hi := [2]int{-1, -1}, [2]int{-1, -1}
-			for i := 0; i < n; i++ {
-				x := l.z.At(i, j)
-				switch {
-				case lo[0] < 0 || x < l.z.At(lo[0], j):
-					lo = [2]int{i, lo[0]}
-				case lo[1] < 0 || x < l.z.At(lo[1], j):
-					lo[1] = i
-				}
-				switch {
-				case hi[0] < 0 || x > l.z.At(hi[0], j):
-					hi = [2]int{i, hi[0]}
-				case hi[1] < 0 || x > l.z.At(hi[1], j):
-					hi[1] = i
-				}
-			}
-			l.lo[j], l.hi[j] = lo, hi
-		}
-	}
+	l.ranges = newLOORanges(l.z)
 }
 
 // mirror copies the upper triangle of a d×d row-major matrix to the lower.
@@ -201,40 +202,81 @@ func mirror(a []float64, d int) {
 // without sample i, into the refitted preprocessing: 1/sd for unit
 // scaling, √(c_j/sd) for Pareto, 1/range for range, 1 without scaling
 // (sd and range of z without i; see bootstrapper.scaleFactor for the
-// algebra). A column constant without i keeps factor 1.
+// algebra). A column constant without i gets factor 0: it is zero once
+// centred, whatever its scale. Constancy is judged on the exact range
+// without i, never on the sd, which the downdate obtains by cancellation
+// (Σz² − n/(n−1)·z_i²) and so carries rounding of about 1e-8 even when
+// every remaining value is equal.
 func (l *looSetup) scaleFactors(i int, g []float64) {
 	n := float64(l.n)
 	zi := l.z.RawRowView(i)
 	for j := range g {
 		g[j] = 1
+		if l.scaling == ScaleNone {
+			continue
+		}
+		rng := l.ranges.without(j, i)
+		if rng <= 1e-10*l.refSD[j] {
+			g[j] = 0
+			continue
+		}
+		sd := math.Sqrt(math.Max(l.colSS[j]-n/(n-1)*zi[j]*zi[j], 0) / (n - 2))
 		switch l.scaling {
-		case ScaleUnit, ScalePareto:
-			sd := math.Sqrt(math.Max(l.colSS[j]-n/(n-1)*zi[j]*zi[j], 0) / (n - 2))
-			if sd <= 1e-10*l.refSD[j] {
-				continue
-			}
-			if l.scaling == ScaleUnit {
-				g[j] = 1 / sd
-			} else {
-				g[j] = math.Sqrt(l.scales[j] / sd)
-			}
+		case ScaleUnit:
+			g[j] = 1 / sd
+		case ScalePareto:
+			g[j] = math.Sqrt(l.scales[j] / sd)
 		case ScaleRange:
-			lo, hi := l.lo[j][0], l.hi[j][0]
-			if lo == i {
-				lo = l.lo[j][1]
-			}
-			if hi == i {
-				hi = l.hi[j][1]
-			}
-			if r := l.z.At(hi, j) - l.z.At(lo, j); r > 1e-10*l.refSD[j] {
-				g[j] = 1 / r
-			}
+			g[j] = 1 / rng
 		}
 	}
 }
 
-// tallSample computes sample i's influence through the p×p downdate.
-func (l *looSetup) tallSample(w *looWorkspace, i int) (float64, []float64) {
+// looRanges gives the range of each column without one row, from the two
+// smallest and two largest values of the column.
+type looRanges struct {
+	lo1, lo2, hi1, hi2 []float64
+	loAt, hiAt         []int
+}
+
+func newLOORanges(z *mat.Dense) looRanges {
+	n, p := z.Dims()
+	r := looRanges{lo1: make([]float64, p), lo2: make([]float64, p), hi1: make([]float64, p), hi2: make([]float64, p), loAt: make([]int, p), hiAt: make([]int, p)}
+	for j := 0; j < p; j++ {
+		lo1, lo2, hi1, hi2 := math.Inf(1), math.Inf(1), math.Inf(-1), math.Inf(-1)
+		for i := 0; i < n; i++ {
+			v := z.At(i, j)
+			if v < lo1 {
+				lo1, lo2, r.loAt[j] = v, lo1, i
+			} else if v < lo2 {
+				lo2 = v
+			}
+			if v > hi1 {
+				hi1, hi2, r.hiAt[j] = v, hi1, i
+			} else if v > hi2 {
+				hi2 = v
+			}
+		}
+		r.lo1[j], r.lo2[j], r.hi1[j], r.hi2[j] = lo1, lo2, hi1, hi2
+	}
+	return r
+}
+
+// without returns the range of column j without row i.
+func (r looRanges) without(j, i int) float64 {
+	lo, hi := r.lo1[j], r.hi1[j]
+	if i == r.loAt[j] {
+		lo = r.lo2[j]
+	}
+	if i == r.hiAt[j] {
+		hi = r.hi2[j]
+	}
+	return hi - lo
+}
+
+// tallSample computes sample i's leave-one-out result through the p×p
+// downdate.
+func (l *looSetup) tallSample(w *looWorkspace, i int) looResult {
 	p := l.p
 	nf := float64(l.n)
 	w.g = grow(w.g, p)
@@ -242,32 +284,63 @@ func (l *looSetup) tallSample(w *looWorkspace, i int) (float64, []float64) {
 	l.scaleFactors(i, w.g)
 	zi := l.z.RawRowView(i)
 	beta := nf / (nf - 1)
+	total := 0.0
 	for r := 0; r < p; r++ {
 		for c := r; c < p; c++ {
 			w.a[r*p+c] = w.g[r] * w.g[c] * (l.cross[r*p+c] - beta*zi[r]*zi[c]) / (nf - 2)
 		}
+		total += w.a[r*p+r]
 	}
-	sym := mat.NewSymDense(p, w.a)
-	if !w.eig.Factorize(sym, true) {
-		return math.NaN(), nil
-	}
-	w.vals = w.eig.Values(grow(w.vals, p))
-	w.eig.VectorsTo(&w.vecs)
-	vi := mat.NewDense(p, l.k, nil)
-	change := make([]float64, l.k)
-	for a := 0; a < l.k; a++ {
-		change[a] = (w.vals[p-1-a] - l.eigen[a]) / l.eigen[a]
-		for j := 0; j < p; j++ {
-			vi.Set(j, a, w.vecs.At(j, p-1-a))
+	return l.decompose(w, mat.NewSymDense(p, w.a), 1, total, func(a int) []float64 {
+		col := make([]float64, p)
+		for j := range col {
+			col[j] = w.vecs.At(j, p-1-a)
 		}
-	}
-	return LargestPrincipalAngle(l.v, vi), change
+		return col
+	})
 }
 
-// wideSample computes sample i's influence through the Gram matrix of the
-// other rows.
-func (l *looSetup) wideSample(w *looWorkspace, i int) (float64, []float64) {
-	n, p, k := l.n, l.p, l.k
+// decompose finishes a sample: the eigenvalues of sym divided by div (all
+// the data without one sample can carry, min(n−2, p)), and, when angles are
+// computed, the retained loadings (loading(a) gives column a from w.vecs)
+// and their angle to the reference.
+func (l *looSetup) decompose(w *looWorkspace, sym *mat.SymDense, div, total float64, loading func(a int) []float64) looResult {
+	d := sym.SymmetricDim()
+	res := looResult{total: total / div, angle: math.NaN()}
+	if !w.eig.Factorize(sym, l.angles) {
+		res.eigenvalues = make([]float64, min(l.n-2, l.p))
+		for a := range res.eigenvalues {
+			res.eigenvalues[a] = math.NaN()
+		}
+		return res
+	}
+	w.vals = w.eig.Values(grow(w.vals, d))
+	res.eigenvalues = make([]float64, min(l.n-2, l.p))
+	for a := range res.eigenvalues {
+		res.eigenvalues[a] = math.Max(w.vals[d-1-a], 0) / div
+	}
+	if !l.angles {
+		return res
+	}
+	w.eig.VectorsTo(&w.vecs)
+	res.change = make([]float64, l.k)
+	vi := mat.NewDense(l.p, l.k, nil)
+	for a := 0; a < l.k; a++ {
+		res.change[a] = (res.eigenvalues[a] - l.eigen[a]) / l.eigen[a]
+		col := loading(a)
+		if col == nil {
+			return res
+		}
+		vi.SetCol(a, col)
+	}
+	res.angle = LargestPrincipalAngle(l.v, vi)
+	return res
+}
+
+// wideSample computes sample i's leave-one-out result through the Gram
+// matrix of the other rows.
+func (l *looSetup) wideSample(w *looWorkspace, i int) looResult {
+	n, p := l.n, l.p
 	d := n - 1
 	nf := float64(n)
 	w.a = grow(w.a, d*d)
@@ -308,32 +381,25 @@ func (l *looSetup) wideSample(w *looWorkspace, i int) (float64, []float64) {
 		rows := blas64.General{Rows: d, Cols: p, Stride: p, Data: w.rows}
 		blas64.Syrk(blas.NoTrans, 1, rows, 0, blas64.Symmetric{N: d, Stride: d, Uplo: blas.Upper, Data: w.a})
 	}
-	sym := mat.NewSymDense(d, w.a)
-	if !w.eig.Factorize(sym, true) {
-		return math.NaN(), nil
+	total := 0.0
+	for r := 0; r < d; r++ {
+		total += w.a[r*d+r]
 	}
-	w.vals = w.eig.Values(grow(w.vals, d))
-	w.eig.VectorsTo(&w.vecs)
-	change := make([]float64, k)
-	vi := mat.NewDense(p, k, nil)
 	col := make([]float64, d)
-	out := make([]float64, p)
 	wm := blas64.General{Rows: d, Cols: p, Stride: p, Data: w.rows}
-	for a := 0; a < k; a++ {
+	return l.decompose(w, mat.NewSymDense(d, w.a), nf-2, total, func(a int) []float64 {
+		// Loadings are V = Wᵀ U Σ⁻¹ from the rescaled rows W.
 		mu := w.vals[d-1-a]
-		change[a] = (mu/(nf-2) - l.eigen[a]) / l.eigen[a]
 		if mu <= 0 {
-			return math.NaN(), change
+			return nil
 		}
 		for r := 0; r < d; r++ {
 			col[r] = w.vecs.At(r, d-1-a) / math.Sqrt(mu)
 		}
+		out := make([]float64, p)
 		blas64.Gemv(blas.Trans, 1, wm, blas64.Vector{N: d, Inc: 1, Data: col}, 0, blas64.Vector{N: p, Inc: 1, Data: out})
-		for j := 0; j < p; j++ {
-			vi.Set(j, a, out[j])
-		}
-	}
-	return LargestPrincipalAngle(l.v, vi), change
+		return out
+	})
 }
 
 // LargestPrincipalAngle returns, in degrees, the largest principal angle

@@ -346,13 +346,24 @@ func scalingText(s analysis.Scaling) string {
 	return "none: variables keep their units (covariance PCA)"
 }
 
+// eigenCI is the BCa interval of eigenvalue a, or the percentile interval
+// marked "pct." where BCa is undefined.
+func eigenCI(st analysis.Stability, a int) string {
+	if a < len(st.EigenvaluesBCa) {
+		if iv := st.EigenvaluesBCa[a]; !math.IsNaN(iv.Low) && !math.IsNaN(iv.High) {
+			return g4(iv.Low) + " – " + g4(iv.High)
+		}
+	}
+	return g4(st.Eigenvalues[a].Low) + " – " + g4(st.Eigenvalues[a].High) + " (pct.)"
+}
+
 func componentsBlock(res *analysis.Result) ComponentsBlock {
 	d := res.Decomp
 	pct := Percentages(d.Eigenvalues)
 	st := res.Stability
 	b := ComponentsBlock{Header: []string{"Component", "Eigenvalue", "Variance", "Cumulative", "Permuted 95th pct.", "Broken stick"}}
 	if st.Used > 0 {
-		b.Header = append(b.Header, "Eigenvalue 95 % CI")
+		b.Header = append(b.Header, "Eigenvalue 95 % CI (BCa)")
 	}
 	cum := 0.0
 	m := d.Components()
@@ -371,7 +382,7 @@ func componentsBlock(res *analysis.Result) ComponentsBlock {
 		}
 		row := []string{name, g4(d.Eigenvalues[a]), pctText(pct[a]), pctText(cum), p95, pctText(100 * res.Counts.BrokenStickShares[a])}
 		if st.Used > 0 {
-			row = append(row, g4(st.Eigenvalues[a].Low)+" – "+g4(st.Eigenvalues[a].High))
+			row = append(row, eigenCI(st, a))
 		}
 		b.Rows = append(b.Rows, row)
 	}
@@ -592,7 +603,7 @@ func stabilityBlock(res *analysis.Result) StabilityBlock {
 	if st.Used == 0 {
 		reason := "The bootstrap was turned off (--bootstrap 0)."
 		if st.Resamples > 0 {
-			reason = "Every resample was degenerate (some variable was constant in it)."
+			reason = "Every resample was degenerate (its decomposition failed)."
 		}
 		return StabilityBlock{Skipped: reason}
 	}
@@ -600,18 +611,31 @@ func stabilityBlock(res *analysis.Result) StabilityBlock {
 		Summary: fmt.Sprintf("%d bootstrap resamples of the whole pipeline (rows drawn with replacement, preprocessing redone in each)", st.Used),
 		Header:  []string{"Component", "φ median", "φ 5th pct.", "Procrustes φ median", "Procrustes φ 5th pct."},
 	}
+	if st.ConstantResamples > 0 {
+		b.Summary += fmt.Sprintf("; in %d of them a variable took a single value and entered with zero variance (its centred values are all zero)", st.ConstantResamples)
+	}
 	if st.Degenerate > 0 {
-		b.Summary += fmt.Sprintf("; %d more were skipped because a variable was constant in them", st.Degenerate)
+		b.Summary += fmt.Sprintf("; %d more were skipped because their decomposition failed", st.Degenerate)
 	}
 	b.Summary += "."
 	for a, c := range st.Components {
 		b.Rows = append(b.Rows, []string{componentName(a), f3(c.CongruenceMedian), f3(c.CongruenceP5), f3(c.ProcrustesMedian), f3(c.ProcrustesP5)})
 	}
-	b.EigHeader = []string{"Component", "Eigenvalue", "95 % interval", "Variance", "95 % interval"}
+	// Percentile and BCa intervals side by side: BCa (Efron 1987) corrects
+	// for the bias of sample eigenvalues, which leaves the estimate near an
+	// edge of its percentile interval.
+	b.EigHeader = []string{"Component", "Eigenvalue", "95 % percentile", "95 % BCa", "Variance", "95 % percentile", "95 % BCa"}
 	pct := Percentages(res.Decomp.Eigenvalues)
+	bca := func(ivs []analysis.Interval, a int, f func(float64) string) string {
+		if a >= len(ivs) || math.IsNaN(ivs[a].Low) || math.IsNaN(ivs[a].High) {
+			return "–"
+		}
+		return f(ivs[a].Low) + " – " + f(ivs[a].High)
+	}
 	for a := 0; a < min(len(st.Eigenvalues), intervalComponents); a++ {
 		e, p := st.Eigenvalues[a], st.Percent[a]
-		b.EigRows = append(b.EigRows, []string{componentName(a), g4(res.Decomp.Eigenvalues[a]), g4(e.Low) + " – " + g4(e.High), pctText(pct[a]), pctText(p.Low) + " – " + pctText(p.High)})
+		b.EigRows = append(b.EigRows, []string{componentName(a), g4(res.Decomp.Eigenvalues[a]), g4(e.Low) + " – " + g4(e.High), bca(st.EigenvaluesBCa, a, g4),
+			pctText(pct[a]), pctText(p.Low) + " – " + pctText(p.High), bca(st.PercentBCa, a, pctText)})
 	}
 	b.Congruence = Figure{Stem: "stability-congruence", Alt: "Congruence over the bootstrap",
 		Caption: "Tucker's congruence φ between each resample's sign-aligned loadings and the reference, per retained component (box: quartiles; line: median). 0.95 and above: equal; 0.85–0.95: fair (Lorenzo-Seva & ten Berge 2006)."}

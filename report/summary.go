@@ -59,6 +59,7 @@ type Summary struct {
 	Components ComponentsInfo  `json:"components"`
 	Limits     LimitsInfo      `json:"limits"`
 	Stability  *StabilityInfo  `json:"stability"`
+	Adequacy   AdequacyInfo    `json:"adequacy"`
 	Review     *ReviewInfo     `json:"review,omitempty"`
 	Checks     []checks.Result `json:"checks"`
 	Verdict    checks.Status   `json:"verdict"`
@@ -115,13 +116,84 @@ type LimitsInfo struct {
 	Influence95 Number `json:"influence_p95_deg"`
 }
 
+// AdequacyInfo holds the numbers behind the adequacy and separation checks.
+type AdequacyInfo struct {
+	KMO        KMOInfo          `json:"kmo"`
+	Bartlett   BartlettInfo     `json:"bartlett"`
+	Separation []SeparationInfo `json:"separation"`
+}
+
+// KMOInfo is the Kaiser–Meyer–Olkin measure; numbers are null when it was
+// not computed (SkipReason says why).
+type KMOInfo struct {
+	Overall     Number        `json:"overall"`
+	PerVariable []VariableKMO `json:"per_variable"`
+	SkipReason  string        `json:"skip_reason,omitempty"`
+}
+
+type VariableKMO struct {
+	Variable string `json:"variable"`
+	KMO      Number `json:"kmo"`
+}
+
+// BartlettInfo is Bartlett's test of sphericity.
+type BartlettInfo struct {
+	Chi2       Number `json:"chi2"`
+	DF         int    `json:"df"`
+	P          Number `json:"p"`
+	Singular   bool   `json:"singular"`
+	SkipReason string `json:"skip_reason,omitempty"`
+}
+
+// SeparationInfo is North's rule for one retained component and its next
+// neighbour: δλ = λ·√(2/n) for each, and whether λ ± δλ overlap.
+type SeparationInfo struct {
+	Component    string `json:"component"`
+	Eigenvalue   Number `json:"eigenvalue"`
+	Delta        Number `json:"delta"`
+	Next         string `json:"next"`
+	NextDelta    Number `json:"next_delta"`
+	Overlap      bool   `json:"overlap"`
+	BothRetained bool   `json:"both_retained"`
+}
+
+func adequacyInfo(res *analysis.Result) AdequacyInfo {
+	a := res.Adequacy
+	nan := Number(math.NaN())
+	info := AdequacyInfo{
+		KMO:        KMOInfo{Overall: nan, PerVariable: []VariableKMO{}, SkipReason: a.KMO.SkipReason},
+		Bartlett:   BartlettInfo{Chi2: nan, P: nan, SkipReason: a.Bartlett.SkipReason},
+		Separation: []SeparationInfo{},
+	}
+	if a.KMO.Computed {
+		info.KMO.Overall = Number(a.KMO.Overall)
+		for j, v := range a.KMO.PerVariable {
+			info.KMO.PerVariable = append(info.KMO.PerVariable, VariableKMO{Variable: res.Table.Variables[j], KMO: Number(v)})
+		}
+	}
+	if a.Bartlett.Computed {
+		b := a.Bartlett
+		info.Bartlett = BartlettInfo{Chi2: Number(b.Chi2), DF: b.DF, P: Number(b.P), Singular: b.Singular}
+	}
+	for _, s := range res.Separation {
+		info.Separation = append(info.Separation, SeparationInfo{
+			Component: componentName(s.A), Eigenvalue: Number(res.Decomp.Eigenvalues[s.A]), Delta: Number(s.DeltaA),
+			Next: componentName(s.A + 1), NextDelta: Number(s.DeltaB), Overlap: s.Overlap, BothRetained: s.BothRetained,
+		})
+	}
+	return info
+}
+
 // StabilityInfo summarises the bootstrap; null when it did not run.
 type StabilityInfo struct {
-	Resamples   int                  `json:"resamples"`
-	Used        int                  `json:"used"`
-	Degenerate  int                  `json:"degenerate"`
-	Components  []ComponentStability `json:"components"`
-	Eigenvalues []EigenInterval      `json:"eigenvalues"`
+	Resamples  int `json:"resamples"`
+	Used       int `json:"used"`
+	Degenerate int `json:"degenerate"`
+	// ConstantResamples counts used resamples in which a variable was
+	// constant (kept, with that variable at zero variance).
+	ConstantResamples int                  `json:"constant_resamples"`
+	Components        []ComponentStability `json:"components"`
+	Eigenvalues       []EigenInterval      `json:"eigenvalues"`
 }
 
 type ComponentStability struct {
@@ -140,6 +212,12 @@ type EigenInterval struct {
 	Percent       Number `json:"percent"`
 	PercentCILow  Number `json:"percent_ci_low"`
 	PercentCIHigh Number `json:"percent_ci_high"`
+	// BCa intervals (Efron 1987) beside the percentile ones above; null
+	// where undefined.
+	BCaLow         Number `json:"bca_low"`
+	BCaHigh        Number `json:"bca_high"`
+	PercentBCaLow  Number `json:"percent_bca_low"`
+	PercentBCaHigh Number `json:"percent_bca_high"`
 }
 
 func stabilityInfo(res *analysis.Result) *StabilityInfo {
@@ -147,7 +225,7 @@ func stabilityInfo(res *analysis.Result) *StabilityInfo {
 	if st.Used == 0 {
 		return nil
 	}
-	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate}
+	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate, ConstantResamples: st.ConstantResamples}
 	for a, c := range st.Components {
 		info.Components = append(info.Components, ComponentStability{
 			Component: componentName(a), CongruenceMedian: Number(c.CongruenceMedian), CongruenceP5: Number(c.CongruenceP5),
@@ -159,9 +237,22 @@ func stabilityInfo(res *analysis.Result) *StabilityInfo {
 		info.Eigenvalues = append(info.Eigenvalues, EigenInterval{
 			Component: componentName(a), Eigenvalue: Number(l), CILow: Number(st.Eigenvalues[a].Low), CIHigh: Number(st.Eigenvalues[a].High),
 			Percent: Number(pct[a]), PercentCILow: Number(st.Percent[a].Low), PercentCIHigh: Number(st.Percent[a].High),
+			BCaLow: intervalEnd(st.EigenvaluesBCa, a, false), BCaHigh: intervalEnd(st.EigenvaluesBCa, a, true),
+			PercentBCaLow: intervalEnd(st.PercentBCa, a, false), PercentBCaHigh: intervalEnd(st.PercentBCa, a, true),
 		})
 	}
 	return info
+}
+
+// intervalEnd returns one end of ivs[a], or NaN (null) when absent.
+func intervalEnd(ivs []analysis.Interval, a int, high bool) Number {
+	if a >= len(ivs) {
+		return Number(math.NaN())
+	}
+	if high {
+		return Number(ivs[a].High)
+	}
+	return Number(ivs[a].Low)
 }
 
 // Number is a float64 in summary.json. JSON has no NaN or infinity, so a
@@ -300,6 +391,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			Influence95:      Number(analysis.InfluenceLimit(res.Stability)),
 		},
 		Stability: stabilityInfo(res),
+		Adequacy:  adequacyInfo(res),
 		Review:    reviewInfo(audit.Review, results),
 		Checks:    jsonChecks(results),
 		Verdict:   checks.Verdict(results),

@@ -253,7 +253,7 @@ func TestBootstrapOffSkipsStability(t *testing.T) {
 	}
 	b, _ := os.ReadFile(filepath.Join(out, "summary.json"))
 	if !strings.Contains(string(b), `"stability": null`) || !strings.Contains(string(b), `"id": "loading-stability",
-      "title": "Loadings are stable under resampling",
+      "title": "The retained subspace is stable under resampling",
       "status": "skip"`) {
 		t.Errorf("summary.json does not mark stability as skipped")
 	}
