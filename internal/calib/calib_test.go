@@ -217,7 +217,10 @@ func TestSampleMoments(t *testing.T) {
 func TestPlantedDefects(t *testing.T) {
 	cell := DefectCell(0)
 	for _, d := range Defects {
-		c := NewCase(11, 0, cell, d)
+		c, err := NewCase(11, 0, cell, d)
+		if err != nil {
+			t.Fatal(err)
+		}
 		n, p := c.Table.X.Dims()
 		switch d {
 		case OffModel, AlongModel, DuplicateRows, LoneComponent:
@@ -247,6 +250,19 @@ func TestPlantedDefects(t *testing.T) {
 			if p != cell.P+3 || n != cell.N {
 				t.Errorf("lone component: %d × %d", n, p)
 			}
+		}
+	}
+}
+
+// TestNewCaseRefusesCellsOutsideTheDesign: an infeasible cell, or equal
+// leading eigenvalues with one component, is an error, not a table.
+func TestNewCaseRefusesCellsOutsideTheDesign(t *testing.T) {
+	for _, tc := range []struct {
+		cell   Cell
+		defect Defect
+	}{{Cell{100, 5, 4, Gaussian}, Clean}, {Cell{300, 10, 1, Gaussian}, EqualEigenvalues}, {Cell{300, 10, 10, Gaussian}, Clean}} {
+		if _, err := NewCase(1, 0, tc.cell, tc.defect); err == nil {
+			t.Errorf("%v %s: no error", tc.cell, tc.defect)
 		}
 	}
 }

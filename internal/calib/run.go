@@ -159,7 +159,12 @@ func Run(specs []Spec, seed uint64, s Settings, workers int, done func(Outcome))
 			defer wg.Done()
 			for i := range jobs {
 				sp := specs[i]
-				o := Audit(NewCase(seed, i, sp.Cell, sp.Defect), s, 1)
+				var o Outcome
+				if c, err := NewCase(seed, i, sp.Cell, sp.Defect); err != nil {
+					o = Outcome{Index: i, Cell: sp.Cell, Defect: sp.Defect, Err: err.Error(), Verdict: checks.Fail}
+				} else {
+					o = Audit(c, s, 1)
+				}
 				out[i] = o
 				if done != nil {
 					mu.Lock()

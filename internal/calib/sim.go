@@ -248,13 +248,14 @@ type Case struct {
 const golden = 0x9e3779b97f4a7c15
 
 // NewCase simulates table index of a run with the given seed: a clean
-// table of the cell, with the defect planted when it is not Clean.
-func NewCase(seed uint64, index int, cell Cell, defect Defect) Case {
+// table of the cell, with the defect planted when it is not Clean. It
+// refuses a cell outside the design (see Spectrum).
+func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 	rng := rand.New(rand.NewPCG(seed, uint64(index)))
 	n, p, k := cell.N, cell.P, cell.K
 	lam, ok := Spectrum(n, p, k)
-	if !ok {
-		panic(fmt.Sprintf("calib: infeasible cell %v", cell))
+	if !ok || (defect == EqualEigenvalues && k < 2) {
+		return Case{}, fmt.Errorf("calib: no %s table can be planted in cell %v", defect, cell)
 	}
 	if defect == EqualEigenvalues {
 		// Both leading eigenvalues at their mean: the plane is planted, its
@@ -262,8 +263,7 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) Case {
 		m := (lam[0] + lam[1]) / 2
 		lam[0], lam[1] = m, m
 	}
-	corr, v := correlationWithSpectrum(rng, lam)
-	_ = corr
+	_, v := correlationWithSpectrum(rng, lam)
 	if defect == NoStructure {
 		lam = make([]float64, p)
 		for j := range lam {
@@ -354,5 +354,5 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) Case {
 		c.Planted = []string{ids[lone]}
 	}
 	c.Table = analysis.TableFromMatrix(fmt.Sprintf("calib-%s-%d", defect, index), x, nil, ids)
-	return c
+	return c, nil
 }
