@@ -57,9 +57,10 @@
 // cycled over seeds) with one planted defect; Expectations lists the checks
 // that must catch it and what they must name:
 //
-//  1. off-model: 3 samples displaced off the model plane, along a random
-//     direction of the noise space, by 6 times the root of the noise
-//     variance summed over that space (Q about 36 times its mean);
+//  1. off-model: 3 samples displaced off the model plane, each along its
+//     own random direction of the noise space, by a squared distance of
+//     twice the Bonferroni limit σ²·χ²_{p−k}(1 − 0.05/n) of Q: gross at
+//     the family-wise level, yet too small to build a component of its own;
 //  2. along-model: 3 samples moved 7 standard deviations along PC1, keeping
 //     their own residuals (T² far beyond chance, Q typical);
 //  3. no-structure: independent standard normal variables;

@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"pcqc/analysis"
 )
@@ -284,9 +285,13 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 	pick := func(m int) []int { return rng.Perm(n)[:m] }
 	switch defect {
 	case OffModel:
-		// A random unit direction in the noise space (eigenvectors k..p−1),
-		// of length 6·√(σ²(p−k)) per sample, with a random sign.
-		noise := lam[k] * float64(p-k)
+		// A random unit direction in the noise space (eigenvectors k..p−1)
+		// per sample, of squared length twice the Bonferroni limit of Q,
+		// σ²·χ²_{p−k}(1 − 0.05/n): gross at the family-wise level, yet
+		// adding only d²/n to the variance along its direction, too little
+		// to build a component of its own (a larger push makes each such
+		// sample a component, and the defect would be another one).
+		limit := lam[k] * distuv.ChiSquared{K: float64(p - k)}.Quantile(1-0.05/float64(n))
 		for _, i := range pick(3) {
 			dir := make([]float64, p)
 			norm := 0.0
@@ -299,7 +304,7 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 			for _, d := range dir {
 				norm += d * d
 			}
-			f := 6 * math.Sqrt(noise/norm)
+			f := math.Sqrt(2 * limit / norm)
 			for j := range p {
 				x.Set(i, j, x.At(i, j)+f*dir[j])
 			}
