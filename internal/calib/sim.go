@@ -16,7 +16,7 @@ type Tail int
 
 const (
 	Gaussian Tail = iota
-	StudentT      // multivariate t with TDegrees degrees of freedom
+	StudentT      // independent Student t scores with TDegrees degrees of freedom
 )
 
 // TDegrees is the degrees of freedom of the heavy-tailed variant.
@@ -176,31 +176,32 @@ func correlationWithSpectrum(rng *rand.Rand, lam []float64) (*mat.Dense, *mat.De
 	return a, q
 }
 
-// sample draws n rows with covariance V diag(λ) Vᵀ: Gaussian, or
-// multivariate t rescaled to the same covariance.
+// sample draws n rows with covariance V diag(λ) Vᵀ as x = V Λ^{1/2} z: z
+// independent standard normal, or independent Student t with TDegrees
+// degrees of freedom rescaled to unit variance.
 func sample(rng *rand.Rand, n int, lam []float64, v *mat.Dense, tail Tail) *mat.Dense {
 	p := len(lam)
 	x := mat.NewDense(n, p, nil)
 	z := make([]float64, p)
 	for i := range n {
 		for m := range p {
-			z[m] = rng.NormFloat64() * math.Sqrt(lam[m])
-		}
-		scale := 1.0
-		if tail == StudentT {
-			w := 0.0
-			for range TDegrees {
-				e := rng.NormFloat64()
-				w += e * e
+			z[m] = rng.NormFloat64()
+			if tail == StudentT {
+				w := 0.0
+				for range TDegrees {
+					e := rng.NormFloat64()
+					w += e * e
+				}
+				z[m] *= math.Sqrt(float64(TDegrees-2) / w)
 			}
-			scale = math.Sqrt(float64(TDegrees-2) / w)
+			z[m] *= math.Sqrt(lam[m])
 		}
 		for j := range p {
 			s := 0.0
 			for m := range p {
 				s += v.At(j, m) * z[m]
 			}
-			x.Set(i, j, scale*s)
+			x.Set(i, j, s)
 		}
 	}
 	return x
