@@ -95,7 +95,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 		share = opt.Components.Variance
 	}
 	var cv CrossValidation
-	if _, p := z.Dims(); p >= 2 && n >= 4 {
+	if _, p := z.Dims(); p >= 3 && n >= 4 {
 		cv = CrossValidate(z, pp, opt.Seed, opt.Threads, opt.Progress)
 	}
 	r.Counts = CountComponents(d.Eigenvalues, opt.Scaling, share, pa, cv)

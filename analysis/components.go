@@ -202,7 +202,7 @@ func CountComponents(eigenvalues []float64, scaling Scaling, varianceShare float
 	}
 	cvc := RuleCount{Rule: RuleCV, Count: cv.Count, Applies: cv.Folds > 0}
 	if !cvc.Applies {
-		cvc.Note = "needs at least 2 variables and 4 rows"
+		cvc.Note = "needs at least 3 variables and 4 rows"
 	}
 	kaiser := RuleCount{Rule: RuleKaiser, Count: KaiserCount(eigenvalues), Applies: scaling == ScaleUnit}
 	if !kaiser.Applies {
@@ -240,7 +240,7 @@ func (r ComponentRule) Choose(m int, counts ComponentCounts) (int, error) {
 		}
 	case RuleCV:
 		if _, ok := counts.Count(RuleCV); !ok {
-			return 0, fmt.Errorf("--components cv needs at least 2 variables and 4 rows")
+			return 0, fmt.Errorf("--components cv needs at least 3 variables and 4 rows")
 		}
 	}
 	k, _ := counts.Count(r.Kind)

@@ -19,9 +19,9 @@ const (
 	CVFolds = 7
 	// CVMaxRows is the most rows cross-validation uses; larger tables are
 	// cross-validated on a seeded random subset of this many rows. PRESS
-	// judges where the structure stops, and 1,000 rows determine components
+	// judges where the structure stops, and 300 rows determine components
 	// well above noise; the cost is then bounded whatever n is.
-	CVMaxRows = 500
+	CVMaxRows = 300
 	// CVMaxComponents is the largest count whose PRESS is computed.
 	CVMaxComponents = 15
 	// CVPatience: the PRESS curve is followed until this many successive
@@ -32,8 +32,8 @@ const (
 	// left-out elements: iterations stop when the imputed values change by
 	// less than CVTolerance times the root mean square of the training
 	// elements, or after CVMaxIterations.
-	CVTolerance     = 1e-5
-	CVMaxIterations = 100
+	CVTolerance     = 1e-4
+	CVMaxIterations = 50
 )
 
 // streamCrossValidation is the random stream of the fold assignment.
@@ -134,7 +134,10 @@ func CrossValidate(z *mat.Dense, pp Preprocessing, seed uint64, threads int, pro
 			unit[j] = 1
 		}
 	}
-	maxA := min(p-1, len(rows)-2, CVMaxComponents)
+	// a = p−1 components leave an element whose row lost only it exactly
+	// determined by the other p−1 values and p−1 scores: its imputation
+	// drifts without bound, so PRESS is followed to p−2 at most.
+	maxA := min(p-2, len(rows)-2, CVMaxComponents)
 	fold := CVFoldAssignment(len(rows), p, CVFolds, seed)
 	cv := ekf(sub, scaling, unit, fold, CVFolds, maxA, CVPatience, CVTolerance, CVMaxIterations, threads, progress)
 	cv.RowsTotal = n
