@@ -95,7 +95,7 @@ var componentCount = Check{
 		if borderline != "" {
 			pa := res.Counts.Parallel
 			a := pa.Borderline
-			problems = append(problems, fmt.Sprintf("parallel analysis could not settle %s within %d permutations: %.1f %% of permuted eigenvalues reach the observed %.4g, too close to 5 %% to call; it is not counted, and a larger --permutations may settle it", borderline, pa.Permutations, 100*pa.Exceedance[a], res.Decomp.Eigenvalues[a]))
+			problems = append(problems, fmt.Sprintf("parallel analysis could not settle %s within its cap of %d permutations (%.1f %% of them reach the observed eigenvalue %.4g; the 99 %% bounds of that share still include 5 %%), so it is not counted; a larger --permutations may settle it", borderline, pa.Permutations, 100*pa.Exceedance[a], res.Decomp.Eigenvalues[a]))
 		}
 		switch {
 		case res.NoStructure:

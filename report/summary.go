@@ -84,16 +84,16 @@ type InputInfo struct {
 }
 
 type ComponentsInfo struct {
-	Retained           int                  `json:"retained"`
-	Rule               string               `json:"rule"`
-	NoStructure        bool                 `json:"no_structure"`
-	Method             string               `json:"method"`
-	Eigenvalues        []Number             `json:"eigenvalues"`
-	Percent            []Number             `json:"percent"`
-	Counts             []analysis.RuleCount `json:"counts"`
-	Permutations       int                  `json:"permutations"`
-	PermutationCap     int                  `json:"permutation_cap"`
-	PermutationP95     []Number             `json:"permutation_p95"`
+	Retained       int                  `json:"retained"`
+	Rule           string               `json:"rule"`
+	NoStructure    bool                 `json:"no_structure"`
+	Method         string               `json:"method"`
+	Eigenvalues    []Number             `json:"eigenvalues"`
+	Percent        []Number             `json:"percent"`
+	Counts         []analysis.RuleCount `json:"counts"`
+	Permutations   int                  `json:"permutations"`
+	PermutationCap int                  `json:"permutation_cap"`
+	PermutationP95 []Number             `json:"permutation_p95"`
 	// PermutationExceedance is each component's Monte Carlo p-value: the
 	// share of permutations whose eigenvalue reaches the observed one.
 	PermutationExceedance []Number `json:"permutation_exceedance"`
@@ -307,14 +307,14 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		},
 		Options: meta.Options,
 		Components: ComponentsInfo{
-			Retained:           res.Retained,
-			Rule:               res.Rule.String(),
-			NoStructure:        res.NoStructure,
-			Method:             res.Decomp.Method,
-			Eigenvalues:        numbers(res.Decomp.Eigenvalues),
-			Percent:            numbers(Percentages(res.Decomp.Eigenvalues)),
-			Counts:             res.Counts.Counts,
-			Permutations:       res.Counts.Parallel.Permutations,
+			Retained:              res.Retained,
+			Rule:                  res.Rule.String(),
+			NoStructure:           res.NoStructure,
+			Method:                res.Decomp.Method,
+			Eigenvalues:           numbers(res.Decomp.Eigenvalues),
+			Percent:               numbers(Percentages(res.Decomp.Eigenvalues)),
+			Counts:                res.Counts.Counts,
+			Permutations:          res.Counts.Parallel.Permutations,
 			PermutationCap:        res.Counts.Parallel.Cap,
 			PermutationP95:        numbers(res.Counts.Parallel.P95),
 			PermutationExceedance: numbers(res.Counts.Parallel.Exceedance),
