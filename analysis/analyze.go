@@ -11,7 +11,7 @@ import (
 type Options struct {
 	Scaling      Scaling
 	Components   ComponentRule
-	Permutations int    // parallel analysis; 0 turns it off
+	Permutations int    // parallel analysis: the cap of the adaptive run; 0 turns it off
 	Bootstrap    int    // resamples for loading stability; 0 turns it off
 	Seed         uint64 // for every random stream
 	Threads      int    // ≤ 0: all cores
@@ -23,7 +23,7 @@ type Options struct {
 
 // Defaults for Options.
 const (
-	DefaultPermutations = 200
+	DefaultPermutations = 2000
 	DefaultSeed         = 1
 )
 
@@ -94,7 +94,11 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	if opt.Components.Kind == RuleVariance {
 		share = opt.Components.Variance
 	}
-	r.Counts = CountComponents(d.Eigenvalues, opt.Scaling, share, pa)
+	var cv CrossValidation
+	if _, p := z.Dims(); p >= 3 && n >= 4 {
+		cv = CrossValidate(z, pp, opt.Seed, opt.Threads, opt.Progress)
+	}
+	r.Counts = CountComponents(d.Eigenvalues, opt.Scaling, share, pa, cv)
 	k, err := opt.Components.Choose(m, r.Counts)
 	if err != nil {
 		return nil, err

@@ -15,6 +15,7 @@ const (
 	RuleBrokenStick RuleKind = "broken-stick" // Frontier 1976; Jackson 1993
 	RuleKaiser      RuleKind = "kaiser"       // λ > 1 with unit scaling; Kaiser 1960
 	RuleVariance    RuleKind = "variance"     // cumulative share threshold
+	RuleCV          RuleKind = "cv"           // element-wise k-fold cross-validation; Bro et al. 2008
 )
 
 // ComponentRule says how many components to retain.
@@ -32,7 +33,7 @@ var DefaultComponentRule = ComponentRule{Kind: RuleParallel, Auto: true}
 // rule when another rule is in use (80 %, common practice).
 const DefaultVarianceShare = 0.8
 
-// ParseComponentRule reads N | auto | parallel | broken-stick | kaiser |
+// ParseComponentRule reads N | auto | parallel | broken-stick | cv | kaiser |
 // variance:F (F a share in (0, 1], or a percentage in (1, 100]).
 func ParseComponentRule(s string) (ComponentRule, error) {
 	s = strings.TrimSpace(s)
@@ -45,6 +46,8 @@ func ParseComponentRule(s string) (ComponentRule, error) {
 		return ComponentRule{Kind: RuleBrokenStick}, nil
 	case string(RuleKaiser):
 		return ComponentRule{Kind: RuleKaiser}, nil
+	case string(RuleCV):
+		return ComponentRule{Kind: RuleCV}, nil
 	}
 	if v, ok := strings.CutPrefix(s, "variance:"); ok {
 		f, err := strconv.ParseFloat(v, 64)
@@ -58,7 +61,7 @@ func ParseComponentRule(s string) (ComponentRule, error) {
 	}
 	n, err := strconv.Atoi(s)
 	if err != nil || n < 1 {
-		return ComponentRule{}, fmt.Errorf("invalid --components %q: use a positive number, auto, parallel, broken-stick, kaiser or variance:F", s)
+		return ComponentRule{}, fmt.Errorf("invalid --components %q: use a positive number, auto, parallel, broken-stick, cv, kaiser or variance:F", s)
 	}
 	return ComponentRule{Kind: RuleFixed, Fixed: n}, nil
 }
@@ -91,6 +94,8 @@ func (r ComponentRule) Describe() string {
 		return "Kaiser–Guttman, λ > 1 (Kaiser 1960)"
 	case RuleVariance:
 		return fmt.Sprintf("cumulative variance ≥ %s %%", strconv.FormatFloat(100*r.Variance, 'g', -1, 64))
+	case RuleCV:
+		return "element-wise cross-validation (Bro et al. 2008)"
 	}
 	return string(r.Kind)
 }
@@ -101,12 +106,17 @@ type RuleCount struct {
 	Count   int      `json:"count"`
 	Applies bool     `json:"applies"`
 	Note    string   `json:"note,omitempty"`
+	// Borderline names the component (PC1, …) whose decision parallel
+	// analysis could not settle within its permutation cap; it is not
+	// counted.
+	Borderline string `json:"borderline,omitempty"`
 }
 
 // ComponentCounts gathers every rule's count, side by side.
 type ComponentCounts struct {
 	Parallel          Parallel
-	BrokenStickShares []float64 // expected share of each component under the broken stick
+	CV                CrossValidation // Folds 0 when it did not run
+	BrokenStickShares []float64       // expected share of each component under the broken stick
 	Counts            []RuleCount
 }
 
@@ -179,12 +189,20 @@ func VarianceCount(eigenvalues []float64, share float64) int {
 }
 
 // CountComponents applies every rule. parallel is the result of
-// ParallelAnalysis (Permutations 0 when it was not run).
-func CountComponents(eigenvalues []float64, scaling Scaling, varianceShare float64, parallel Parallel) ComponentCounts {
-	c := ComponentCounts{Parallel: parallel, BrokenStickShares: BrokenStick(len(eigenvalues))}
+// ParallelAnalysis (Permutations 0 when it was not run), cv that of
+// CrossValidate (Folds 0 when it was not run).
+func CountComponents(eigenvalues []float64, scaling Scaling, varianceShare float64, parallel Parallel, cv CrossValidation) ComponentCounts {
+	c := ComponentCounts{Parallel: parallel, CV: cv, BrokenStickShares: BrokenStick(len(eigenvalues))}
 	pa := RuleCount{Rule: RuleParallel, Count: parallel.Count, Applies: parallel.Permutations > 0}
 	if !pa.Applies {
 		pa.Note = "not run (--permutations 0)"
+	}
+	if parallel.Borderline >= 0 && pa.Applies {
+		pa.Borderline = fmt.Sprintf("PC%d", parallel.Borderline+1)
+	}
+	cvc := RuleCount{Rule: RuleCV, Count: cv.Count, Applies: cv.Folds > 0}
+	if !cvc.Applies {
+		cvc.Note = "needs at least 3 variables and 4 rows"
 	}
 	kaiser := RuleCount{Rule: RuleKaiser, Count: KaiserCount(eigenvalues), Applies: scaling == ScaleUnit}
 	if !kaiser.Applies {
@@ -193,6 +211,7 @@ func CountComponents(eigenvalues []float64, scaling Scaling, varianceShare float
 	c.Counts = []RuleCount{
 		pa,
 		{Rule: RuleBrokenStick, Count: BrokenStickCount(eigenvalues), Applies: true},
+		cvc,
 		kaiser,
 		{Rule: RuleVariance, Count: VarianceCount(eigenvalues, varianceShare), Applies: true,
 			Note: fmt.Sprintf("≥ %s %%", strconv.FormatFloat(100*varianceShare, 'g', -1, 64))},
@@ -218,6 +237,10 @@ func (r ComponentRule) Choose(m int, counts ComponentCounts) (int, error) {
 	case RuleParallel:
 		if _, ok := counts.Count(RuleParallel); !ok {
 			return 0, fmt.Errorf("--components %s needs permutations (--permutations > 0)", r)
+		}
+	case RuleCV:
+		if _, ok := counts.Count(RuleCV); !ok {
+			return 0, fmt.Errorf("--components cv needs at least 3 variables and 4 rows")
 		}
 	}
 	k, _ := counts.Count(r.Kind)

@@ -132,3 +132,103 @@ func TestParallelAnalysisIndependentOfThreads(t *testing.T) {
 		}
 	}
 }
+
+// The adaptive stopping of parallel analysis: a strong component and clear
+// noise settle in the first batch; noise alone settles as a drop; and the
+// exceedance shares equal a direct count over the permutations run.
+func TestAdaptiveParallelAnalysisSettles(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(4, 23), 300, 10, []float64{4, 3}, 1)
+	pp, _ := FitPreprocessing(x, TransformNone, ScaleUnit)
+	z := pp.Apply(nil, x)
+	d, _ := Decompose(z)
+	pa := ParallelAnalysis(z, d.Eigenvalues, 2000, 1, 2, nil)
+	if pa.Permutations != ParallelBatch || pa.Count != 2 || pa.Borderline != -1 {
+		t.Errorf("strong signal: %d permutations, count %d, borderline %d; want %d, 2, −1", pa.Permutations, pa.Count, pa.Borderline, ParallelBatch)
+	}
+	if pa.Decision[0] != DecisionKeep || pa.Decision[1] != DecisionKeep || pa.Decision[2] != DecisionDrop || pa.Decision[3] != DecisionBeyond {
+		t.Errorf("decisions %v", pa.Decision)
+	}
+
+	noise := synth.Gaussian(synth.RNG(5, 23), 200, 8)
+	pp, _ = FitPreprocessing(noise, TransformNone, ScaleUnit)
+	zn := pp.Apply(nil, noise)
+	dn, _ := Decompose(zn)
+	// Direct count: the same permutations, one at a time (cap = batch).
+	one := ParallelAnalysis(zn, dn.Eigenvalues, ParallelBatch, 2, 1, nil)
+	if one.Permutations != ParallelBatch {
+		t.Fatalf("ran %d permutations with cap %d", one.Permutations, ParallelBatch)
+	}
+	// The exceedance share of PC1 is the share of permuted first
+	// eigenvalues at or above the observed one; with the P95 also known,
+	// the two must be consistent: exceedance < 5 % exactly when the
+	// observed eigenvalue is above (about) the 95th percentile.
+	if (one.Exceedance[0] < 0.05) != (dn.Eigenvalues[0] > one.P95[0]) && math.Abs(one.Exceedance[0]-0.05) > 0.011 {
+		t.Errorf("PC1 exceedance %.3f inconsistent with observed %.4f vs P95 %.4f", one.Exceedance[0], dn.Eigenvalues[0], one.P95[0])
+	}
+	if one.Decision[0] == DecisionKeep {
+		t.Errorf("pure noise: PC1 kept (exceedance %.3f)", one.Exceedance[0])
+	}
+}
+
+// exceedance and settle against a direct computation of Clopper–Pearson
+// bounds: with 0 of 100 permutations reaching the observed eigenvalue the
+// one-sided 99 % upper bound is 1 − 0.01^(1/100) = 0.0450 (closed form for
+// c = 0), below 5 %: keep; with 5 of 100 (the point estimate at 5 %) the
+// decision is borderline; with 30 of 100 the lower bound (scipy 1.10.1
+// beta.ppf(0.01, 30, 71) = 0.198316) is above 5 %: drop.
+func TestSettleDecisions(t *testing.T) {
+	lo, hi := exceedanceBounds(0, 100)
+	if lo != 0 || math.Abs(hi-(1-math.Pow(0.01, 0.01))) > 1e-9 {
+		t.Errorf("bounds for 0/100: %g, %g", lo, hi)
+	}
+	lo, _ = exceedanceBounds(30, 100)
+	if math.Abs(lo-0.1983159649421128) > 1e-9 {
+		t.Errorf("lower bound for 30/100: %g, want 0.198316 (scipy 1.10.1)", lo)
+	}
+	cases := []struct {
+		exceed    []int
+		b         int
+		count, bl int
+		done      bool
+		decisions []ParallelDecision
+	}{
+		{[]int{0, 0, 30, 90}, 100, 2, -1, true, []ParallelDecision{DecisionKeep, DecisionKeep, DecisionDrop, DecisionBeyond}},
+		{[]int{0, 5, 30, 90}, 100, 1, 1, false, []ParallelDecision{DecisionKeep, DecisionBorderline, DecisionBeyond, DecisionBeyond}},
+		{[]int{60, 0, 0, 0}, 100, 0, -1, true, []ParallelDecision{DecisionDrop, DecisionBeyond, DecisionBeyond, DecisionBeyond}},
+		{[]int{0, 0, 0}, 100, 3, -1, true, []ParallelDecision{DecisionKeep, DecisionKeep, DecisionKeep}},
+		{[]int{0, 0}, 50, 0, 0, false, []ParallelDecision{DecisionBorderline, DecisionBeyond}}, // 50 cannot settle a keep
+	}
+	for i, c := range cases {
+		count, bl, dec, done := settle(c.exceed, c.b)
+		if count != c.count || bl != c.bl || done != c.done {
+			t.Errorf("case %d: count %d borderline %d done %v; want %d %d %v", i, count, bl, done, c.count, c.bl, c.done)
+		}
+		for a := range dec {
+			if dec[a] != c.decisions[a] {
+				t.Errorf("case %d: decisions %v, want %v", i, dec, c.decisions)
+				break
+			}
+		}
+	}
+}
+
+// An eigenvalue planted exactly at the permutation threshold stays
+// borderline at a small cap and is not counted. The observed value given
+// is the 95th percentile of a first run's permuted PC1 eigenvalues, so its
+// exceedance share is about 5 %.
+func TestParallelAnalysisBorderlineAtCap(t *testing.T) {
+	noise := synth.Gaussian(synth.RNG(6, 23), 150, 8)
+	pp, _ := FitPreprocessing(noise, TransformNone, ScaleUnit)
+	z := pp.Apply(nil, noise)
+	d, _ := Decompose(z)
+	first := ParallelAnalysis(z, d.Eigenvalues, 400, 7, 2, nil)
+	obs := append([]float64{first.P95[0]}, d.Eigenvalues[1:]...)
+	pa := ParallelAnalysis(z, obs, 400, 7, 2, nil)
+	if pa.Borderline != 0 || pa.Count != 0 || pa.Permutations != 400 || pa.Decision[0] != DecisionBorderline {
+		t.Errorf("at the threshold: borderline %d, count %d, %d permutations, decisions %v", pa.Borderline, pa.Count, pa.Permutations, pa.Decision)
+	}
+	counts := CountComponents(obs, ScaleUnit, 0.8, pa, CrossValidation{})
+	if counts.Counts[0].Borderline != "PC1" {
+		t.Errorf("rule count does not name the borderline component: %+v", counts.Counts[0])
+	}
+}

@@ -4,10 +4,12 @@ import (
 	"math/rand/v2"
 	"runtime"
 	"slices"
+	"sync"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // WorkspaceBudget bounds the memory (bytes) that resampling workers may hold
@@ -28,38 +30,138 @@ func workersFor(threads int, perWorker int64) int {
 
 // Parallel is the result of parallel analysis.
 type Parallel struct {
+	// Permutations is the number of permutations actually run: a multiple
+	// of ParallelBatch (or the cap) at which every decision that matters
+	// was settled, or the cap.
 	Permutations int
+	// Cap is the most permutations the run was allowed (--permutations).
+	Cap int
 	// P95 is, per component, the 95th percentile of the eigenvalues of the
-	// permuted data.
+	// permuted data (from the permutations run), drawn on the scree plot.
 	P95 []float64
-	// Count is the number of leading components whose observed eigenvalue
-	// exceeds P95.
+	// Exceedance is, per component, the share of permutations whose a-th
+	// eigenvalue is at least the observed a-th eigenvalue: the Monte Carlo
+	// p-value of the component.
+	Exceedance []float64
+	// Decision is, per component, DecisionKeep, DecisionDrop,
+	// DecisionBorderline, or DecisionBeyond for components after the
+	// sequential rule stopped.
+	Decision []ParallelDecision
+	// Count is the number of leading components whose keep decision is
+	// settled. A borderline component is not counted.
 	Count int
+	// Borderline is the 0-based index of the component whose decision was
+	// still unsettled at the cap, or −1.
+	Borderline int
+}
+
+// ParallelDecision is the outcome of parallel analysis for one component.
+type ParallelDecision string
+
+const (
+	DecisionKeep       ParallelDecision = "keep"
+	DecisionDrop       ParallelDecision = "drop"
+	DecisionBorderline ParallelDecision = "borderline"
+	DecisionBeyond     ParallelDecision = "not tested" // after the sequential rule stopped
+)
+
+// Adaptive parallel analysis settings.
+const (
+	// ParallelBatch permutations run between two looks at the decisions.
+	// With none of 100 permutations reaching the observed eigenvalue the
+	// one-sided 99 % Clopper–Pearson upper bound is 1 − 0.01^(1/100) =
+	// 0.045 < 0.05, so a clear component is settled by the first batch.
+	ParallelBatch = 100
+	// ParallelAlpha is the significance level of each component's test.
+	ParallelAlpha = 0.05
+	// ParallelConfidence is the one-sided confidence of the Clopper–Pearson
+	// bounds (Clopper & Pearson 1934, Biometrika 26:404–413) that must lie
+	// on one side of ParallelAlpha for a decision to count as settled: the
+	// band is the two-sided 98 % interval. Looking after every batch is a
+	// sequential test; at most cap/batch looks, each wrong with probability
+	// below 1 %, is the price of stopping early (Besag & Clifford 1991,
+	// Biometrika 78:301–304, on sequential Monte Carlo p-values).
+	ParallelConfidence = 0.99
+)
+
+// exceedanceBounds returns the one-sided Clopper–Pearson bounds at
+// ParallelConfidence for c exceedances in b permutations.
+func exceedanceBounds(c, b int) (lo, hi float64) {
+	a := 1 - ParallelConfidence
+	lo, hi = 0, 1
+	if c > 0 {
+		lo = distuv.Beta{Alpha: float64(c), Beta: float64(b - c + 1)}.Quantile(a)
+	}
+	if c < b {
+		hi = distuv.Beta{Alpha: float64(c + 1), Beta: float64(b - c)}.Quantile(1 - a)
+	}
+	return lo, hi
+}
+
+// settle applies the sequential rule to the exceedance counts after b
+// permutations: components are kept while their decision is a settled
+// keep; the first component that is not is a settled drop, or borderline.
+// done reports whether no further permutation can change the count.
+func settle(exceed []int, b int) (count, borderline int, decision []ParallelDecision, done bool) {
+	m := len(exceed)
+	decision = make([]ParallelDecision, m)
+	borderline = -1
+	done = true
+	for a := 0; a < m; a++ {
+		if count < a || borderline >= 0 {
+			decision[a] = DecisionBeyond
+			continue
+		}
+		lo, hi := exceedanceBounds(exceed[a], b)
+		switch {
+		case hi < ParallelAlpha:
+			decision[a] = DecisionKeep
+			count++
+		case lo > ParallelAlpha:
+			decision[a] = DecisionDrop
+		default:
+			decision[a] = DecisionBorderline
+			borderline = a
+			done = false
+		}
+	}
+	return count, borderline, decision, done
 }
 
 // ParallelAnalysis runs Horn's (1965) parallel analysis (Psychometrika
-// 30:179–185) with the 95th-percentile criterion of Glorfeld (1995, Educ.
-// Psychol. Meas. 55:377–393): each variable of the preprocessed matrix z is
-// permuted independently, destroying the correlations while keeping each
-// variable's distribution, and components are retained while the observed
-// eigenvalue exceeds the 95th percentile of the permuted ones.
+// 30:179–185): each variable of the preprocessed matrix z is permuted
+// independently, destroying the correlations while keeping each variable's
+// distribution, and components are retained while the observed eigenvalue
+// is significantly above the permuted ones at 5 % (Glorfeld 1995, Educ.
+// Psychol. Meas. 55:377–393, whose 95th-percentile criterion this is in
+// p-value form).
+//
+// The number of permutations is adaptive. Permutations run in batches of
+// ParallelBatch; after each batch the exceedance frequency of each
+// component (the share of permutations whose eigenvalue of the same rank
+// reaches the observed one) is compared with 5 % through its Clopper–
+// Pearson bounds, and the run stops as soon as every decision the count
+// depends on — the leading keeps and the first drop — is settled. At the
+// cap (maxPermutations) a decision still unsettled is reported as
+// borderline: the count is the settled keeps, and the borderline component
+// is named, never decided by the seed.
 //
 // Permuting rows of a column changes neither its mean nor its scale, so
 // permuting the preprocessed columns equals preprocessing the permuted data.
 // Row order does not change the eigenvalues either, so the first column is
 // left in place and the other p−1 are permuted.
 //
-// Each permutation's eigenvalues come from the smaller cross-product (p×p
-// for tall data, n×n for wide), which is exact up to rounding of order
-// ε·λ_1: ample for a comparison at the 95th percentile.
-func ParallelAnalysis(z *mat.Dense, observed []float64, permutations int, seed uint64, threads int, progress Progress) Parallel {
+// Each permutation has its own random stream and the batches are fixed, so
+// the result does not depend on threads. Each permutation's eigenvalues come
+// from the smaller cross-product (p×p for tall data, n×n for wide), which is
+// exact up to rounding of order ε·λ_1: ample for a comparison at 5 %.
+func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, seed uint64, threads int, progress Progress) Parallel {
 	n, p := z.Dims()
 	m := min(n-1, p)
-	res := Parallel{Permutations: permutations}
-	if permutations <= 0 {
+	res := Parallel{Cap: max(maxPermutations, 0), Borderline: -1}
+	if maxPermutations <= 0 {
 		return res
 	}
-	eig := make([][]float64, permutations)
 	raw := z.RawMatrix()
 	tall := n >= p
 	short := min(n, p)
@@ -71,13 +173,25 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, permutations int, seed u
 		column  []float64
 		shuffle shuffleWorkspace
 	}
+	// Workspaces are kept between batches: each holds a copy of the data.
+	var free, used []*workspace
+	var mu sync.Mutex
 	newWorkspace := func() *workspace {
-		w := &workspace{buf: make([]float64, n*p), gram: make([]float64, short*short), values: make([]float64, short)}
-		if tall {
-			w.column = make([]float64, n)
+		mu.Lock()
+		defer mu.Unlock()
+		var w *workspace
+		if k := len(free); k > 0 {
+			w, free = free[k-1], free[:k-1]
+		} else {
+			w = &workspace{buf: make([]float64, n*p), gram: make([]float64, short*short), values: make([]float64, short)}
+			if tall {
+				w.column = make([]float64, n)
+			}
 		}
+		used = append(used, w)
 		return w
 	}
+	var eig [][]float64
 	task := func(w *workspace, b int) {
 		rng := taskRNG(seed, streamPermutation, b)
 		if tall {
@@ -120,19 +234,44 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, permutations int, seed u
 		eig[b] = out
 	}
 	workers := workersFor(threads, int64(8*n*p))
-	parallelFor(permutations, workers, newWorkspace, task, "permutations", progress)
+	exceed := make([]int, m)
+	for done := 0; done < maxPermutations; {
+		batch := min(ParallelBatch, maxPermutations-done)
+		base := done
+		eig = append(eig, make([][]float64, batch)...)
+		var step Progress
+		if progress != nil {
+			step = func(stage string, d, _ int) { progress(stage, base+d, maxPermutations) }
+		}
+		parallelFor(batch, workers, newWorkspace, func(w *workspace, i int) { task(w, base+i) }, "permutations", step)
+		free = append(free, used...) // the workers have finished: reuse their memory
+		used = used[:0]
+		done += batch
+		for b := base; b < done; b++ {
+			for a := 0; a < m; a++ {
+				if eig[b][a] >= observed[a] {
+					exceed[a]++
+				}
+			}
+		}
+		var finished bool
+		res.Count, res.Borderline, res.Decision, finished = settle(exceed, done)
+		res.Permutations = done
+		if finished {
+			break
+		}
+	}
 
 	res.P95 = make([]float64, m)
-	col := make([]float64, permutations)
+	res.Exceedance = make([]float64, m)
+	col := make([]float64, res.Permutations)
 	for a := 0; a < m; a++ {
 		for b := range eig {
 			col[b] = eig[b][a]
 		}
 		slices.Sort(col)
 		res.P95[a] = percentile(col, 95)
-	}
-	for res.Count < m && observed[res.Count] > res.P95[res.Count] {
-		res.Count++
+		res.Exceedance[a] = float64(exceed[a]) / float64(res.Permutations)
 	}
 	return res
 }

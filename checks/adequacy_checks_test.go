@@ -131,7 +131,7 @@ func TestComponentChecks(t *testing.T) {
 	// Two well-separated planted components: the rules agree, eigenvalues
 	// are separated.
 	x, _ := synth.LowRank(synth.RNG(3, 41), 500, 10, []float64{4, 2}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Permutations: 50, Seed: 1})
+	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Permutations: 100, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -73,8 +73,18 @@ const (
 
 // Components.
 const (
-	// RuleSpreadLimit: the count rules may differ by one component before
-	// their disagreement is flagged (common practice).
+	// RuleSpreadLimit: parallel analysis and cross-validation may differ by
+	// one component before their disagreement is flagged (common practice:
+	// both carry sampling error of about one component where the last
+	// retained eigenvalue is near the noise). Broken stick is compared only
+	// when it counts MORE than both: it is known to under-count whenever
+	// the first eigenvalue takes a large share, since every later share is
+	// then small (Jackson 1993, Ecology 74:2204–2214; Peres-Neto, Jackson &
+	// Somers 2005, Comput. Stat. Data Anal. 49:974–997, who found it among
+	// the most conservative rules), so a lower broken-stick count is no
+	// evidence against the others. Kaiser and the cumulative share are
+	// shown as information and never flag (Jackson 1993 found both
+	// unreliable as stopping rules).
 	RuleSpreadLimit = 1
 )
 

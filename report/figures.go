@@ -407,6 +407,30 @@ func screeFigure(res *analysis.Result) drawing {
 	return dr
 }
 
+// pressFigure draws the cross-validation curve: PRESS as a share of the
+// total sum of squares against the number of components.
+func pressFigure(res *analysis.Result) drawing {
+	cv := res.Counts.CV
+	idx := make([]float64, len(cv.PRESS))
+	share := make([]float64, len(cv.PRESS))
+	ymax := 0.0
+	for a, v := range cv.PRESS {
+		idx[a], share[a] = float64(a), v/cv.SS
+		if isFinite(share[a]) {
+			ymax = math.Max(ymax, share[a])
+		}
+	}
+	p := newPlot("Cross-validation", "components", "PRESS / total sum of squares")
+	p.Add(guides{})
+	p.X.Min, p.X.Max = -0.5, float64(len(idx))-0.5
+	p.Y.Min, p.Y.Max = 0, ymax*1.08
+	p.X.Tick.Marker = integerTicks{}
+	addLine(p, idx, share, lineStyle(mainColor, 1.2), "")
+	addScatter(p, idx[cv.Min:cv.Min+1], share[cv.Min:cv.Min+1], draw.GlyphStyle{Color: accent99, Shape: draw.RingGlyph{}, Radius: vg.Points(6)}, "smallest PRESS")
+	addScatter(p, idx[cv.Count:cv.Count+1], share[cv.Count:cv.Count+1], draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(3)}, "chosen (one-SE rule)")
+	return drawing{plot: p, w: figWidth, h: figHeight}
+}
+
 func scaleSlice(x []float64, f float64) []float64 {
 	out := make([]float64, len(x))
 	for i, v := range x {

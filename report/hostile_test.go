@@ -118,7 +118,7 @@ func TestHostileNamesStayLiteral(t *testing.T) {
 		}
 		return tab
 	}
-	res, err := analysis.Analyze(read(), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.DefaultComponentRule, Permutations: 20, Bootstrap: 20, Seed: 1})
+	res, err := analysis.Analyze(read(), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.DefaultComponentRule, Permutations: 100, Bootstrap: 20, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -24,6 +24,10 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{demmel2012, author = {Demmel, James and Grigori, Laura and Hoemmen, Mark and Langou, Julien}, title = {Communication-optimal parallel and sequential {QR} and {LU} factorizations}, journal = {SIAM Journal on Scientific Computing}, volume = {34}, number = {1}, pages = {A206--A239}, year = {2012}}`},
 	"horn1965": {Citation: "Horn, J. L. (1965). A rationale and test for the number of factors in factor analysis. Psychometrika 30: 179–185.",
 		BibTeX: `@article{horn1965, author = {Horn, John L.}, title = {A rationale and test for the number of factors in factor analysis}, journal = {Psychometrika}, volume = {30}, number = {2}, pages = {179--185}, year = {1965}}`},
+	"bro2008": {Citation: "Bro, R., Kjeldahl, K., Smilde, A. K. & Kiers, H. A. L. (2008). Cross-validation of component models: a critical look at current methods. Analytical and Bioanalytical Chemistry 390: 1241–1251.",
+		BibTeX: `@article{bro2008, author = {Bro, Rasmus and Kjeldahl, Karin and Smilde, Age K. and Kiers, Henk A. L.}, title = {Cross-validation of component models: a critical look at current methods}, journal = {Analytical and Bioanalytical Chemistry}, volume = {390}, number = {5}, pages = {1241--1251}, year = {2008}}`},
+	"clopper1934": {Citation: "Clopper, C. J. & Pearson, E. S. (1934). The use of confidence or fiducial limits illustrated in the case of the binomial. Biometrika 26: 404–413.",
+		BibTeX: `@article{clopper1934, author = {Clopper, C. J. and Pearson, E. S.}, title = {The use of confidence or fiducial limits illustrated in the case of the binomial}, journal = {Biometrika}, volume = {26}, number = {4}, pages = {404--413}, year = {1934}}`},
 	"glorfeld1995": {Citation: "Glorfeld, L. W. (1995). An improvement on Horn's parallel analysis methodology for selecting the correct number of factors to retain. Educational and Psychological Measurement 55: 377–393.",
 		BibTeX: `@article{glorfeld1995, author = {Glorfeld, Louis W.}, title = {An improvement on {Horn's} parallel analysis methodology for selecting the correct number of factors to retain}, journal = {Educational and Psychological Measurement}, volume = {55}, number = {3}, pages = {377--393}, year = {1995}}`},
 	"frontier1976": {Citation: "Frontier, S. (1976). Étude de la décroissance des valeurs propres dans une analyse en composantes principales: comparaison avec le modèle du bâton brisé. Journal of Experimental Marine Biology and Ecology 25: 67–75.",
@@ -165,8 +169,14 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	fmt.Fprintf(&b, "The number of components, %d, was chosen by %s", k, res.Rule.Describe())
 	switch res.Rule.Kind {
 	case analysis.RuleParallel:
-		fmt.Fprintf(&b, " with %d column-wise permutations and the 95th-percentile criterion (Glorfeld 1995)", res.Counts.Parallel.Permutations)
-		c.cite("horn1965", "glorfeld1995")
+		fmt.Fprintf(&b, " at 5 %% (Glorfeld 1995) with column-wise permutations run in batches of %d until every decision was settled by 99 %% Clopper–Pearson bounds (Clopper & Pearson 1934), %d of at most %d", analysis.ParallelBatch, res.Counts.Parallel.Permutations, res.Counts.Parallel.Cap)
+		if bl := res.Counts.Parallel.Borderline; bl >= 0 {
+			fmt.Fprintf(&b, "; PC%d stayed borderline and was not counted", bl+1)
+		}
+		c.cite("horn1965", "glorfeld1995", "clopper1934")
+	case analysis.RuleCV:
+		fmt.Fprintf(&b, ", %d-fold, on %d rows, with the fewest components within one standard error of the smallest PRESS", res.Counts.CV.Folds, res.Counts.CV.Rows)
+		c.cite("bro2008")
 	case analysis.RuleBrokenStick:
 		c.cite("frontier1976", "jackson1993")
 	case analysis.RuleKaiser:
@@ -181,6 +191,9 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 		case analysis.RuleParallel:
 			others = append(others, fmt.Sprintf("parallel analysis (Horn 1965; %d permutations) %d", res.Counts.Parallel.Permutations, rc.Count))
 			c.cite("horn1965")
+		case analysis.RuleCV:
+			others = append(others, fmt.Sprintf("element-wise %d-fold cross-validation (Bro et al. 2008) %d", res.Counts.CV.Folds, rc.Count))
+			c.cite("bro2008")
 		case analysis.RuleBrokenStick:
 			others = append(others, fmt.Sprintf("the broken stick (Frontier 1976) %d", rc.Count))
 			c.cite("frontier1976")

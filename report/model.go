@@ -79,6 +79,7 @@ type ComponentsBlock struct {
 	Rules     [][]string
 	Used      string
 	Scree     Figure
+	Press     *Figure // nil when cross-validation did not run
 }
 
 type LoadingsBlock struct {
@@ -245,6 +246,9 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 
 	// Figures in report order.
 	d.figures = append(d.figures, figureJob{&d.Components.Scree, func() drawing { return screeFigure(res) }})
+	if d.Components.Press != nil {
+		d.figures = append(d.figures, figureJob{d.Components.Press, func() drawing { return pressFigure(res) }})
+	}
 	for a := range d.Loadings.Figures {
 		d.figures = append(d.figures, figureJob{&d.Loadings.Figures[a], func() drawing { return loadingsFigure(res, a) }})
 	}
@@ -407,6 +411,14 @@ func componentsBlock(res *analysis.Result) ComponentsBlock {
 	}
 	b.Scree = Figure{Stem: "scree", Alt: "Scree plot",
 		Caption: "Scree plot: observed eigenvalues (filled: retained), the 95th percentile of the eigenvalues of column-permuted data, the broken-stick expectation, and the cumulative share of variance on the right axis."}
+	if cv := res.Counts.CV; cv.Folds > 0 {
+		rows := fmt.Sprintf("all %d rows", cv.Rows)
+		if cv.Rows < cv.RowsTotal {
+			rows = fmt.Sprintf("a seeded random subset of %d of the %d rows", cv.Rows, cv.RowsTotal)
+		}
+		b.Press = &Figure{Stem: "press", Alt: "Cross-validation PRESS curve",
+			Caption: fmt.Sprintf("Element-wise %d-fold cross-validation (Bro et al. 2008) on %s: PRESS, the summed squared error of predicting each left-out element from a model fitted without it, as a share of the total sum of squares, for 0 (mean only) to %d components; the ring marks the smallest PRESS and the filled dot the count chosen, the fewest components within one standard error of the smallest (press.csv holds the values).", cv.Folds, rows, len(cv.PRESS)-1)}
+	}
 	return b
 }
 
@@ -435,6 +447,8 @@ func ruleName(k analysis.RuleKind) string {
 		return "Parallel analysis (Horn 1965)"
 	case analysis.RuleBrokenStick:
 		return "Broken stick (Frontier 1976)"
+	case analysis.RuleCV:
+		return "Element-wise cross-validation (Bro et al. 2008)"
 	case analysis.RuleKaiser:
 		return "Kaiser–Guttman λ > 1 (Kaiser 1960)"
 	case analysis.RuleVariance:

@@ -85,16 +85,58 @@ type InputInfo struct {
 }
 
 type ComponentsInfo struct {
-	Retained           int                  `json:"retained"`
-	Rule               string               `json:"rule"`
-	NoStructure        bool                 `json:"no_structure"`
-	Method             string               `json:"method"`
-	Eigenvalues        []Number             `json:"eigenvalues"`
-	Percent            []Number             `json:"percent"`
-	Counts             []analysis.RuleCount `json:"counts"`
-	Permutations       int                  `json:"permutations"`
-	PermutationP95     []Number             `json:"permutation_p95"`
-	BrokenStickPercent []Number             `json:"broken_stick_percent"`
+	Retained       int                  `json:"retained"`
+	Rule           string               `json:"rule"`
+	NoStructure    bool                 `json:"no_structure"`
+	Method         string               `json:"method"`
+	Eigenvalues    []Number             `json:"eigenvalues"`
+	Percent        []Number             `json:"percent"`
+	Counts         []analysis.RuleCount `json:"counts"`
+	Permutations   int                  `json:"permutations"`
+	PermutationCap int                  `json:"permutation_cap"`
+	PermutationP95 []Number             `json:"permutation_p95"`
+	// PermutationExceedance is each component's Monte Carlo p-value: the
+	// share of permutations whose eigenvalue reaches the observed one.
+	PermutationExceedance []Number `json:"permutation_exceedance"`
+	// ParallelDecisions is keep, drop, borderline or "not tested" per
+	// component; Borderline names the unsettled component, if any.
+	ParallelDecisions  []analysis.ParallelDecision `json:"parallel_decisions"`
+	Borderline         *string                     `json:"parallel_borderline"`
+	BrokenStickPercent []Number                    `json:"broken_stick_percent"`
+	CrossValidation    *CrossValidationInfo        `json:"cross_validation"`
+}
+
+// CrossValidationInfo summarises element-wise cross-validation; null when
+// it did not run.
+type CrossValidationInfo struct {
+	Folds       int      `json:"folds"`
+	Rows        int      `json:"rows_used"`
+	RowsTotal   int      `json:"rows_total"`
+	PRESS       []Number `json:"press"`
+	PressShare  []Number `json:"press_share"`
+	Smallest    int      `json:"smallest_press_at"`
+	SE          Number   `json:"one_se"`
+	Count       int      `json:"count"`
+	Iterations  int      `json:"max_iterations_used"`
+	Unconverged int      `json:"unconverged_fits"`
+}
+
+func crossValidationInfo(res *analysis.Result) *CrossValidationInfo {
+	cv := res.Counts.CV
+	if cv.Folds == 0 {
+		return nil
+	}
+	return &CrossValidationInfo{Folds: cv.Folds, Rows: cv.Rows, RowsTotal: cv.RowsTotal,
+		PRESS: numbers(cv.PRESS), PressShare: scaled(cv.PRESS, 1/cv.SS), Smallest: cv.Min,
+		SE: Number(cv.SE), Count: cv.Count, Iterations: cv.Iterations, Unconverged: cv.Unconverged}
+}
+
+func parallelBorderline(res *analysis.Result) *string {
+	if b := res.Counts.Parallel.Borderline; b >= 0 && res.Counts.Parallel.Permutations > 0 {
+		s := componentName(b)
+		return &s
+	}
+	return nil
 }
 
 // LimitsInfo holds the control limits; null where a limit is undefined.
@@ -365,16 +407,21 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		},
 		Options: meta.Options,
 		Components: ComponentsInfo{
-			Retained:           res.Retained,
-			Rule:               res.Rule.String(),
-			NoStructure:        res.NoStructure,
-			Method:             res.Decomp.Method,
-			Eigenvalues:        numbers(res.Decomp.Eigenvalues),
-			Percent:            numbers(Percentages(res.Decomp.Eigenvalues)),
-			Counts:             res.Counts.Counts,
-			Permutations:       res.Counts.Parallel.Permutations,
-			PermutationP95:     numbers(res.Counts.Parallel.P95),
-			BrokenStickPercent: scaled(res.Counts.BrokenStickShares, 100),
+			Retained:              res.Retained,
+			Rule:                  res.Rule.String(),
+			NoStructure:           res.NoStructure,
+			Method:                res.Decomp.Method,
+			Eigenvalues:           numbers(res.Decomp.Eigenvalues),
+			Percent:               numbers(Percentages(res.Decomp.Eigenvalues)),
+			Counts:                res.Counts.Counts,
+			Permutations:          res.Counts.Parallel.Permutations,
+			PermutationCap:        res.Counts.Parallel.Cap,
+			PermutationP95:        numbers(res.Counts.Parallel.P95),
+			PermutationExceedance: numbers(res.Counts.Parallel.Exceedance),
+			ParallelDecisions:     res.Counts.Parallel.Decision,
+			Borderline:            parallelBorderline(res),
+			BrokenStickPercent:    scaled(res.Counts.BrokenStickShares, 100),
+			CrossValidation:       crossValidationInfo(res),
 		},
 		Limits: LimitsInfo{
 			T2_95:    Number(lim.T2_95),
@@ -422,6 +469,12 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 			name string
 			rows [][]string
 		}{"review-variants.csv", VariantRows(audit.Review)})
+	}
+	if rows := PressRows(res); rows != nil {
+		files = append(files, struct {
+			name string
+			rows [][]string
+		}{"press.csv", rows})
 	}
 	if rows := StabilityRows(res); rows != nil {
 		files = append(files, struct {

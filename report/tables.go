@@ -75,7 +75,7 @@ func streamCSV(path string, header []string, n int, row func(i int, dst []string
 func VarianceRows(res *analysis.Result) [][]string {
 	d := res.Decomp
 	pct := Percentages(d.Eigenvalues)
-	header := []string{"component", "eigenvalue", "percent", "cumulative_percent", "permutation_p95", "broken_stick_percent"}
+	header := []string{"component", "eigenvalue", "percent", "cumulative_percent", "permutation_p95", "permutation_exceedance", "parallel_decision", "broken_stick_percent"}
 	for _, c := range res.Counts.Counts {
 		header = append(header, "kept_"+strings.ReplaceAll(string(c.Rule), "-", "_"))
 	}
@@ -84,11 +84,11 @@ func VarianceRows(res *analysis.Result) [][]string {
 	cum := 0.0
 	for a, l := range d.Eigenvalues {
 		cum += pct[a]
-		p95 := ""
-		if res.Counts.Parallel.Permutations > 0 {
-			p95 = num(res.Counts.Parallel.P95[a])
+		p95, exceed, decision := "", "", ""
+		if pa := res.Counts.Parallel; pa.Permutations > 0 {
+			p95, exceed, decision = num(pa.P95[a]), num(pa.Exceedance[a]), string(pa.Decision[a])
 		}
-		row := []string{componentName(a), num(l), num(pct[a]), num(cum), p95, num(100 * res.Counts.BrokenStickShares[a])}
+		row := []string{componentName(a), num(l), num(pct[a]), num(cum), p95, exceed, decision, num(100 * res.Counts.BrokenStickShares[a])}
 		for _, c := range res.Counts.Counts {
 			kept := ""
 			if c.Applies {
@@ -98,6 +98,32 @@ func VarianceRows(res *analysis.Result) [][]string {
 		}
 		row = append(row, strconv.FormatBool(a < res.Retained))
 		rows = append(rows, row)
+	}
+	return rows
+}
+
+// PressRows builds press.csv, the cross-validation curve: per number of
+// components a (0 = the mean only), PRESS summed over the folds, PRESS as a
+// share of the total sum of squares of the rows used, each fold's PRESS,
+// and which count has the smallest PRESS and which the rule chose. It is
+// nil when cross-validation did not run.
+func PressRows(res *analysis.Result) [][]string {
+	cv := res.Counts.CV
+	if cv.Folds == 0 {
+		return nil
+	}
+	header := []string{"components", "press", "press_share"}
+	for f := 1; f <= cv.Folds; f++ {
+		header = append(header, fmt.Sprintf("press_fold%d", f))
+	}
+	header = append(header, "smallest", "chosen")
+	rows := [][]string{header}
+	for a, v := range cv.PRESS {
+		row := []string{strconv.Itoa(a), num(v), num(v / cv.SS)}
+		for f := range cv.Folds {
+			row = append(row, num(cv.FoldPRESS[f][a]))
+		}
+		rows = append(rows, append(row, strconv.FormatBool(a == cv.Min), strconv.FormatBool(a == cv.Count)))
 	}
 	return rows
 }

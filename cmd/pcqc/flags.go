@@ -99,12 +99,16 @@ Preprocessing (centring is always done):
                       sample standard deviation, n−1)
 
 Components:
-  --components RULE   N | auto | parallel | broken-stick | kaiser | variance:F
-                      (default auto = parallel analysis). variance:0.8 keeps
-                      the fewest components reaching 80 % of the variance;
-                      kaiser (λ > 1) needs --scale unit
-  --permutations P    column-wise permutations for parallel analysis
-                      (default 200; 0 turns it off)
+  --components RULE   N | auto | parallel | broken-stick | cv | kaiser |
+                      variance:F (default auto = parallel analysis). cv is
+                      element-wise 7-fold cross-validation (PRESS);
+                      variance:0.8 keeps the fewest components reaching 80 %
+                      of the variance; kaiser (λ > 1) needs --scale unit
+  --permutations P    the most column-wise permutations parallel analysis may
+                      run (default 2000; 0 turns it off). They run in batches
+                      of 100 and stop once every keep/drop decision is
+                      settled; a decision unsettled at P is reported as
+                      borderline and not counted
 
 Stability:
   --bootstrap B       bootstrap resamples of the whole pipeline for loading

@@ -44,7 +44,7 @@ var quickTargets = Bounds{MinPass: 0.6, MinRetainedK: 0.8, DefaultMaxAlarm: 0.34
 
 // quickSettings keep the quick harness fast; the full one uses the
 // defaults of pcqc run.
-var quickSettings = Settings{Permutations: 40, Bootstrap: 40}
+var quickSettings = Settings{Permutations: 300, Bootstrap: 60}
 
 // quickSeed is the seed of the quick harness (any fixed value of our own).
 const quickSeed = 0x5eed_c0de_2024

@@ -1,0 +1,431 @@
+package analysis
+
+import (
+	"math"
+	"slices"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/mat"
+)
+
+// Cross-validation settings.
+const (
+	// CVFolds is the number of element-wise folds. Seven is common practice
+	// in chemometrics (Wold 1978, Technometrics 20:397–405, deleted about a
+	// seventh of the elements at a time): each fold trains on 6/7 of the
+	// elements, close enough to the whole table for the model to be the
+	// same, while seven folds keep the cost at seven model fits per count.
+	CVFolds = 7
+	// CVMaxRows is the most rows cross-validation uses; larger tables are
+	// cross-validated on a seeded random subset of this many rows. PRESS
+	// judges where the structure stops, and 300 rows determine components
+	// well above noise; the cost is then bounded whatever n is.
+	CVMaxRows = 300
+	// CVMaxComponents is the largest count whose PRESS is computed.
+	CVMaxComponents = 15
+	// CVPatience: the PRESS curve is followed until this many successive
+	// counts bring no new minimum (common practice in early stopping); the
+	// curve beyond is noise being fitted.
+	CVPatience = 2
+	// CVTolerance and CVMaxIterations stop the imputation of each fold's
+	// left-out elements: iterations stop when the imputed values change by
+	// less than CVTolerance times the root mean square of the training
+	// elements, or after CVMaxIterations.
+	CVTolerance     = 1e-4
+	CVMaxIterations = 50
+)
+
+// streamCrossValidation is the random stream of the fold assignment.
+const streamCrossValidation = 3 << 40
+
+// CrossValidation is the result of element-wise k-fold cross-validation
+// of the PCA model.
+type CrossValidation struct {
+	Folds     int
+	Rows      int // rows used (a seeded subset when the table has more than CVMaxRows)
+	RowsTotal int
+	// PRESS[a] is the sum, over every element of the rows used, of the
+	// squared error of its prediction by an a-component model fitted
+	// without it, in the units of the preprocessed table; PRESS[0] is the
+	// mean-only model.
+	PRESS []float64
+	// FoldPRESS[f][a] is fold f's share of PRESS[a].
+	FoldPRESS [][]float64
+	// SS is the sum of squares of the preprocessed elements of the rows
+	// used, for reading PRESS as a share.
+	SS float64
+	// Min is the count with the smallest PRESS; SE is the standard error of
+	// the PRESS difference between Count and Min over the folds.
+	Min   int
+	SE    float64
+	Count int
+	// Iterations is the most imputation iterations any fit needed;
+	// Unconverged counts the fits stopped at CVMaxIterations.
+	Iterations  int
+	Unconverged int
+}
+
+// CVFoldAssignment returns the diagonal element-wise fold pattern of an
+// n×p table: element (i, j) belongs to fold (r_i + j) mod k, where r is a
+// seeded random permutation of the rows. Each row loses about p/k elements
+// to each fold and each column about n/k, so no fold deletes a whole row
+// or column (Bro et al. 2008 recommend such patterns for element-wise
+// cross-validation).
+func CVFoldAssignment(n, p, k int, seed uint64) [][]int {
+	rng := taskRNG(seed, streamCrossValidation, 0)
+	r := rng.Perm(n)
+	fold := make([][]int, n)
+	for i := range fold {
+		fold[i] = make([]int, p)
+		for j := range fold[i] {
+			fold[i][j] = (r[i] + j) % k
+		}
+	}
+	return fold
+}
+
+// CrossValidate runs element-wise k-fold cross-validation ("ekf") of the
+// PCA model, the method Bro, Kjeldahl, Smilde & Kiers (2008, Anal.
+// Bioanal. Chem. 390:1241–1251) recommend after showing that leaving out
+// whole rows is flawed (the left-out row's scores are then estimated from
+// the very values they predict, so PRESS keeps falling as components are
+// added). Each fold's elements are treated as missing: the centring and
+// scaling are refitted on the remaining elements, a PCA model with missing
+// values is fitted by expectation–maximisation (the missing elements are
+// imputed by the model's reconstruction until they stop changing), and the
+// left-out elements are predicted by that model. PRESS(a) sums the squared
+// prediction errors for a = 0, 1, …; the count is the fewest components
+// whose PRESS is within one standard error of the minimum (the
+// one-standard-error rule of Breiman et al. 1984, Classification and
+// Regression Trees, §3.4.3; the standard error is that of the paired
+// fold-by-fold difference, common practice).
+//
+// Cross-validation refits the centring and scaling inside each fold, so it
+// works on the transformed table before preprocessing, x = z·Scales + Means
+// (recovered row by row from z, which may have replaced the table in place).
+// Tables with more than CVMaxRows rows are cross-validated on a seeded
+// subset of rows.
+// The folds run in parallel and each has its own arithmetic, so the result
+// does not depend on threads.
+func CrossValidate(z *mat.Dense, pp Preprocessing, seed uint64, threads int, progress Progress) CrossValidation {
+	n, p := z.Dims()
+	scaling := pp.Scaling
+	rows := make([]int, n)
+	for i := range rows {
+		rows[i] = i
+	}
+	if n > CVMaxRows {
+		rng := taskRNG(seed, streamCrossValidation, 1)
+		rows = rng.Perm(n)[:CVMaxRows]
+		slices.Sort(rows)
+	}
+	sub := mat.NewDense(len(rows), p, nil)
+	for r, i := range rows {
+		dst := sub.RawRowView(r)
+		for j, v := range z.RawRowView(i) {
+			dst[j] = v*pp.Scales[j] + pp.Means[j]
+		}
+	}
+	unit := make([]float64, p)
+	for j := range unit {
+		unit[j] = scaleOf(scaling, column(sub, j, nil))
+		if !(unit[j] > 0) {
+			unit[j] = 1
+		}
+	}
+	// a = p−1 components leave an element whose row lost only it exactly
+	// determined by the other p−1 values and p−1 scores: its imputation
+	// drifts without bound, so PRESS is followed to p−2 at most.
+	maxA := min(p-2, len(rows)-2, CVMaxComponents)
+	fold := CVFoldAssignment(len(rows), p, CVFolds, seed)
+	cv := ekf(sub, scaling, unit, fold, CVFolds, maxA, CVPatience, CVTolerance, CVMaxIterations, threads, progress)
+	cv.RowsTotal = n
+	return cv
+}
+
+// column copies column j of x into dst.
+func column(x *mat.Dense, j int, dst []float64) []float64 {
+	n, _ := x.Dims()
+	dst = dst[:0]
+	for i := 0; i < n; i++ {
+		dst = append(dst, x.At(i, j))
+	}
+	return dst
+}
+
+// scaleOf is the divisor the scaling gives a column of values.
+func scaleOf(s Scaling, v []float64) float64 {
+	if len(v) < 2 {
+		return 1
+	}
+	mean := 0.0
+	for _, x := range v {
+		mean += x
+	}
+	mean /= float64(len(v))
+	switch s {
+	case ScaleUnit, ScalePareto:
+		ss := 0.0
+		for _, x := range v {
+			ss += (x - mean) * (x - mean)
+		}
+		sd := math.Sqrt(ss / float64(len(v)-1))
+		if s == ScalePareto {
+			return math.Sqrt(sd)
+		}
+		return sd
+	case ScaleRange:
+		return slices.Max(v) - slices.Min(v)
+	}
+	return 1
+}
+
+// ekf computes PRESS for a = 0 … maxA (or until patience counts bring no
+// new minimum) with the given fold pattern; errors are divided by unit
+// (per variable) so that PRESS is in the units of the preprocessed table.
+func ekf(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k, maxA, patience int, tol float64, maxIter, threads int, progress Progress) CrossValidation {
+	x = mat.DenseCopyOf(x) // contiguous, for the raw loops below
+	n, p := x.Dims()
+	cv := CrossValidation{Folds: k, Rows: n, FoldPRESS: make([][]float64, k)}
+	for j := 0; j < p; j++ {
+		v := column(x, j, nil)
+		mean := 0.0
+		for _, t := range v {
+			mean += t
+		}
+		mean /= float64(n)
+		for _, t := range v {
+			d := (t - mean) / unit[j]
+			cv.SS += d * d
+		}
+	}
+	// Each fold's state: its training centring and scaling, and the
+	// current filled matrix (training elements preprocessed, left-out
+	// elements imputed), carried from one count to the next as the warm
+	// start of the imputation.
+	type foldState struct {
+		mean, scale []float64
+		w           *mat.Dense
+		miss        []int // row-major offsets of the left-out elements
+		ssObs       float64
+		nObs        int
+		iters       int
+		unconverged bool
+	}
+	states := make([]*foldState, k)
+	for f := 0; f < k; f++ {
+		st := &foldState{mean: make([]float64, p), scale: make([]float64, p), w: mat.NewDense(n, p, nil)}
+		var train []float64
+		for j := 0; j < p; j++ {
+			train = train[:0]
+			for i := 0; i < n; i++ {
+				if fold[i][j] != f {
+					train = append(train, x.At(i, j))
+				}
+			}
+			m := 0.0
+			for _, t := range train {
+				m += t
+			}
+			if len(train) > 0 {
+				m /= float64(len(train))
+			}
+			s := scaleOf(scaling, train)
+			if !(s > 0) { // constant on the training elements: keep the table's scale
+				s = unit[j]
+			}
+			st.mean[j], st.scale[j] = m, s
+			for i := 0; i < n; i++ {
+				if fold[i][j] != f {
+					v := (x.At(i, j) - m) / s
+					st.w.Set(i, j, v)
+					st.ssObs += v * v
+					st.nObs++
+				} // left-out elements start at the training mean, 0
+			}
+		}
+		for i := 0; i < n; i++ {
+			for j := 0; j < p; j++ {
+				if fold[i][j] == f {
+					st.miss = append(st.miss, i*p+j)
+				}
+			}
+		}
+		states[f] = st
+	}
+	press := func(f int) float64 {
+		st := states[f]
+		e := 0.0
+		xd, wd := x.RawMatrix().Data, st.w.RawMatrix().Data
+		for _, o := range st.miss {
+			j := o % p
+			d := (xd[o] - (st.mean[j] + st.scale[j]*wd[o])) / unit[j]
+			e += d * d
+		}
+		return e
+	}
+	for f := 0; f < k; f++ {
+		cv.FoldPRESS[f] = []float64{press(f)}
+	}
+	cv.PRESS = []float64{sumFold(cv.FoldPRESS, 0)}
+	best, since := 0, 0
+	for a := 1; a <= maxA && since < patience; a++ {
+		parallelFor(k, threads, func() *imputeWorkspace { return &imputeWorkspace{} }, func(ws *imputeWorkspace, f int) {
+			st := states[f]
+			it, ok := imputePCA(st.w, st.miss, st.ssObs, st.nObs, a, tol, maxIter, ws)
+			st.iters = max(st.iters, it)
+			st.unconverged = !ok
+			cv.FoldPRESS[f] = append(cv.FoldPRESS[f], press(f))
+		}, "cross-validation", nil)
+		if progress != nil {
+			progress("cross-validation", a, maxA)
+		}
+		for f := 0; f < k; f++ {
+			cv.Iterations = max(cv.Iterations, states[f].iters)
+			if states[f].unconverged {
+				cv.Unconverged++
+			}
+		}
+		cv.PRESS = append(cv.PRESS, sumFold(cv.FoldPRESS, a))
+		if cv.PRESS[a] < cv.PRESS[best] {
+			best, since = a, 0
+		} else {
+			since++
+		}
+	}
+	cv.Min = best
+	cv.Count = best
+	for a := 0; a < best; a++ {
+		d := make([]float64, k)
+		for f := 0; f < k; f++ {
+			d[f] = cv.FoldPRESS[f][a] - cv.FoldPRESS[f][best]
+		}
+		se := math.Sqrt(float64(k)) * sampleSD(d)
+		if cv.PRESS[a]-cv.PRESS[best] <= se {
+			cv.Count, cv.SE = a, se
+			break
+		}
+	}
+	return cv
+}
+
+func sumFold(fp [][]float64, a int) float64 {
+	s := 0.0
+	for _, f := range fp {
+		s += f[a]
+	}
+	return s
+}
+
+func sampleSD(v []float64) float64 {
+	if len(v) < 2 {
+		return 0
+	}
+	m := 0.0
+	for _, x := range v {
+		m += x
+	}
+	m /= float64(len(v))
+	ss := 0.0
+	for _, x := range v {
+		ss += (x - m) * (x - m)
+	}
+	return math.Sqrt(ss / float64(len(v)-1))
+}
+
+// imputeWorkspace is the reusable memory of imputePCA.
+type imputeWorkspace struct {
+	fit mat.Dense
+	wc  *mat.Dense
+	mu  []float64
+	sym mat.EigenSym
+}
+
+// imputePCA fits an a-component PCA model with column offsets to w, whose
+// elements listed in miss (row-major offsets into w's data) are missing,
+// by expectation–maximisation (the iterative imputation of Kiers 1997,
+// Psychometrika 62:251–266): the missing elements are replaced by the
+// model's reconstruction, the model is refitted, and so on, until the
+// root mean square change of the imputed elements is below tol times the
+// root mean square of the training elements. w holds the imputed values on
+// return. It returns the iterations used and whether they converged.
+func imputePCA(w *mat.Dense, miss []int, ssObs float64, nObs int, a int, tol float64, maxIter int, ws *imputeWorkspace) (int, bool) {
+	n, p := w.Dims()
+	data := w.RawMatrix().Data // w is contiguous: made by mat.NewDense
+	limit := tol * tol * ssObs / float64(max(nObs, 1)) * float64(max(len(miss), 1))
+	if ws.wc == nil {
+		ws.wc = mat.NewDense(n, p, nil)
+		ws.mu = make([]float64, p)
+	}
+	wc, mu := ws.wc.RawMatrix().Data, ws.mu
+	for it := 1; it <= maxIter; it++ {
+		// Offsets: the column means of the filled matrix.
+		clear(mu)
+		for i := 0; i < n; i++ {
+			for j, v := range data[i*p : (i+1)*p] {
+				mu[j] += v
+			}
+		}
+		for j := range mu {
+			mu[j] /= float64(n)
+		}
+		for i := 0; i < n; i++ {
+			row, dst := data[i*p:(i+1)*p], wc[i*p:(i+1)*p]
+			for j, v := range row {
+				dst[j] = v - mu[j]
+			}
+		}
+		lowRank(ws.wc, a, ws)
+		fit := ws.fit.RawMatrix().Data
+		change := 0.0
+		for _, o := range miss {
+			v := mu[o%p] + fit[o]
+			d := v - data[o]
+			change += d * d
+			data[o] = v
+		}
+		if change <= limit {
+			return it, true
+		}
+	}
+	return maxIter, false
+}
+
+// lowRank writes into ws.fit the best rank-a approximation of wc, from the
+// eigenvectors of the smaller cross-product (p×p for tall, n×n for wide).
+func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) {
+	n, p := wc.Dims()
+	ws.fit.Reset()
+	var t, v mat.Dense
+	if n >= p {
+		if !ws.sym.Factorize(crossProduct(wc, true), true) {
+			panic("analysis: symmetric eigendecomposition failed in cross-validation")
+		}
+		ws.sym.VectorsTo(&v)
+		va := v.Slice(0, p, p-a, p)
+		t.Mul(wc, va)
+		ws.fit.Mul(&t, va.T())
+		return
+	}
+	if !ws.sym.Factorize(crossProduct(wc, false), true) {
+		panic("analysis: symmetric eigendecomposition failed in cross-validation")
+	}
+	ws.sym.VectorsTo(&v)
+	ua := v.Slice(0, n, n-a, n)
+	t.Mul(ua.T(), wc)
+	ws.fit.Mul(ua, &t)
+}
+
+// crossProduct returns wcᵀwc (tall) or wc·wcᵀ (wide) as a symmetric matrix.
+func crossProduct(wc *mat.Dense, tall bool) *mat.SymDense {
+	raw := wc.RawMatrix()
+	a := blas64.General{Rows: raw.Rows, Cols: raw.Cols, Stride: raw.Stride, Data: raw.Data}
+	trans, k := blas.NoTrans, raw.Rows
+	if tall {
+		trans, k = blas.Trans, raw.Cols
+	}
+	c := blas64.Symmetric{N: k, Stride: k, Uplo: blas.Upper, Data: make([]float64, k*k)}
+	blas64.Syrk(trans, 1, a, 0, c)
+	return mat.NewSymDense(k, c.Data)
+}
