@@ -14,33 +14,15 @@ import (
 	"pcqc/checks"
 )
 
-// quickBounds are the loose bounds of the quick harness (TestQuickHarness).
-// THE MERGER TIGHTENS THIS TABLE once the family-wise outlier checks,
-// influence, the evidence-only component count and the stability rework
-// are merged: the loose targets for the quick run are verdict pass
-// ≥ 0.6, retained = k ≥ 0.8 and every check ≤ 0.34 on clean tables. Until
-// then the rates below are what the checks on main do today (a baseline,
-// not a goal), so that the test passes and still fails if anything gets
-// worse: a check not listed, for instance a new one, may alarm on at most
-// DefaultMaxAlarm of the clean tables.
-var quickBounds = Bounds{
-	MinPass:      0,   // today: 0 of 30 (leverage and component-count warn on every table)
-	MinRetainedK: 0.8, // today: 30 of 30
-	MaxAlarm: map[string]float64{
-		"leverage":        1, // today: 30 of 30; the check is being replaced by influence
-		"component-count": 1, // today: 30 of 30; the cumulative-80 % rule disagrees
-		"outliers-t2":     1, // today: 28 of 30; any sample beyond the 99 % limit warns
-		"outliers-q":      1, // today: 21 of 30; idem
-	},
-	DefaultMaxAlarm: 0.34,
-	MinDetected:     2.0 / 3,
-	MinNamed:        2.0 / 3,
-}
-
-// quickTargets are the loose bounds the quick harness should meet after
-// the merge; TestQuickHarness reports (without failing) how far the code is
-// from them, so the merger can see when quickBounds may take these values.
-var quickTargets = Bounds{MinPass: 0.6, MinRetainedK: 0.8, DefaultMaxAlarm: 0.34, MinDetected: 2.0 / 3, MinNamed: 2.0 / 3}
+// quickBounds are the loose bounds of the quick harness (TestQuickHarness):
+// the loose versions of the full targets. Verdict pass on ≥ 60 % of
+// the clean tables (full target 95 %), retained = planted k on ≥ 80 % (95 %),
+// no check alarming on more than a third of them (2 %), and every planted
+// defect caught and its samples named on at least 2 of 3 seeds (95 %). With
+// 30 clean tables a check that alarms at the full target's rate fails these
+// bounds with negligible probability, and one that alarms on every table
+// fails them always (TestBoundsCatchAlarms).
+var quickBounds = Bounds{MinPass: 0.6, MinRetainedK: 0.8, DefaultMaxAlarm: 0.34, MinDetected: 2.0 / 3, MinNamed: 2.0 / 3}
 
 // quickSettings keep the quick harness fast; the full one uses the
 // defaults of pcqc run.
@@ -66,9 +48,6 @@ func TestQuickHarness(t *testing.T) {
 	t.Logf("quick harness:\n%s", b.String())
 	for _, v := range s.Violations(quickBounds) {
 		t.Error(v)
-	}
-	if v := s.Violations(quickTargets); len(v) > 0 {
-		t.Logf("not yet at the post-merge quickTargets (%d misses): %s", len(v), strings.Join(v, "; "))
 	}
 }
 
