@@ -13,6 +13,10 @@ type Options struct {
 	Components   ComponentRule
 	Permutations int    // parallel analysis: the cap of the adaptive run; 0 turns it off
 	Bootstrap    int    // resamples for loading stability; 0 turns it off
+	// NoCrossValidation leaves the cross-validation rule out (it is then
+	// reported as not run); for callers that study other properties of
+	// many analyses, where its cost buys nothing.
+	NoCrossValidation bool
 	Seed         uint64 // for every random stream
 	Threads      int    // ≤ 0: all cores
 	Progress     Progress
@@ -95,7 +99,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 		share = opt.Components.Variance
 	}
 	var cv CrossValidation
-	if _, p := z.Dims(); p >= 3 && n >= 4 {
+	if _, p := z.Dims(); p >= 3 && n >= 4 && (!opt.NoCrossValidation || opt.Components.Kind == RuleCV) {
 		cv = CrossValidate(z, pp, opt.Seed, opt.Threads, opt.Progress)
 	}
 	r.Counts = CountComponents(d.Eigenvalues, opt.Scaling, share, pa, cv)

@@ -90,6 +90,7 @@ func TestBCaIntervalEdges(t *testing.T) {
 // biased low, so its percentile interval (which inherits the bias) covers
 // less often; the test records both so that a regression shows.
 func TestBCaCoverageOfEigenvalues(t *testing.T) {
+	skipSimulationWhenShort(t)
 	if testing.Short() {
 		t.Skip("coverage study")
 	}

@@ -159,6 +159,7 @@ func TestBootstrapIndependentOfThreads(t *testing.T) {
 // intervals cover the true loadings at roughly the nominal rate, and
 // well-separated components have a 5th-percentile congruence ≥ 0.95.
 func TestBootstrapCoverageOnPlantedData(t *testing.T) {
+	skipSimulationWhenShort(t)
 	const n, p, k, reps = 300, 6, 2, 30
 	// Covariance with orthonormal eigenvectors Q and eigenvalues 8, 3, then
 	// 0.5 …: covariance PCA (no scaling) has the columns of Q as its true

@@ -94,6 +94,7 @@ func TestParallelAnalysisOnNoise(t *testing.T) {
 }
 
 func TestParallelAnalysisRecoversPlantedRank(t *testing.T) {
+	skipSimulationWhenShort(t)
 	cases := []struct {
 		n, p int
 		sd   []float64

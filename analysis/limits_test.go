@@ -100,6 +100,7 @@ func TestQLimitEqualEigenvalues(t *testing.T) {
 // beyond each 95 % limit: the share must be within three binomial standard
 // errors of 0.05 (seeded simulation, several thousand samples).
 func TestLimitsCalibratedOnGaussianData(t *testing.T) {
+	skipSimulationWhenShort(t)
 	const n, k = 4000, 3
 	spectrum := []float64{9, 5, 3, 1, 0.8, 0.6, 0.5, 0.4, 0.3, 0.2}
 	for seed := uint64(1); seed <= 3; seed++ {

@@ -50,7 +50,7 @@ func TestCorrectnessChecksPassOnRandomData(t *testing.T) {
 				}
 				synth.Stretch(rng, x)
 				for _, rule := range []analysis.ComponentRule{{Kind: analysis.RuleVariance, Variance: 0.8}, {Kind: analysis.RuleParallel}, {Kind: analysis.RuleFixed, Fixed: min(sh.n-1, sh.p)}} {
-					res, err := analysis.Analyze(analysis.TableFromMatrix(name, x, nil, nil), analysis.Options{Scaling: sc, Components: rule, Permutations: 20})
+					res, err := analysis.Analyze(analysis.TableFromMatrix(name, x, nil, nil), analysis.Options{Scaling: sc, Components: rule, Permutations: 100, NoCrossValidation: true})
 					if err != nil {
 						t.Fatalf("%s: %v", name, err)
 					}

@@ -33,6 +33,7 @@ func analyseFixed(t *testing.T, x *mat.Dense, k, bootstrap int) *analysis.Result
 // a sample far along the model (T², not Q), a gross correlation-breaking
 // sample (Q), and one sample that alone makes a component (influence).
 func TestPlantedSampleDefects(t *testing.T) {
+	skipSimulationWhenShort(t)
 	const n, p = 200, 10
 	sd := []float64{4, 3}
 	for seed := uint64(1); seed <= 5; seed++ {
@@ -89,6 +90,7 @@ func mentions(message, id string) bool {
 // outliers) pass the sample checks on at least 95 % of seeds: 38 of 40.
 // Before the family-wise rule, outliers-t2 alone warned on most of them.
 func TestSampleChecksQuietOnCleanTables(t *testing.T) {
+	skipSimulationWhenShort(t)
 	shapes := []struct{ n, p, k int }{{100, 5, 1}, {150, 8, 2}, {250, 12, 3}, {120, 20, 2}}
 	alarms := map[string]int{}
 	const seeds = 40
@@ -111,5 +113,16 @@ func TestSampleChecksQuietOnCleanTables(t *testing.T) {
 		if a > seeds/20 {
 			t.Errorf("%s alarmed on %d of %d clean tables (at most %d allowed)", id, a, seeds, seeds/20)
 		}
+	}
+}
+
+// skipSimulationWhenShort skips a test that measures rates over many
+// simulated tables when -short is given: CI runs the race detector with
+// -short, under which these take minutes and exercise no concurrency the
+// other tests do not; the full run (go test ./...) always includes them.
+func skipSimulationWhenShort(t *testing.T) {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("simulation over many tables; run without -short")
 	}
 }
