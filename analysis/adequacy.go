@@ -64,6 +64,36 @@ type KMO struct {
 	SkipReason  string
 	Overall     float64
 	PerVariable []float64
+	// SumR2 and SumQ2 are Σ_{i≠j} r_ij² and Σ_{i≠j} q_ij², the two sums
+	// of the overall measure.
+	SumR2, SumQ2 float64
+	// NoiseR2 and NoiseQ2 are what sampling noise alone adds to those sums
+	// when the variables are independent: E r² = 1/(n−1) for a correlation
+	// of n normal samples (Fisher 1915), and a partial correlation holding
+	// p−2 variables fixed is distributed as a simple correlation of
+	// n−p+2 samples (Fisher 1924), so E q² = 1/(n−p+1); each times
+	// p(p−1) ordered pairs. At p = 50 and n = 100 noise alone puts the
+	// measure near 0.34, below Kaiser's floor, whatever the structure.
+	NoiseR2, NoiseQ2 float64
+	// NoiseCorrected is the overall measure with that noise taken out of
+	// both sums, (ΣR − NoiseR)/((ΣR − NoiseR) + max(ΣQ − NoiseQ, 0)); 0
+	// when the correlations do not exceed noise at all.
+	NoiseCorrected float64
+}
+
+// correctKMONoise fills the noise terms of k for n samples of p variables.
+func correctKMONoise(k *KMO, n, p int) {
+	if !k.Computed || n <= p {
+		return
+	}
+	pairs := float64(p * (p - 1))
+	k.NoiseR2 = pairs / float64(n-1)
+	k.NoiseQ2 = pairs / float64(n-p+1)
+	r := k.SumR2 - k.NoiseR2
+	q := max(k.SumQ2-k.NoiseQ2, 0)
+	if r > 0 {
+		k.NoiseCorrected = r / (r + q)
+	}
 }
 
 // Skewness returns the adjusted Fisher–Pearson skewness
@@ -260,6 +290,7 @@ func correlationTests(z *mat.Dense) (Bartlett, KMO) {
 	r := CorrelationMatrix(z)
 	b = BartlettSphericity(r, n)
 	k = KaiserMeyerOlkin(r)
+	correctKMONoise(&k, n, p)
 	return b, k
 }
 
@@ -355,6 +386,7 @@ func KaiserMeyerOlkin(r *mat.SymDense) KMO {
 		totR += ri
 		totQ += qi
 	}
+	k.SumR2, k.SumQ2 = totR, totQ
 	if totR+totQ > 0 {
 		k.Overall = totR / (totR + totQ)
 	}
@@ -387,6 +419,29 @@ type Separation struct {
 	DeltaB       float64
 	Overlap      bool
 	BothRetained bool
+	// AndersonChi2 and AndersonP test that the two population eigenvalues
+	// are equal (Anderson 1963, Ann. Math. Statist. 34:122–148, the
+	// likelihood-ratio test for q = 2 roots):
+	//
+	//	χ² = (n−1)·[2·ln((λ_A+λ_B)/2) − ln λ_A − ln λ_B],  df = q(q+1)/2 − 1 = 2.
+	//
+	// A large p says the data do not show the two eigenvalues apart.
+	AndersonChi2 float64
+	AndersonP    float64
+}
+
+// AndersonEqualPair returns Anderson's (1963) likelihood-ratio statistic
+// for the equality of two eigenvalues la ≥ lb of a covariance matrix of n
+// samples and its χ²₂ p-value. A zero second eigenvalue (wide data) is
+// infinitely far from the first: χ² = +Inf, p = 0.
+func AndersonEqualPair(la, lb float64, n int) (chi2, p float64) {
+	if lb <= 0 || la <= 0 {
+		return math.Inf(1), 0
+	}
+	chi2 = float64(n-1) * (2*math.Log((la+lb)/2) - math.Log(la) - math.Log(lb))
+	chi2 = max(chi2, 0) // rounding when la == lb
+	// The χ² survival function with 2 degrees of freedom is exp(−x/2).
+	return chi2, math.Exp(-chi2 / 2)
 }
 
 // EigenvalueSeparation applies North, Bell, Cahalan & Moeng's (1982, Mon.
@@ -402,6 +457,7 @@ func EigenvalueSeparation(eigenvalues []float64, n, k int) []Separation {
 		la, lb := eigenvalues[a], eigenvalues[a+1]
 		s := Separation{A: a, DeltaA: la * f, DeltaB: lb * f, BothRetained: a+1 < k}
 		s.Overlap = la-s.DeltaA <= lb+s.DeltaB
+		s.AndersonChi2, s.AndersonP = AndersonEqualPair(la, lb, n)
 		out = append(out, s)
 	}
 	return out

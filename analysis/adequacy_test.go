@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"math"
+	"math/rand/v2"
 	"path/filepath"
 	"slices"
 	"testing"
@@ -155,5 +156,78 @@ func TestEigenvalueSeparation(t *testing.T) {
 	}
 	if d := s[0].DeltaA - 0.5; math.Abs(d) > 1e-12 {
 		t.Errorf("δλ = %g", s[0].DeltaA)
+	}
+}
+
+// TestAndersonEqualPair checks Anderson's (1963) statistic for two equal
+// eigenvalues and its χ²₂ p-value against scipy 1.10.1
+// (scipy.stats.chi2.sf(x, 2) with x computed by numpy 1.24.2 from the
+// formula), and that the p-value moves the right way.
+func TestAndersonEqualPair(t *testing.T) {
+	for _, c := range []struct {
+		la, lb   float64
+		n        int
+		chi2, pv float64
+	}{
+		{3.2, 2.9, 300, 0.7240686977187709, 0.696258451747373},
+		{4.8, 3.2, 300, 12.205776361556255, 0.002236399257590592},
+		{2.0, 1.0, 100, 11.660520529981964, 0.0029373124011456853},
+	} {
+		x, p := AndersonEqualPair(c.la, c.lb, c.n)
+		if math.Abs(x-c.chi2) > 1e-9*c.chi2 || math.Abs(p-c.pv) > 1e-12 {
+			t.Errorf("Anderson(%g, %g, %d) = %g, %g; want %g, %g", c.la, c.lb, c.n, x, p, c.chi2, c.pv)
+		}
+	}
+	if x, p := AndersonEqualPair(2, 2, 50); x != 0 || p != 1 {
+		t.Errorf("equal roots: %g, %g; want 0, 1", x, p)
+	}
+	if _, p := AndersonEqualPair(2, 0, 50); p != 0 {
+		t.Errorf("zero second root: p %g, want 0", p)
+	}
+}
+
+// TestKMONoiseCorrection: on independent normal variables (no structure)
+// the sums of r² and q² are about their noise expectations p(p−1)/(n−1)
+// and p(p−1)/(n−p+1) (Fisher 1915, 1924); with one weak shared factor (loadings 0.35) at
+// p = 40, n = 80 the raw KMO is pulled far below the corrected one. The
+// fixed seed is ours.
+func TestKMONoiseCorrection(t *testing.T) {
+	rng := rand.New(rand.NewPCG(12, 34))
+	for _, c := range []struct {
+		name    string
+		loading float64
+	}{{"independent", 0}, {"one factor", 0.35}} {
+		n, p := 80, 40
+		x := mat.NewDense(n, p, nil)
+		for i := 0; i < n; i++ {
+			f := rng.NormFloat64()
+			for j := 0; j < p; j++ {
+				x.Set(i, j, c.loading*f+math.Sqrt(1-c.loading*c.loading)*rng.NormFloat64())
+			}
+		}
+		for j := 0; j < p; j++ {
+			m := 0.0
+			for i := 0; i < n; i++ {
+				m += x.At(i, j) / float64(n)
+			}
+			for i := 0; i < n; i++ {
+				x.Set(i, j, x.At(i, j)-m)
+			}
+		}
+		_, k := correlationTests(x)
+		wantR, wantQ := float64(p*(p-1))/float64(n-1), float64(p*(p-1))/float64(n-p+1)
+		if k.NoiseR2 != wantR || k.NoiseQ2 != wantQ {
+			t.Errorf("%s: noise %g, %g; want %g, %g", c.name, k.NoiseR2, k.NoiseQ2, wantR, wantQ)
+		}
+		switch c.loading {
+		case 0:
+			if math.Abs(k.SumR2/wantR-1) > 0.15 || math.Abs(k.SumQ2/wantQ-1) > 0.15 {
+				t.Errorf("independent: sums %g, %g far from noise %g, %g", k.SumR2, k.SumQ2, wantR, wantQ)
+			}
+		default:
+			if !(k.Overall < 0.6 && k.NoiseCorrected > 0.9) {
+				t.Errorf("one factor: raw %g, corrected %g; want raw < 0.6 < 0.9 < corrected", k.Overall, k.NoiseCorrected)
+			}
+		}
 	}
 }

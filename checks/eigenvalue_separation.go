@@ -6,21 +6,26 @@ import (
 )
 
 // eigenvalueSeparation owns the finding "these retained components are not
-// separate axes". It rests on two pieces of evidence: North's rule on the
-// eigenvalues of retained neighbours, and the bootstrap (sign-aligned
-// congruence low while the retained subspace is stable). The pair formed by
-// the last retained and the first discarded component is reported as
-// information only: whether the retained subspace holds against the
-// discarded ones is what loading-stability measures (Procrustes congruence)
-// and where noise starts is the component-count rules' question.
+// separate axes". It warns when Anderson's (1963) likelihood-ratio test does
+// not reject the equality of two retained neighbouring eigenvalues at
+// SeparationAlpha: the data then do not show the two apart, and only their
+// plane is determined. The test is the calibrated form of the evidence; the
+// bootstrap (sign-aligned congruence low while the retained subspace is
+// stable) measures the same thing without a level and is quoted in support.
+// North's δλ stays in the message and summary.json as the familiar scale of
+// the sampling error. The pair formed by the last retained and the first
+// discarded component is reported as information only: whether the
+// retained subspace holds against the discarded ones is what
+// loading-stability measures (Procrustes congruence) and where noise starts
+// is the component-count rules' question.
 var eigenvalueSeparation = Check{
 	ID:     "eigenvalue-separation",
 	Title:  "Retained components are separate axes",
-	Source: "North, Bell, Cahalan & Moeng (1982) rule of thumb δλ ≈ λ·√(2/n); bootstrap congruence, Lorenzo-Seva & ten Berge (2006)",
+	Source: "Anderson (1963) test of equal eigenvalues at the 10 % level; North, Bell, Cahalan & Moeng (1982) δλ ≈ λ·√(2/n); bootstrap congruence, Lorenzo-Seva & ten Berge (2006)",
 	judge: func(in Input) Result {
 		res := in.Run
 		mix := findAxisMixing(res)
-		r := Result{Value: len(mix.northPairs) + len(mix.rotating), Limit: fmt.Sprintf("gap > δλ₁ + δλ₂ for retained neighbours; sign-aligned φ₅ ≥ %g where the subspace is stable", AxisMixingLimit)}
+		r := Result{Value: len(mix.equalPairs), Limit: fmt.Sprintf("Anderson's test rejects equal eigenvalues for retained neighbours (p < %g)", SeparationAlpha)}
 		if len(res.Separation) == 0 {
 			r.Status = Skip
 			r.Message = "Every component is retained, so there is no neighbouring eigenvalue to compare with."
@@ -28,9 +33,9 @@ var eigenvalueSeparation = Check{
 		}
 		var boundary string
 		for _, s := range res.Separation {
-			if !s.BothRetained && s.Overlap {
+			if !s.BothRetained && s.AndersonP >= SeparationAlpha {
 				la, lb := res.Decomp.Eigenvalues[s.A], res.Decomp.Eigenvalues[s.A+1]
-				boundary = fmt.Sprintf(" For information: the last retained component PC%d overlaps the first discarded one (%s ± %s vs %s ± %s); loading-stability says whether the retained subspace holds.", s.A+1, g3(la), g3(s.DeltaA), g3(lb), g3(s.DeltaB))
+				boundary = fmt.Sprintf(" For information: the data do not show the last retained component PC%d apart from the first discarded one (%s vs %s, Anderson's χ² = %s, %s); loading-stability says whether the retained subspace holds.", s.A+1, g3(la), g3(lb), g3(s.AndersonChi2), pvalue(s.AndersonP))
 			}
 		}
 		if res.Retained == 1 {
@@ -40,23 +45,24 @@ var eigenvalueSeparation = Check{
 		}
 		if !mix.any() {
 			r.Status = Pass
-			r.Message = fmt.Sprintf("Each retained eigenvalue is separated from its retained neighbours by more than their combined sampling errors (δλ = λ·√(2/%d)), and no retained axis rotates under resampling, so each retained component is a distinct axis.", res.Decomp.Rows) + boundary
+			r.Message = fmt.Sprintf("Anderson's test rejects the equality of every pair of retained neighbouring eigenvalues (p < %g), so each retained component is a distinct axis.", SeparationAlpha)
+			if len(mix.rotating) > 0 {
+				r.Message += fmt.Sprintf(" For information: under the bootstrap %s %s within the stable subspace (sign-aligned φ₅ < %g); read %s loadings with care.", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), AxisMixingLimit, plural("its", "their", len(mix.rotating)))
+			}
+			r.Message += boundary
 			return r
 		}
 		r.Status = Warn
-		var parts []string
-		if len(mix.northPairs) > 0 {
-			var pairs []string
-			for _, s := range mix.northPairs {
-				la, lb := res.Decomp.Eigenvalues[s.A], res.Decomp.Eigenvalues[s.A+1]
-				pairs = append(pairs, fmt.Sprintf("PC%d and PC%d (%s ± %s vs %s ± %s)", s.A+1, s.A+2, g3(la), g3(s.DeltaA), g3(lb), g3(s.DeltaB)))
-			}
-			parts = append(parts, "sampling-error intervals overlap for "+strings.Join(pairs, "; "))
+		var pairs []string
+		for _, s := range mix.equalPairs {
+			la, lb := res.Decomp.Eigenvalues[s.A], res.Decomp.Eigenvalues[s.A+1]
+			pairs = append(pairs, fmt.Sprintf("PC%d and PC%d (%s vs %s, North's δλ %s and %s; Anderson's χ² = %s on 2 df, %s)", s.A+1, s.A+2, g3(la), g3(lb), g3(s.DeltaA), g3(s.DeltaB), g3(s.AndersonChi2), pvalue(s.AndersonP)))
 		}
+		r.Message = fmt.Sprintf("Nearly equal eigenvalues: the data do not show %s to differ (equality not rejected at the %g level)", strings.Join(pairs, "; "), SeparationAlpha)
 		if len(mix.rotating) > 0 {
-			parts = append(parts, fmt.Sprintf("under the bootstrap %s %s within a stable subspace (sign-aligned φ₅ < %g, Procrustes φ₅ ≥ %g)", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), AxisMixingLimit, CongruencePass))
+			r.Message += fmt.Sprintf(", and under the bootstrap %s %s within a stable subspace (sign-aligned φ₅ < %g, Procrustes φ₅ ≥ %g)", pcList(mix.rotating), plural("rotates", "rotate", len(mix.rotating)), AxisMixingLimit, CongruencePass)
 		}
-		r.Message = "Nearly equal eigenvalues: " + strings.Join(parts, "; and ") + ". Those components are not separate axes: read them together as a plane (or space) and do not interpret their individual loadings." + boundary
+		r.Message += ". Those components are not separate axes: read them together as a plane (or space) and do not interpret their individual loadings." + boundary
 		return r
 	},
 }

@@ -8,21 +8,23 @@ import (
 )
 
 // axisMixing gathers the evidence that retained components are not separate
-// axes: pairs of retained neighbours whose eigenvalues overlap by North's
-// rule, and components whose sign-aligned bootstrap congruence is low while
-// the Procrustes-aligned one is high (the axes rotate within a stable
-// subspace: sign-aligned φ₅ below AxisMixingLimit). Both are one finding with one cause, nearly equal eigenvalues,
-// and eigenvalue-separation alone raises it; loading-stability refers to it.
+// axes: pairs of retained neighbours whose equality Anderson's test does not
+// reject at SeparationAlpha, and components whose sign-aligned bootstrap
+// congruence is low while the Procrustes-aligned one is high (the axes
+// rotate within a stable subspace: sign-aligned φ₅ below AxisMixingLimit).
+// Both are one finding with one cause, nearly equal eigenvalues, and
+// eigenvalue-separation alone raises it, on the test (which has a stated
+// level); the rotation corroborates it and loading-stability refers to it.
 type axisMixing struct {
-	northPairs []analysis.Separation // both retained, intervals overlap
+	equalPairs []analysis.Separation // both retained, equality not rejected
 	rotating   []int                 // 0-based retained components
 }
 
 func findAxisMixing(res *analysis.Result) axisMixing {
 	var m axisMixing
 	for _, s := range res.Separation {
-		if s.Overlap && s.BothRetained {
-			m.northPairs = append(m.northPairs, s)
+		if s.BothRetained && s.AndersonP >= SeparationAlpha {
+			m.equalPairs = append(m.equalPairs, s)
 		}
 	}
 	st := res.Stability
@@ -36,7 +38,8 @@ func findAxisMixing(res *analysis.Result) axisMixing {
 	return m
 }
 
-func (m axisMixing) any() bool { return len(m.northPairs) > 0 || len(m.rotating) > 0 }
+// any reports whether the eigenvalue evidence calls retained axes equal.
+func (m axisMixing) any() bool { return len(m.equalPairs) > 0 }
 
 func pcList(idx []int) string {
 	names := make([]string, len(idx))

@@ -170,7 +170,10 @@ type AdequacyInfo struct {
 type KMOInfo struct {
 	Overall     Number        `json:"overall"`
 	PerVariable []VariableKMO `json:"per_variable"`
-	SkipReason  string        `json:"skip_reason,omitempty"`
+	// NoiseCorrected is the overall value with what sampling noise alone
+	// adds to both sums taken out (see the sampling-adequacy check).
+	NoiseCorrected Number `json:"noise_corrected"`
+	SkipReason     string `json:"skip_reason,omitempty"`
 }
 
 type VariableKMO struct {
@@ -188,7 +191,8 @@ type BartlettInfo struct {
 }
 
 // SeparationInfo is North's rule for one retained component and its next
-// neighbour: δλ = λ·√(2/n) for each, and whether λ ± δλ overlap.
+// neighbour: δλ = λ·√(2/n) for each, and whether λ ± δλ overlap; and
+// Anderson's (1963) test that the two eigenvalues are equal (χ² on 2 df).
 type SeparationInfo struct {
 	Component    string `json:"component"`
 	Eigenvalue   Number `json:"eigenvalue"`
@@ -197,18 +201,23 @@ type SeparationInfo struct {
 	NextDelta    Number `json:"next_delta"`
 	Overlap      bool   `json:"overlap"`
 	BothRetained bool   `json:"both_retained"`
+	AndersonChi2 Number `json:"anderson_chi2"`
+	AndersonP    Number `json:"anderson_p"`
 }
 
 func adequacyInfo(res *analysis.Result) AdequacyInfo {
 	a := res.Adequacy
 	nan := Number(math.NaN())
 	info := AdequacyInfo{
-		KMO:        KMOInfo{Overall: nan, PerVariable: []VariableKMO{}, SkipReason: a.KMO.SkipReason},
+		KMO:        KMOInfo{Overall: nan, NoiseCorrected: nan, PerVariable: []VariableKMO{}, SkipReason: a.KMO.SkipReason},
 		Bartlett:   BartlettInfo{Chi2: nan, P: nan, SkipReason: a.Bartlett.SkipReason},
 		Separation: []SeparationInfo{},
 	}
 	if a.KMO.Computed {
 		info.KMO.Overall = Number(a.KMO.Overall)
+		if a.KMO.NoiseQ2 > 0 {
+			info.KMO.NoiseCorrected = Number(a.KMO.NoiseCorrected)
+		}
 		for j, v := range a.KMO.PerVariable {
 			info.KMO.PerVariable = append(info.KMO.PerVariable, VariableKMO{Variable: res.Table.Variables[j], KMO: Number(v)})
 		}
@@ -221,6 +230,7 @@ func adequacyInfo(res *analysis.Result) AdequacyInfo {
 		info.Separation = append(info.Separation, SeparationInfo{
 			Component: componentName(s.A), Eigenvalue: Number(res.Decomp.Eigenvalues[s.A]), Delta: Number(s.DeltaA),
 			Next: componentName(s.A + 1), NextDelta: Number(s.DeltaB), Overlap: s.Overlap, BothRetained: s.BothRetained,
+			AndersonChi2: Number(s.AndersonChi2), AndersonP: Number(s.AndersonP),
 		})
 	}
 	return info
