@@ -163,6 +163,7 @@ func TestEigenvalueSeparation(t *testing.T) {
 // eigenvalues and its χ²₂ p-value against scipy 1.10.1
 // (scipy.stats.chi2.sf(x, 2) with x computed by numpy 1.24.2 from the
 // formula), and that the p-value moves the right way.
+// Reference values: testdata/reference/anderson.py (numpy 1.24.2, scipy 1.10.1).
 func TestAndersonEqualPair(t *testing.T) {
 	for _, c := range []struct {
 		la, lb   float64
