@@ -11,15 +11,15 @@ import (
 type Options struct {
 	Scaling      Scaling
 	Components   ComponentRule
-	Permutations int    // parallel analysis: the cap of the adaptive run; 0 turns it off
-	Bootstrap    int    // resamples for loading stability; 0 turns it off
+	Permutations int // parallel analysis: the cap of the adaptive run; 0 turns it off
+	Bootstrap    int // resamples for loading stability; 0 turns it off
 	// NoCrossValidation leaves the cross-validation rule out (it is then
 	// reported as not run); for callers that study other properties of
 	// many analyses, where its cost buys nothing.
 	NoCrossValidation bool
-	Seed         uint64 // for every random stream
-	Threads      int    // ≤ 0: all cores
-	Progress     Progress
+	Seed              uint64 // for every random stream
+	Threads           int    // ≤ 0: all cores
+	Progress          Progress
 	// InPlace preprocesses the table's matrix in place, saving one copy of
 	// the data: afterwards Table.X holds the preprocessed matrix (Result.Z).
 	InPlace bool
