@@ -168,7 +168,7 @@ func ComputeSampleStats(z *mat.Dense, v, t mat.Matrix, eigenvalues []float64) Sa
 func (l *Limits) AdaptTails(t2, q []float64, k int, discarded []float64) {
 	l.T2FamilyNormal, l.QFamilyNormal = l.T2Family, l.QFamily
 	l.T2Count95, l.QCount95 = l.T2_95, l.Q95
-	l.T2Tail = FitTail(t2, float64(k), l.T2FamilyNormal)
+	l.T2Tail = FitTail(t2, float64(k), l.T2FamilyNormal, func(c float64) float64 { return T2LimitModel(len(t2), k, c) })
 	if l.T2Tail.Fitted() {
 		l.T2Family = math.Max(l.T2Family, l.T2Tail.Quantile(l.FamilyConf))
 		l.T2Count95 = math.Max(l.T2_95, l.T2Tail.Quantile(Conf95))
@@ -183,7 +183,7 @@ func (l *Limits) AdaptTails(t2, q []float64, k int, discarded []float64) {
 	if l.QMethod == QNone || !(t2s > 0) {
 		return
 	}
-	l.QTail = FitTail(q, t1*t1/t2s, l.QFamilyNormal)
+	l.QTail = FitTail(q, t1*t1/t2s, l.QFamilyNormal, func(c float64) float64 { q, _ := QLimit(discarded, c); return q })
 	if l.QTail.Fitted() {
 		l.QFamily = math.Max(l.QFamily, l.QTail.Quantile(l.FamilyConf))
 		l.QCount95 = math.Max(l.Q95, l.QTail.Quantile(Conf95))

@@ -35,6 +35,11 @@ import (
 // 25 exceedances give a tail quantile with a relative error near 1/√25).
 const TailFitCount = 25
 
+// TailTestAlpha is the level of the test for a tail heavier than normal
+// theory that must reject before a fitted tail raises the limits (common
+// practice: the conventional 5 %).
+const TailTestAlpha = 0.05
+
 // tailFitMinRows is the smallest table whose tail is fitted: the upper
 // quantile must be at least the 90th percentile, n ≥ 10·TailFitCount.
 const tailFitMinRows = 10 * TailFitCount
@@ -75,7 +80,15 @@ func (f TailFit) Quantile(conf float64) float64 {
 // and the levels taken among the rest: those are the candidate outliers,
 // and kept in they would each push the upper quantile one rank outwards,
 // widening the limit that is to catch them.
-func FitTail(values []float64, d1, exclude float64) TailFit {
+//
+// normalQuantile, when not nil, is the normal-theory quantile function of
+// the statistic. The fit is then used only when the count of values beyond
+// the normal-theory quantile at the upper matching level or at 99 % is
+// significantly high (binomial upper tail below TailTestAlpha at either): on Gaussian data the
+// fit's own sampling error would otherwise widen the limit of most tables
+// a little and of some by nearly half, and cost the check its planted
+// outliers.
+func FitTail(values []float64, d1, exclude float64, normalQuantile func(conf float64) float64) TailFit {
 	none := TailFit{D1: d1, DF: math.Inf(1)}
 	n := len(values)
 	if n < tailFitMinRows || !(d1 > 0) {
@@ -95,6 +108,24 @@ func FitTail(values []float64, d1, exclude float64) TailFit {
 	med, hi := sampleQuantile(s, 0.5), sampleQuantile(s, hiLevel)
 	if !(med > 0) || !(hi > med) {
 		return none
+	}
+	if normalQuantile != nil {
+		// Two levels: the upper matching level, and the 99 % level, where
+		// a table of a thousand rows already has the power to see a t₁₀
+		// tail that the higher level, with its few exceedances, misses.
+		heavier := false
+		for _, level := range []float64{hiLevel, Conf99} {
+			beyond, qn := 0, normalQuantile(level)
+			for _, v := range s {
+				if v > qn {
+					beyond++
+				}
+			}
+			heavier = heavier || BinomialUpperTail(beyond, len(s), 1-level) < TailTestAlpha
+		}
+		if !heavier {
+			return none
+		}
 	}
 	ratio := func(nu float64) float64 {
 		return FQuantile(hiLevel, d1, nu) / FQuantile(0.5, d1, nu)

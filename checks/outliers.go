@@ -16,6 +16,7 @@ type familyLimits struct {
 	// fit ("" when normal theory holds).
 	count95 float64
 	tail    string
+	tailDF  float64 // the fitted ν, 0 without a fit
 }
 
 // limitCheck judges per-sample statistics family-wise, so that a clean
@@ -39,11 +40,15 @@ func limitCheck(values []float64, l familyLimits, ids []string, what, remedy str
 	n99, idx99 := analysis.CountAbove(values, l.lim99)
 	nFam, idxFam := analysis.CountAbove(values, l.family)
 	p := analysis.BinomialUpperTail(n95, n, 1-analysis.Conf95)
-	r := Result{Value: nFam, Limit: map[string]float64{
+	limits := map[string]float64{
 		"limit_95": l.lim95, "limit_99": l.lim99,
 		"limit_family": l.family, "family_confidence": l.conf,
 		"binomial_alpha": BinomialAlpha, "limit_count_95": l.count95,
-	}}
+	}
+	if l.tailDF > 0 {
+		limits["tail_df"] = l.tailDF
+	}
+	r := Result{Value: nFam, Limit: limits}
 	familyText := fmt.Sprintf("the family-wise limit of %s, %s at per-sample confidence %s (Šidák: %d clean samples together pass it with probability %s)",
 		what, g3(l.family), confText(l.conf), n, pct(analysis.FamilyAlpha))
 	if l.tail != "" {
@@ -81,6 +86,15 @@ func tailText(f analysis.TailFit, normal float64) string {
 		g3(f.D1), g3(f.DF), analysis.TailFitCount, g3(normal))
 }
 
+// fittedDF is the fitted degrees of freedom, or 0 without a fit (summary
+// numbers must be finite).
+func fittedDF(f analysis.TailFit) float64 {
+	if f.Fitted() {
+		return f.DF
+	}
+	return 0
+}
+
 // confText writes a confidence near 1 with enough digits to differ from 1.
 func confText(c float64) string {
 	if math.IsNaN(c) {
@@ -99,7 +113,7 @@ var outliersT2 = Check{
 			return Result{Status: Skip, Message: fmt.Sprintf("The T² limit needs n > k + 1 (n = %d, k = %d).", in.Run.Decomp.Rows, in.Run.Retained)}
 		}
 		l := s.Limits
-		return limitCheck(s.T2, familyLimits{l.T2_95, l.T2_99, l.T2Family, l.FamilyConf, l.T2Count95, tailText(l.T2Tail, l.T2FamilyNormal)}, in.Run.Table.IDs,
+		return limitCheck(s.T2, familyLimits{l.T2_95, l.T2_99, l.T2Family, l.FamilyConf, l.T2Count95, tailText(l.T2Tail, l.T2FamilyNormal), fittedDF(l.T2Tail)}, in.Run.Table.IDs,
 			"Hotelling T²",
 			"These samples lie unusually far from the centre within the component plane: extreme but consistent with the correlation structure. Check them for real extremes or errors before they shape the components.")
 	},
@@ -119,7 +133,7 @@ var outliersQ = Check{
 			method = "Box's χ² approximation, as the Jackson–Mudholkar formula is undefined for these eigenvalues"
 		}
 		l := s.Limits
-		return limitCheck(s.Q, familyLimits{l.Q95, l.Q99, l.QFamily, l.FamilyConf, l.QCount95, tailText(l.QTail, l.QFamilyNormal)}, in.Run.Table.IDs,
+		return limitCheck(s.Q, familyLimits{l.Q95, l.Q99, l.QFamily, l.FamilyConf, l.QCount95, tailText(l.QTail, l.QFamilyNormal), fittedDF(l.QTail)}, in.Run.Table.IDs,
 			fmt.Sprintf("Q (%s)", method),
 			"These samples do not fit the correlation structure of the rest (a broken sensor, a unit error, a contamination, or a genuinely different kind of sample). Look at their residuals variable by variable.")
 	},

@@ -77,7 +77,11 @@ const (
 	// Rousseeuw & Vanden Branden 2005, Technometrics 47:64–79; the F law
 	// is exact for T² under a multivariate t). 25 exceedances: common
 	// practice for a tail quantile good to about 1/√25, and well above
-	// the few outliers a check names, which are left out of the fit.
+	// the few outliers a check names, which are left out of the fit. The
+	// fit is used only when the count beyond the normal-theory quantile at
+	// 99 % or at that level is significant at analysis.TailTestAlpha =
+	// 0.05 (common practice) at either, so that Gaussian tables keep their
+	// normal-theory limits.
 )
 
 // Components.
