@@ -33,6 +33,16 @@ type Limits struct {
 	// QFamily are the T² and Q limits at that confidence.
 	FamilyConf        float64
 	T2Family, QFamily float64
+	// The outlier checks judge against the larger of the normal-theory
+	// limit and the limit of a scaled-F law fitted to the statistic's own
+	// bulk (FitTail), so that a clean table with a mildly heavy tail does
+	// not alarm. T2Family and QFamily above are those larger limits;
+	// T2FamilyNormal and QFamilyNormal the normal-theory ones; T2Count95
+	// and QCount95 the larger 95 % limits the binomial count test uses.
+	// T2_95 … Q99 stay normal theory: samples.csv and the plots show them.
+	T2Tail, QTail                 TailFit
+	T2FamilyNormal, QFamilyNormal float64
+	T2Count95, QCount95           float64
 }
 
 // SidakConfidence returns (1 − α)^(1/n), the per-test confidence at which n
@@ -142,7 +152,42 @@ func ComputeSampleStats(z *mat.Dense, v, t mat.Matrix, eigenvalues []float64) Sa
 		}
 	}
 	s.Limits = TrainingLimits(n, k, eigenvalues)
+	var discarded []float64
+	if k < len(eigenvalues) {
+		discarded = eigenvalues[k:]
+	}
+	s.Limits.AdaptTails(s.T2, s.Q, k, discarded)
 	return s
+}
+
+// AdaptTails fits the tail of T² (d₁ = k) and of Q (d₁ = Box's h =
+// θ₁²/θ₂ of the discarded eigenvalues) to the statistics' own values and
+// raises the family-wise and count limits to the fitted ones where those
+// are larger (see FitTail). Without a heavier tail the limits stay normal
+// theory.
+func (l *Limits) AdaptTails(t2, q []float64, k int, discarded []float64) {
+	l.T2FamilyNormal, l.QFamilyNormal = l.T2Family, l.QFamily
+	l.T2Count95, l.QCount95 = l.T2_95, l.Q95
+	l.T2Tail = FitTail(t2, float64(k), l.T2FamilyNormal, func(c float64) float64 { return T2LimitModel(len(t2), k, c) })
+	if l.T2Tail.Fitted() {
+		l.T2Family = math.Max(l.T2Family, l.T2Tail.Quantile(l.FamilyConf))
+		l.T2Count95 = math.Max(l.T2_95, l.T2Tail.Quantile(Conf95))
+	}
+	var t1, t2s float64
+	for _, d := range discarded {
+		d = math.Max(d, 0)
+		t1 += d
+		t2s += d * d
+	}
+	l.QTail = TailFit{DF: math.Inf(1)}
+	if l.QMethod == QNone || !(t2s > 0) {
+		return
+	}
+	l.QTail = FitTail(q, t1*t1/t2s, l.QFamilyNormal, func(c float64) float64 { q, _ := QLimit(discarded, c); return q })
+	if l.QTail.Fitted() {
+		l.QFamily = math.Max(l.QFamily, l.QTail.Quantile(l.FamilyConf))
+		l.QCount95 = math.Max(l.Q95, l.QTail.Quantile(Conf95))
+	}
 }
 
 // TrainingLimits returns the control limits for the samples of a model with k

@@ -69,6 +69,19 @@ const (
 	// approximations (common practice: 0.001 is the conventional "highly
 	// significant" level).
 	BinomialAlpha = 0.001
+	// analysis.TailFitCount (25; it lives there because the limits are
+	// computed there): where T² or Q has a heavier tail than normal theory,
+	// the family-wise and count limits are those of a scaled F fitted to
+	// the statistic's median and its quantile with TailFitCount samples
+	// beyond it (analysis.FitTail; robust quantile matching after Hubert,
+	// Rousseeuw & Vanden Branden 2005, Technometrics 47:64–79; the F law
+	// is exact for T² under a multivariate t). 25 exceedances: common
+	// practice for a tail quantile good to about 1/√25, and well above
+	// the few outliers a check names, which are left out of the fit. The
+	// fit is used only when the count beyond the normal-theory quantile at
+	// 99 % or at that level is significant at analysis.TailTestAlpha =
+	// 0.05 (common practice) at either, so that Gaussian tables keep their
+	// normal-theory limits.
 )
 
 // Components.
