@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat"
 )
 
 // Cross-validation settings.
@@ -159,22 +160,11 @@ func scaleOf(s Scaling, v []float64) float64 {
 	if len(v) < 2 {
 		return 1
 	}
-	mean := 0.0
-	for _, x := range v {
-		mean += x
-	}
-	mean /= float64(len(v))
 	switch s {
-	case ScaleUnit, ScalePareto:
-		ss := 0.0
-		for _, x := range v {
-			ss += (x - mean) * (x - mean)
-		}
-		sd := math.Sqrt(ss / float64(len(v)-1))
-		if s == ScalePareto {
-			return math.Sqrt(sd)
-		}
-		return sd
+	case ScaleUnit:
+		return sampleSD(v)
+	case ScalePareto:
+		return math.Sqrt(sampleSD(v))
 	case ScaleRange:
 		return slices.Max(v) - slices.Min(v)
 	}
@@ -318,20 +308,13 @@ func sumFold(fp [][]float64, a int) float64 {
 	return s
 }
 
+// sampleSD is the standard deviation with the n−1 divisor; 0 for fewer
+// than two values.
 func sampleSD(v []float64) float64 {
 	if len(v) < 2 {
 		return 0
 	}
-	m := 0.0
-	for _, x := range v {
-		m += x
-	}
-	m /= float64(len(v))
-	ss := 0.0
-	for _, x := range v {
-		ss += (x - m) * (x - m)
-	}
-	return math.Sqrt(ss / float64(len(v)-1))
+	return stat.StdDev(v, nil)
 }
 
 // imputeWorkspace is the reusable memory of imputePCA.
