@@ -43,6 +43,15 @@ type recordReader struct {
 	badOff int // where readLine found a bad byte in the line it returned
 }
 
+// MaxLineBytes bounds one physical line. A table line of 100,000 numeric
+// fields is a few MB; a "line" far longer has no line end at all (a
+// stream of text without newlines), and reading on would hold all of it in
+// memory.
+const MaxLineBytes = 64 << 20
+
+// errLineTooLong is returned when a line passes MaxLineBytes.
+var errLineTooLong = fmt.Errorf("the line is longer than %d MiB without a line end: this does not look like a text table", MaxLineBytes>>20)
+
 // errUnterminatedQuote is returned (wrapped by the caller with a position)
 // when the input ends inside a quoted field.
 var errUnterminatedQuote = errors.New("quoted field is not closed before the end of the file")
@@ -84,6 +93,10 @@ func (r *recordReader) readLine() ([]byte, error) {
 				// line: stop at the first NUL rather than read it all.
 				err = nil
 				break
+			}
+			if len(r.long) > MaxLineBytes {
+				r.line++
+				return nil, errLineTooLong
 			}
 			chunk, err = r.br.ReadSlice(eol)
 			r.long = append(r.long, chunk...)

@@ -814,8 +814,11 @@ func readError(name string, rr *recordReader, err error) error {
 	if te, ok := err.(*textError); ok {
 		return &InputError{File: name, Line: te.line, Column: te.col, Text: te.text, Reason: te.reason}
 	}
-	if err == errUnterminatedQuote {
+	switch err {
+	case errUnterminatedQuote:
 		return &InputError{File: name, Line: rr.recLine, Reason: err.Error()}
+	case errLineTooLong:
+		return &InputError{File: name, Line: rr.line, Reason: err.Error()}
 	}
 	return &InputError{File: name, Line: rr.line, Reason: "read error: " + err.Error()}
 }

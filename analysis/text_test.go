@@ -377,3 +377,33 @@ func writeTemp(t *testing.T, name, text string) string {
 	}
 	return path
 }
+
+// endless yields "y" forever, with no line end (like `yes | tr -d '\n'`),
+// counting what was read.
+type endless struct{ read int64 }
+
+func (e *endless) Read(p []byte) (int, error) {
+	for i := range p {
+		p[i] = 'y'
+	}
+	e.read += int64(len(p))
+	return len(p), nil
+}
+
+// A stream without line ends is refused once a line passes MaxLineBytes,
+// instead of being read into memory without end.
+func TestEndlessLineStops(t *testing.T) {
+	r := &endless{}
+	_, err := ReadTableFrom("pipe", io.MultiReader(strings.NewReader("id,a,b\nx,1,2\n"), r), ReadOptions{})
+	var ie *InputError
+	if !errors.As(err, &ie) || ie.Line != 3 || !strings.Contains(ie.Reason, "without a line end") {
+		t.Errorf("got %v, want a refusal of line 3 as too long", err)
+	}
+	if r.read > MaxLineBytes+8<<20 {
+		t.Errorf("read %d MB before stopping", r.read>>20)
+	}
+	lr := &endless{}
+	if _, err := ReadLooseTableFrom("loadings", io.MultiReader(strings.NewReader("variable,PC1\n"), lr)); err == nil || !strings.Contains(err.Error(), "without a line end") {
+		t.Errorf("loose table: got %v", err)
+	}
+}
