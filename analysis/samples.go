@@ -43,6 +43,15 @@ type Limits struct {
 	T2Tail, QTail                 TailFit
 	T2FamilyNormal, QFamilyNormal float64
 	T2Count95, QCount95           float64
+	// Components is the tail weight of the components themselves
+	// (FitComponentTail); T2FamilyComponent and QFamilyComponent are the
+	// family-wise limits under its t_ν law, NaN without a fit.
+	Components                          ComponentTail
+	T2FamilyComponent, QFamilyComponent float64
+	// T2Phase is the Phase I re-estimation (ReestimateT2) the T² check
+	// judges by; T2Flagged the samples it sets aside beyond T2Family.
+	T2Phase   ReestimatedT2
+	T2Flagged []int
 }
 
 // SidakConfidence returns (1 − α)^(1/n), the per-test confidence at which n
@@ -156,18 +165,28 @@ func ComputeSampleStats(z *mat.Dense, v, t mat.Matrix, eigenvalues []float64) Sa
 	if k < len(eigenvalues) {
 		discarded = eigenvalues[k:]
 	}
-	s.Limits.AdaptTails(s.T2, s.Q, k, discarded)
+	s.Limits.AdaptTails(t, s.T2, s.Q, eigenvalues[:k], discarded)
 	return s
 }
 
-// AdaptTails fits the tail of T² (d₁ = k) and of Q (d₁ = Box's h =
-// θ₁²/θ₂ of the discarded eigenvalues) to the statistics' own values and
-// raises the family-wise and count limits to the fitted ones where those
-// are larger (see FitTail). Without a heavier tail the limits stay normal
-// theory.
-func (l *Limits) AdaptTails(t2, q []float64, k int, discarded []float64) {
+// AdaptTails raises the family-wise and count limits of T² and Q where the
+// data's own tails are heavier than normal theory allows, in two ways, and
+// keeps the largest limit:
+//
+//   - FitTail fits a scaled F to the bulk of T² (d₁ = k) and of Q (d₁ =
+//     Box's h = θ₁²/θ₂ of the discarded eigenvalues): a tail in which all
+//     terms grow together, as under a multivariate t;
+//   - FitComponentTail fits the tail weight of the components themselves
+//     from the retained scores (columns of scores, eigenvalues retained)
+//     and from Q's variance: a tail in which one term at a time is large.
+//
+// Samples beyond a normal-theory family-wise limit are left out of both
+// fits. Without a heavier tail the limits stay normal theory.
+func (l *Limits) AdaptTails(scores mat.Matrix, t2, q, retained, discarded []float64) {
+	k := len(retained)
 	l.T2FamilyNormal, l.QFamilyNormal = l.T2Family, l.QFamily
 	l.T2Count95, l.QCount95 = l.T2_95, l.Q95
+	l.T2FamilyComponent, l.QFamilyComponent = math.NaN(), math.NaN()
 	l.T2Tail = FitTail(t2, float64(k), l.T2FamilyNormal, func(c float64) float64 { return T2LimitModel(len(t2), k, c) })
 	if l.T2Tail.Fitted() {
 		l.T2Family = math.Max(l.T2Family, l.T2Tail.Quantile(l.FamilyConf))
@@ -180,13 +199,76 @@ func (l *Limits) AdaptTails(t2, q []float64, k int, discarded []float64) {
 		t2s += d * d
 	}
 	l.QTail = TailFit{DF: math.Inf(1)}
-	if l.QMethod == QNone || !(t2s > 0) {
+	hasQ := l.QMethod != QNone && t2s > 0
+	if hasQ {
+		l.QTail = FitTail(q, t1*t1/t2s, l.QFamilyNormal, func(c float64) float64 { q, _ := QLimit(discarded, c); return q })
+		if l.QTail.Fitted() {
+			l.QFamily = math.Max(l.QFamily, l.QTail.Quantile(l.FamilyConf))
+			l.QCount95 = math.Max(l.Q95, l.QTail.Quantile(Conf95))
+		}
+	}
+	live := make([]bool, k)
+	ones := make([]float64, 0, k)
+	for a, e := range retained {
+		if live[a] = e > NullRatio*retained[0]; live[a] {
+			ones = append(ones, 1)
+		}
+	}
+	_, startT2 := CountAbove(t2, l.T2FamilyNormal)
+	phase := ReestimateT2(scores, live, l.FamilyConf, 0, startT2)
+	skip := make([]bool, len(t2))
+	for _, i := range phase.SetAside {
+		skip[i] = true
+	}
+	for i := range skip {
+		skip[i] = skip[i] || (phase.T2 == nil && above(t2[i], l.T2FamilyNormal)) || (hasQ && above(q[i], l.QFamilyNormal))
+	}
+	qValues := q
+	if !hasQ {
+		qValues, discarded = nil, nil
+	}
+	l.Components = FitComponentTail(scores, retained, qValues, discarded, skip)
+	raise := func(limit *float64, candidate float64) {
+		if candidate > *limit {
+			*limit = candidate
+		}
+	}
+	if l.Components.Fitted() {
+		l.T2FamilyComponent = l.Components.FamilyLimit(ones, l.FamilyConf)
+		raise(&l.T2Family, l.T2FamilyComponent)
+		raise(&l.T2Count95, l.Components.CountLimit(ones, Conf95))
+		if cq := l.Components.ForQ(); hasQ && cq.Fitted() {
+			l.QFamilyComponent = cq.FamilyLimit(discarded, l.FamilyConf)
+			raise(&l.QFamily, l.QFamilyComponent)
+			raise(&l.QCount95, cq.CountLimit(discarded, Conf95))
+		}
+	}
+	l.judgeT2(scores, live, t2, phase)
+}
+
+// judgeT2 settles which samples the T² check flags. Without a heavier
+// tail the normal-theory Phase I set stands; with one, the iteration runs
+// again with its limits raised to the tail's, since the first run's
+// normal-theory limits would set aside the tail itself. T2Family becomes
+// the limit the flagged samples passed: the new-sample one when some are
+// set aside, else the in-sample one (each raised to the tail's).
+func (l *Limits) judgeT2(scores mat.Matrix, live []bool, t2 []float64, phase ReestimatedT2) {
+	if phase.T2 == nil {
+		_, l.T2Flagged = CountAbove(t2, l.T2Family)
 		return
 	}
-	l.QTail = FitTail(q, t1*t1/t2s, l.QFamilyNormal, func(c float64) float64 { q, _ := QLimit(discarded, c); return q })
-	if l.QTail.Fitted() {
-		l.QFamily = math.Max(l.QFamily, l.QTail.Quantile(l.FamilyConf))
-		l.QCount95 = math.Max(l.Q95, l.QTail.Quantile(Conf95))
+	floor := math.NaN()
+	if l.T2Family > l.T2FamilyNormal {
+		floor = l.T2Family
+		_, start := CountAbove(t2, l.T2Family)
+		phase = ReestimateT2(scores, live, l.FamilyConf, floor, start)
+	}
+	l.T2Phase = phase
+	l.T2Flagged = phase.SetAside
+	if len(phase.SetAside) > 0 {
+		l.T2Family = phase.LimitNew
+	} else {
+		l.T2Family = math.Max(l.T2Family, phase.LimitKept)
 	}
 }
 
@@ -232,7 +314,7 @@ func (s SampleStats) Beyond(i int) []string {
 	}
 	// A limit of zero is no limit (a Limits value built without the
 	// family-wise fields).
-	if l.T2Family > 0 && above(s.T2[i], l.T2Family) {
+	if l.T2Family > 0 && l.flaggedT2(s.T2, i) {
 		out = append(out, "t2-family")
 	}
 	if l.QMethod != QNone && l.QFamily > 0 && above(s.Q[i], l.QFamily) {
@@ -245,6 +327,21 @@ func (s SampleStats) Beyond(i int) []string {
 		out = append(out, "influence")
 	}
 	return out
+}
+
+// flaggedT2 reports whether the T² check flags sample i: one of
+// T2Flagged when the limits were adapted (AdaptTails), else beyond
+// T2Family.
+func (l Limits) flaggedT2(t2 []float64, i int) bool {
+	if l.T2Flagged == nil && l.T2Phase.T2 == nil {
+		return above(t2[i], l.T2Family)
+	}
+	for _, j := range l.T2Flagged {
+		if j == i {
+			return true
+		}
+	}
+	return false
 }
 
 func above(x, limit float64) bool { return !math.IsNaN(limit) && x > limit }
