@@ -26,7 +26,7 @@ var applyOutliersT2 = Check{
 		if math.IsNaN(l.T2_99) || math.IsNaN(app.T2Family) {
 			return Result{Status: Skip, Message: "The limit for new samples needs more training samples than components."}
 		}
-		return applyLimitCheck(in, app.T2, familyLimits{l.T2_95, l.T2_99, app.T2Family, app.FamilyConf, l.T2_95, "", 0},
+		return applyLimitCheck(in, app.T2, familyLimits{lim95: l.T2_95, lim99: l.T2_99, family: app.T2Family, conf: app.FamilyConf, count95: l.T2_95},
 			"Hotelling T² for new samples",
 			"They lie further from the training centre, within the model plane, than the training data allow: more extreme states of the same process.")
 	},
@@ -43,7 +43,7 @@ var applyOutliersQ = Check{
 		if l.QMethod == "none" {
 			return Result{Status: Skip, Message: "The model retains every component, so nothing is left for a residual."}
 		}
-		return applyLimitCheck(in, app.Q, familyLimits{l.Q95, l.Q99, app.QFamily, app.FamilyConf, l.Q95, "", 0},
+		return applyLimitCheck(in, app.Q, familyLimits{lim95: l.Q95, lim99: l.Q99, family: app.QFamily, conf: app.FamilyConf, count95: l.Q95},
 			"Q for new samples",
 			"Their correlation structure differs from the training data: see contributions.csv and the contribution figures for the variables to blame.")
 	},

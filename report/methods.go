@@ -46,6 +46,12 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{box1954, author = {Box, George E. P.}, title = {Some theorems on quadratic forms applied in the study of analysis of variance problems, {I}. {E}ffect of inequality of variance in the one-way classification}, journal = {Annals of Mathematical Statistics}, volume = {25}, number = {2}, pages = {290--302}, year = {1954}}`},
 	"sidak1967": {Citation: "Šidák, Z. (1967). Rectangular confidence regions for the means of multivariate normal distributions. Journal of the American Statistical Association 62: 626–633.",
 		BibTeX: `@article{sidak1967, author = {{\v{S}}id{\'a}k, Zbyn{\v{e}}k}, title = {Rectangular confidence regions for the means of multivariate normal distributions}, journal = {Journal of the American Statistical Association}, volume = {62}, number = {318}, pages = {626--633}, year = {1967}}`},
+	"sullivan1996": {Citation: "Sullivan, J. H. & Woodall, W. H. (1996). A comparison of multivariate control charts for individual observations. Journal of Quality Technology 28: 398–408.",
+		BibTeX: `@article{sullivan1996, author = {Sullivan, Joe H. and Woodall, William H.}, title = {A comparison of multivariate control charts for individual observations}, journal = {Journal of Quality Technology}, volume = {28}, number = {4}, pages = {398--408}, year = {1996}}`},
+	"lange1989": {Citation: "Lange, K. L., Little, R. J. A. & Taylor, J. M. G. (1989). Robust statistical modeling using the t distribution. Journal of the American Statistical Association 84: 881–896.",
+		BibTeX: `@article{lange1989, author = {Lange, Kenneth L. and Little, Roderick J. A. and Taylor, Jeremy M. G.}, title = {Robust statistical modeling using the t distribution}, journal = {Journal of the American Statistical Association}, volume = {84}, number = {408}, pages = {881--896}, year = {1989}}`},
+	"embrechts1997": {Citation: "Embrechts, P., Klüppelberg, C. & Mikosch, T. (1997). Modelling Extremal Events for Insurance and Finance. Springer, Berlin.",
+		BibTeX: `@book{embrechts1997, author = {Embrechts, Paul and Kl{\"u}ppelberg, Claudia and Mikosch, Thomas}, title = {Modelling Extremal Events for Insurance and Finance}, publisher = {Springer}, address = {Berlin}, year = {1997}}`},
 	"bjorck1973": {Citation: "Björck, Å. & Golub, G. H. (1973). Numerical methods for computing angles between linear subspaces. Mathematics of Computation 27: 579–594.",
 		BibTeX: `@article{bjorck1973, author = {Bj{\"o}rck, {\AA}ke and Golub, Gene H.}, title = {Numerical methods for computing angles between linear subspaces}, journal = {Mathematics of Computation}, volume = {27}, number = {123}, pages = {579--594}, year = {1973}}`},
 	"hoaglin1978": {Citation: "Hoaglin, D. C. & Welsch, R. E. (1978). The hat matrix in regression and ANOVA. The American Statistician 32: 17–22.",
@@ -231,6 +237,15 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	fmt.Fprintf(&b, ", judged family-wise with Šidák's (1967) correction for the %d samples at α = %g (T² %s, Q %s) and a binomial tail test of the count beyond the 95 %% limit. ",
 		res.Decomp.Rows, analysis.FamilyAlpha, g4(l.T2Family), g4(l.QFamily))
 	c.cite("sidak1967")
+	if ph := l.T2Phase; len(ph.SetAside) > 0 {
+		fmt.Fprintf(&b, "Samples beyond the T² limit were set aside and the component variances estimated again from the other %d until the set settled, each set-aside sample being judged as a new one (Phase I practice; Sullivan & Woodall 1996). ", ph.Kept)
+		c.cite("sullivan1996")
+	}
+	if ct := l.Components; ct.Fitted() {
+		b.WriteString("The components' tail weight was estimated from the retained scores (Student t by maximum likelihood; Lange et al. 1989) and from the variance of Q; ")
+		fmt.Fprintf(&b, "with a heavier tail than the Gaussian (ν = %s), each family-wise limit is the larger of the normal-theory one and the tail of a sum of Student t terms (Embrechts et al. 1997). ", g4(ct.DF))
+		c.cite("lange1989", "embrechts1997")
+	}
 	if inf := res.Samples.Influence; inf.Angle != nil {
 		b.WriteString("Each sample's influence is the largest principal angle (Björck & Golub 1973) between the retained subspace and the one refitted without that sample, preprocessing included, computed exactly for every sample. ")
 		c.cite("bjorck1973")

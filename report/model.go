@@ -185,7 +185,11 @@ func formatMeasure(v any) string {
 		slices.Sort(keys)
 		parts := make([]string, len(keys))
 		for i, k := range keys {
-			parts[i] = strings.ReplaceAll(strings.TrimPrefix(k, "limit_"), "_", " ") + " %: " + g4(x[k])
+			label := strings.ReplaceAll(strings.TrimPrefix(k, "limit_"), "_", " ")
+			if _, err := strconv.Atoi(label); err == nil {
+				label += " %" // limit_95 is the 95 % limit
+			}
+			parts[i] = label + ": " + g4(x[k])
 		}
 		return strings.Join(parts, ", ")
 	}
