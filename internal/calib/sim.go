@@ -286,20 +286,29 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 	pick := func(m int) []int { return rng.Perm(n)[:m] }
 	switch defect {
 	case OffModel:
-		// A random unit direction in the noise space (eigenvectors k..p−1)
-		// per sample, of squared length twice the Bonferroni limit of Q,
-		// σ²·χ²_{p−k}(1 − 0.05/n): gross at the family-wise level, yet
-		// adding only d²/n to the variance along its direction, too little
-		// to build a component of its own (a larger push makes each such
-		// sample a component, and the defect would be another one).
+		// Each planted sample keeps its place in the model plane, and its
+		// residual is replaced by one of squared length twice the
+		// Bonferroni limit of Q, σ²·χ²_{p−k}(1 − 0.05/n), along a random
+		// unit direction of the noise space (eigenvectors k..p−1): gross at
+		// the family-wise level, yet adding only d²/n to the variance along
+		// its direction, too little to build a component of its own (a
+		// larger push makes each such sample a component, and the defect
+		// would be another one). Replacing rather than adding puts every
+		// planted sample at the stated distance: added to the sample's own
+		// residual, the push was partly cancelled on one table in twenty.
 		limit := lam[k] * distuv.ChiSquared{K: float64(p - k)}.Quantile(1-0.05/float64(n))
 		for _, i := range pick(3) {
 			dir := make([]float64, p)
 			norm := 0.0
 			for m := k; m < p; m++ {
 				w := rng.NormFloat64()
+				coord := 0.0 // the sample's coordinate along eigenvector m
 				for j := range p {
 					dir[j] += w * v.At(j, m)
+					coord += x.At(i, j) * v.At(j, m)
+				}
+				for j := range p {
+					x.Set(i, j, x.At(i, j)-coord*v.At(j, m))
 				}
 			}
 			for _, d := range dir {
@@ -312,13 +321,21 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 			c.Planted = append(c.Planted, ids[i])
 		}
 	case AlongModel:
+		// Each planted sample's coordinate along the first eigenvector is
+		// set to ±7 standard deviations (replaced, not added to, so that
+		// every one lies at that distance).
 		for _, i := range pick(3) {
 			sign := 1.0
 			if rng.IntN(2) == 0 {
 				sign = -1
 			}
+			coord := 0.0
 			for j := range p {
-				x.Set(i, j, x.At(i, j)+sign*7*math.Sqrt(lam[0])*v.At(j, 0))
+				coord += x.At(i, j) * v.At(j, 0)
+			}
+			shift := sign*7*math.Sqrt(lam[0]) - coord
+			for j := range p {
+				x.Set(i, j, x.At(i, j)+shift*v.At(j, 0))
 			}
 			c.Planted = append(c.Planted, ids[i])
 		}
