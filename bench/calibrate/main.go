@@ -19,8 +19,8 @@ import (
 )
 
 func main() {
-	tables := flag.Int("tables", 10, "clean tables per grid cell")
-	defects := flag.Int("defects", 40, "tables per planted defect")
+	tables := flag.Int("tables", 30, "clean tables per grid cell")
+	defects := flag.Int("defects", 100, "tables per planted defect")
 	seed := flag.Uint64("seed", 20240612, "seed of the whole run")
 	workers := flag.Int("workers", runtime.NumCPU(), "tables audited at once (results do not depend on it)")
 	perms := flag.Int("permutations", 0, "parallel-analysis permutations (0: the default of pcqc run)")
@@ -44,7 +44,17 @@ func main() {
 		len(cells), *tables, len(calib.Defects), *defects, *seed)
 	fmt.Printf("Cells left out (the design cannot separate k components there):")
 	for _, c := range infeasible {
-		fmt.Printf(" (%d,%d,%d)", c.N, c.P, c.K)
+		if c.Tail == calib.Gaussian {
+			fmt.Printf(" (%d,%d,%d)", c.N, c.P, c.K)
+		}
+	}
+	fmt.Printf("\nand for t%d only, whose eigenvalues have a larger sampling error:", calib.TDegrees)
+	for _, c := range infeasible {
+		if c.Tail != calib.Gaussian {
+			if _, ok := calib.Spectrum(c.N, c.P, c.K, calib.Gaussian); ok {
+				fmt.Printf(" (%d,%d,%d)", c.N, c.P, c.K)
+			}
+		}
 	}
 	fmt.Printf("\n\n")
 	start := time.Now()

@@ -30,10 +30,13 @@
 //     factor of two leaves room for the sampling error of λ_k, about
 //     λ_k·√(2/n) (Anderson 1963), which is 14 % at n = 100.
 //   - Consecutive signal eigenvalues have the ratio
-//     r = max(1.5, 1/(1 − 4√(2/n))), so that each gap exceeds four times
-//     North's sampling error δλ = λ√(2/n) of the larger eigenvalue (North,
-//     Bell, Cahalan & Moeng 1982): the axes are distinct at this n, and an
-//     alarm about axis mixing on them is a false one.
+//     r = max(1.5, 1/(1 − 4√((2 + κ)/n))), so that each gap exceeds four
+//     times the sampling error of the larger eigenvalue: North's δλ =
+//     λ√(2/n) (North, Bell, Cahalan & Moeng 1982) for Gaussian scores, and
+//     λ√((2 + κ)/n) for scores of excess kurtosis κ (λ̂ is a mean of n
+//     squared scores, whose variance is λ²(2 + κ)), which widens the gaps of
+//     the heavy-tailed variant at small n: the axes are distinct at this n,
+//     and an alarm about axis mixing on them is a false one.
 //   - The noise eigenvalue σ² = (p − Σ signal)/(p − k) must be at least
 //     0.25, so that the variables are not nearly exact combinations of the
 //     factors. Cells of the grid where these three demands cannot all be

@@ -47,15 +47,28 @@ const (
 	minNoise      = 0.25 // least noise eigenvalue
 )
 
+// excessKurtosis is the excess kurtosis of one latent score: 0 for the
+// Gaussian, 6/(ν − 4) for Student's t with ν degrees of freedom.
+func (t Tail) excessKurtosis() float64 {
+	if t == StudentT {
+		return 6 / float64(TDegrees-4)
+	}
+	return 0
+}
+
 // Spectrum returns the population correlation eigenvalues of a clean table
 // of the cell, largest first, and whether the design is feasible there.
-func Spectrum(n, p, k int) ([]float64, bool) {
+func Spectrum(n, p, k int, tail Tail) ([]float64, bool) {
 	if k < 1 || k >= p || n < 2 {
 		return nil, false
 	}
 	edge := math.Pow(1+math.Sqrt(float64(p)/float64(n)), 2)
 	r := minRatio
-	if d := northMultiple * math.Sqrt(2/float64(n)); d < 1 {
+	// The sampling error of λ_a is λ_a·√((2 + κ)/n) for independent scores
+	// of excess kurtosis κ: λ̂_a is the mean of n values t_a², whose
+	// variance is E t⁴ − λ² = λ²(2 + κ). North's √(2/n) is the Gaussian
+	// case.
+	if d := northMultiple * math.Sqrt((2+tail.excessKurtosis())/float64(n)); d < 1 {
 		r = max(r, 1/(1-d))
 	} else {
 		return nil, false
@@ -87,9 +100,9 @@ func Grid(ns, ps, ks []int) (cells, infeasible []Cell) {
 						continue
 					}
 					c := Cell{N: n, P: p, K: k, Tail: tail}
-					if _, ok := Spectrum(n, p, k); ok {
+					if _, ok := Spectrum(n, p, k, tail); ok {
 						cells = append(cells, c)
-					} else if tail == Gaussian {
+					} else {
 						infeasible = append(infeasible, c)
 					}
 				}
@@ -255,7 +268,7 @@ const golden = 0x9e3779b97f4a7c15
 func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 	rng := rand.New(rand.NewPCG(seed, uint64(index)))
 	n, p, k := cell.N, cell.P, cell.K
-	lam, ok := Spectrum(n, p, k)
+	lam, ok := Spectrum(n, p, k, cell.Tail)
 	if !ok || (defect == EqualEigenvalues && k < 2) {
 		return Case{}, fmt.Errorf("calib: no %s table can be planted in cell %v", defect, cell)
 	}

@@ -88,7 +88,7 @@ func heavyOffModel(seed uint64, index int, c Cell) (Case, error) {
 	if err != nil {
 		return cs, err
 	}
-	lam, _ := Spectrum(c.N, c.P, c.K)
+	lam, _ := Spectrum(c.N, c.P, c.K, c.Tail)
 	limit := analysis.ComponentTail{DF: TDegrees}.FamilyLimit(lam[c.K:], analysis.SidakConfidence(analysis.FamilyAlpha, c.N))
 	pp, err := analysis.FitPreprocessing(cs.Table.X, cs.Table.Transform, cs.Scaling)
 	if err != nil {
