@@ -145,7 +145,7 @@ func TestUsageErrors(t *testing.T) {
 		{[]string{"run", data, "--scale", "auto", "--out", out}, "invalid --scale"},
 		{[]string{"run", data, "--components", "zero", "--out", out}, "invalid --components"},
 		{[]string{"run", data, "--components", "9", "--out", out}, "more components than the data have"},
-		{[]string{"run", data, "--nonsense", "--out", out}, "flag provided but not defined"},
+		{[]string{"run", data, "--nonsense", "--out", out}, "unknown flag --nonsense"},
 		{[]string{"run", "no-such-file.csv", "--out", out}, "no-such-file.csv: cannot open"},
 		{[]string{"help", "nothing"}, "unknown command"},
 	}

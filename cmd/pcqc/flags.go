@@ -334,13 +334,17 @@ func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
 	if i := slices.Index(args, "--"); i >= 0 {
 		args, rest = args[:i], args[i+1:]
 	}
+	// pcqc's own messages for flags the flag package would refuse.
+	if err := checkFlags(fs, args); err != nil {
+		return nil, err
+	}
 	var positional []string
 	for {
 		if err := fs.Parse(args); err != nil {
 			if errors.Is(err, flag.ErrHelp) {
 				return nil, err
 			}
-			return nil, usagef("%v", err)
+			return nil, flagError(err)
 		}
 		args = fs.Args()
 		if len(args) == 0 {

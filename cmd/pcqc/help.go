@@ -1,6 +1,8 @@
 package main
 
 import (
+	"errors"
+	"flag"
 	"fmt"
 	"io"
 )
@@ -9,9 +11,13 @@ var versionCommand = &command{
 	name:    "version",
 	summary: "print the pcqc version",
 	usage:   "pcqc version",
-	help:    "Version prints the pcqc version.\n",
+	help:    "Version prints the pcqc version. pcqc --version does the same.\n",
 	run: func(args []string, stdout, stderr io.Writer) (int, error) {
-		if len(args) > 0 {
+		pos, helped, err := parseBare("version", args, stdout)
+		if helped || err != nil {
+			return exitOK, err
+		}
+		if len(pos) > 0 {
 			return 0, usagef("takes no arguments")
 		}
 		fmt.Fprintf(stdout, "pcqc %s\n", Version)
@@ -23,22 +29,37 @@ var helpCommand = &command{
 	name:    "help",
 	summary: "show help for pcqc or for one command",
 	usage:   "pcqc help [command]",
-	help:    "Help shows the list of commands, or the help of one command.\n",
+	help:    "Help shows the list of commands, or the help of one command. pcqc -h and\npcqc --help do the same, and so does -h after a command.\n",
 	run: func(args []string, stdout, stderr io.Writer) (int, error) {
-		switch len(args) {
+		pos, helped, err := parseBare("help", args, stdout)
+		if helped || err != nil {
+			return exitOK, err
+		}
+		switch len(pos) {
 		case 0:
 			printTopHelp(stdout)
 			return exitOK, nil
 		case 1:
-			c := lookupCommand(args[0])
+			c := lookupCommand(pos[0])
 			if c == nil {
-				return 0, usagef("unknown command %q; run 'pcqc help' for the list", args[0])
+				return 0, unknownCommand(pos[0])
 			}
 			printCommandHelp(stdout, c)
 			return exitOK, nil
 		}
 		return 0, usagef("takes at most one command name")
 	},
+}
+
+// parseBare parses the arguments of a command that has no flags, so that
+// -h gives its help and any other flag is refused as for every command.
+func parseBare(name string, args []string, stdout io.Writer) (pos []string, helped bool, err error) {
+	pos, err = parseArgs(flag.NewFlagSet(name, flag.ContinueOnError), args)
+	if errors.Is(err, flag.ErrHelp) {
+		printCommandHelp(stdout, lookupCommand(name))
+		return nil, true, nil
+	}
+	return pos, false, err
 }
 
 func printTopHelp(w io.Writer) {
@@ -54,7 +75,7 @@ Commands:
 	for _, c := range commands {
 		fmt.Fprintf(w, "  %-9s %s\n", c.name, c.summary)
 	}
-	fmt.Fprint(w, "\nRun 'pcqc help <command>' for the flags of a command.\n")
+	fmt.Fprint(w, "\nRun 'pcqc help <command>' (or 'pcqc <command> -h') for the flags of a command,\nand 'pcqc --version' for the version.\n")
 }
 
 func printCommandHelp(w io.Writer, c *command) {

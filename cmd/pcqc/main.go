@@ -15,6 +15,7 @@ import (
 	"os"
 	"pcqc/internal/safetext"
 	"runtime/pprof"
+	"strings"
 	"syscall"
 
 	"pcqc/analysis"
@@ -150,17 +151,43 @@ func mainWithArgs(args []string, stdout, stderr io.Writer) (status int) {
 		printTopHelp(stderr)
 		return exitUsage
 	}
-	c := lookupCommand(args[0])
-	if c == nil {
-		fmt.Fprintf(stderr, "pcqc: unknown command %q; run 'pcqc help' for the list\n", args[0])
+	c, rest, err := topLevel(args)
+	if err != nil {
+		fmt.Fprintf(stderr, "pcqc: %s\n", oneLine(err.Error()))
 		return exitUsage
 	}
-	status, err := c.run(args[1:], stdout, stderr)
+	status, err = c.run(rest, stdout, stderr)
 	if err != nil {
 		fmt.Fprintf(stderr, "pcqc %s: %s\n", c.name, oneLine(err.Error()))
 		return statusFor(err)
 	}
 	return status
+}
+
+// topLevel finds the command to run and its arguments. As with the go
+// command, pcqc -h, -help and --help are pcqc help, and -version and
+// --version are pcqc version; any other flag before the command is refused,
+// naming the closest of these.
+func topLevel(args []string) (*command, []string, error) {
+	first := args[0]
+	if strings.HasPrefix(first, "-") && len(first) > 1 {
+		name, _, _ := strings.Cut(strings.TrimLeft(first, "-"), "=")
+		switch name {
+		case "h", "help":
+			return helpCommand, args[1:], nil
+		case "version":
+			return versionCommand, args[1:], nil
+		}
+		if near := closest(name, []string{"help", "version"}); near != "" {
+			return nil, nil, usagef("unknown flag %s; did you mean --%s? Give a command first: run 'pcqc help'", first, near)
+		}
+		return nil, nil, usagef("unknown flag %s: pcqc takes only --help or --version before a command; run 'pcqc help'", first)
+	}
+	c := lookupCommand(first)
+	if c == nil {
+		return nil, nil, unknownCommand(first)
+	}
+	return c, args[1:], nil
 }
 
 func statusFor(err error) int {
