@@ -4,7 +4,9 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"os"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"pcqc/analysis"
@@ -15,15 +17,18 @@ import (
 var applyCommand = &command{
 	name:    "apply",
 	summary: "score new samples against the model of an earlier run",
-	usage:   "pcqc apply AUDIT_DIR NEW_DATA [--out DIR] [--id COL] [--group COL] [flags]",
-	help: `Apply reads model.json from AUDIT_DIR, a folder written by pcqc run, and
-scores the samples of NEW_DATA against it: they are preprocessed with the
+	usage:   "pcqc apply AUDIT_DIR|MODEL_JSON NEW_DATA [--out DIR] [--id COL] [--group COL] [flags]",
+	help: `Apply reads model.json from AUDIT_DIR, a folder written by pcqc run (or the
+model file itself, MODEL_JSON, when it is given by its path), and scores the
+samples of NEW_DATA against it: they are preprocessed with the
 training means and scales (never re-estimated), projected on the training
 loadings, and judged by Hotelling T² against the limit for new observations,
 k(n²−1)/(n(n−k))·F(k, n−k), and by Q against the training limits. For every
 sample beyond a 99 % limit, contributions.csv gives each variable's
 contribution to its T² and its Q; the report shows the new samples on the
-training score plot and the contributions of the worst of them.
+training score plot, and the contributions and signed residuals of the
+worst of them. The training scores are read from scores.csv beside the
+model, when it is there.
 
 The variables are found by name; columns the model does not know are
 ignored. The transform, scaling and components come from the model, so
@@ -32,7 +37,8 @@ ignored. The transform, scaling and components come from the model, so
 --missing mean, missing cells get the training means. NEW_DATA is read in
 the training data's encoding unless --encoding is given.
 
-The output folder defaults to <NEW_DATA name>-apply.
+The output folder defaults to <NEW_DATA name>-apply. The report's Reproduce
+section gives the command with every option in force.
 
 Input, output and report flags as for run:
   --id COL, --group COL, --missing fail|drop|mean, --delim D, --decimal MARK,
@@ -59,18 +65,23 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 			return 0, usagef("--%s is fixed by the saved model; apply takes the model as it is", name)
 		}
 	}
-	auditDir, data := pos[0], pos[1]
+	auditDir, modelPath := modelLocation(pos[0])
+	data := pos[1]
+	outGiven := ""
+	if f.set["out"] {
+		outGiven = f.out
+	}
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-apply"
 	}
-	reads := []string{filepath.Join(auditDir, "model.json"), filepath.Join(auditDir, "scores.csv"), data}
+	reads := []string{modelPath, filepath.Join(auditDir, "scores.csv"), data}
 	read, err := f.validate(reads...)
 	if err != nil {
 		return 0, err
 	}
 	level, _ := f.failLevel()
 	formats, ropt, _ := f.reportOptions(time.Now())
-	model, err := analysis.LoadModel(filepath.Join(auditDir, "model.json"))
+	model, err := analysis.LoadModel(modelPath)
 	if err != nil {
 		return 0, err
 	}
@@ -98,7 +109,8 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 		TrainingScores: training,
 		AuditDir:       auditDir,
 	}
-	meta := report.Meta{Version: Version, Command: append([]string{"pcqc", "apply"}, args...), Options: f.applyOptions(read, t)}
+	opts := f.applyOptions(read, t)
+	meta := report.Meta{Version: Version, Command: applyCommandLine(pos[0], data, opts, outGiven), Options: opts}
 
 	out, err := f.beginOutput(reads)
 	if err != nil {
@@ -124,6 +136,49 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 		return exitChecks, nil
 	}
 	return exitOK, nil
+}
+
+// modelLocation reads apply's first argument: an audit folder, or the
+// path of a model file (a name ending in .json, or any file that is not a
+// folder), whose folder is then the audit folder.
+func modelLocation(arg string) (auditDir, modelPath string) {
+	st, err := os.Stat(arg)
+	isDir := err == nil && st.IsDir()
+	if !isDir && (err == nil || strings.EqualFold(filepath.Ext(arg), ".json")) {
+		return filepath.Dir(arg), arg
+	}
+	return arg, filepath.Join(arg, "model.json")
+}
+
+// applyCommandLine is the command for the report's Reproduce section: the
+// model and data arguments and every option in force that differs from
+// apply's default, those the user typed and those set for them (the demo's
+// id and group columns, the encoding taken from the model, the detected
+// id column), so that the line alone gives the same report. --out is kept
+// when it was given; options that cannot change the results (--force,
+// --quiet, --threads) are left out, as they are from the options table.
+func applyCommandLine(model, data string, opts report.Options, out string) []string {
+	defaults := map[string]string{"id": "", "group": "", "missing": string(analysis.MissingFail), "delim": "auto",
+		"decimal": "point", "encoding": string(analysis.EncodingUTF8), "fail_on": string(checks.Fail), "format": "md,pdf,html",
+		"title": "", "author": "", "date": ""}
+	var flags []string
+	for _, o := range opts {
+		def, ok := defaults[o.Name]
+		value := fmt.Sprint(o.Value)
+		if !ok || value == def {
+			continue
+		}
+		flags = append(flags, "--"+strings.ReplaceAll(o.Name, "_", "-"), value)
+	}
+	if out != "" {
+		flags = append(flags, "--out", out)
+	}
+	cmd := []string{"pcqc", "apply"}
+	if strings.HasPrefix(model, "-") || strings.HasPrefix(data, "-") {
+		// Arguments that look like flags go after "--".
+		return append(append(append(cmd, flags...), "--"), model, data)
+	}
+	return append(append(cmd, model, data), flags...)
 }
 
 // readForModel reads the new data: the model's variables that the file has

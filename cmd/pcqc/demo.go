@@ -98,9 +98,12 @@ func demoLaterBatch(dir string, res *analysis.Result, f *auditFlags, read analys
 	app := analysis.Apply(model, t)
 	app.Extra = append(app.Extra, others...)
 	run := report.ApplyRun{App: app, Checks: checks.RunAll(checks.Input{Apply: app}), TrainingScores: res.Scores, AuditDir: ".."}
-	meta.Command = []string{"pcqc", "apply", ".", filepath.Join(laterBatchDir, laterBatchName)}
-	meta.Options = f.applyOptions(read, t)
 	ropt.Title = "Later batch of the invented survey against its model (pcqc demo)"
+	// The options in force for the later batch: the demo's, with its title.
+	g := *f
+	g.title = ropt.Title
+	meta.Options = g.applyOptions(read, t)
+	meta.Command = applyCommandLine(".", filepath.Join(laterBatchDir, laterBatchName), meta.Options, "")
 	ropt.Invented = "The data in this report are invented: a later batch of the demo survey, with a planted drift. No sample was measured."
 	if err := report.WriteApplyTables(sub, run, meta); err != nil {
 		return err
