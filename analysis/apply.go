@@ -55,6 +55,10 @@ type Contribution struct {
 	// Q is each variable's squared residual, summing to Q (Miller, Swanson
 	// & Heckler 1998, Appl. Math. Comput. Sci. 8:775–792).
 	Q []float64
+	// Residual is each variable's signed residual, e = z − t Vᵀ in
+	// preprocessed units (Q[j] = Residual[j]²): its sign says whether the
+	// sample is above or below what the model reconstructs.
+	Residual []float64
 }
 
 // MaxPreprocessed is the largest magnitude a preprocessed value may have.
@@ -232,8 +236,8 @@ func (app *Application) contribution(i int, v *mat.Dense) Contribution {
 	m := app.Model
 	p := len(m.Variables)
 	z, t := app.Z.RawRowView(i), app.Scores.RawRowView(i)
-	c := Contribution{Sample: i, T2: make([]float64, p), Q: make([]float64, p)}
 	resid := make([]float64, p)
+	c := Contribution{Sample: i, T2: make([]float64, p), Q: make([]float64, p), Residual: resid}
 	residuals(z, t, v, resid)
 	for j := 0; j < p; j++ {
 		w := 0.0

@@ -114,6 +114,27 @@ func TestApplyBlamesTheShiftedVariable(t *testing.T) {
 		if worst := argmax(c.Q); worst != shifted {
 			t.Errorf("sample %d: Q blamed on v%d, not v%d", c.Sample, worst+1, shifted+1)
 		}
+		// The shift was upward, so the signed residual of the shifted
+		// variable is positive; each squared residual is its Q
+		// contribution, and the residual is orthogonal to the retained
+		// loadings (it is what the components leave).
+		if c.Residual[shifted] <= 0 {
+			t.Errorf("sample %d: residual of v%d is %g after an upward shift", c.Sample, shifted+1, c.Residual[shifted])
+		}
+		for j, e := range c.Residual {
+			if math.Abs(e*e-c.Q[j]) > 1e-12*math.Max(1, c.Q[j]) {
+				t.Errorf("sample %d v%d: residual² %g, Q contribution %g", c.Sample, j+1, e*e, c.Q[j])
+			}
+		}
+		for a := 0; a < m.Retained; a++ {
+			dot := 0.0
+			for j, e := range c.Residual {
+				dot += e * m.Loadings[j][a]
+			}
+			if math.Abs(dot) > 1e-9*math.Sqrt(app.Q[c.Sample]) {
+				t.Errorf("sample %d: residual · PC%d loadings = %g, want 0", c.Sample, a+1, dot)
+			}
+		}
 		sumT2, sumQ := 0.0, 0.0
 		for j := range c.T2 {
 			sumT2 += c.T2[j]

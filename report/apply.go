@@ -150,11 +150,11 @@ func WriteApplyTables(dir string, run ApplyRun, meta Meta) error {
 			return err
 		}
 		p := len(app.Model.Variables)
-		err = streamCSV(join("contributions.csv"), []string{"sample", "variable", "t2_contribution", "q_contribution"}, len(app.Contributions)*p,
+		err = streamCSV(join("contributions.csv"), []string{"sample", "variable", "t2_contribution", "q_contribution", "residual"}, len(app.Contributions)*p,
 			func(r int, dst []string) []string {
 				c := app.Contributions[r/p]
 				j := r % p
-				return append(dst, app.Table.IDs[c.Sample], app.Model.Variables[j], num(c.T2[j]), num(c.Q[j]))
+				return append(dst, app.Table.IDs[c.Sample], app.Model.Variables[j], num(c.T2[j]), num(c.Q[j]), num(c.Residual[j]))
 			})
 		if err != nil {
 			return err
@@ -188,13 +188,15 @@ type ApplyDocument struct {
 	FlaggedNote          string
 	ShiftHeader          []string
 	ShiftRows            [][]string
-	Contributions        []Figure
-	ContributionsNote    string
-	Methods              string
-	References           []Reference
-	Command              string
-	Options              [][2]string
-	Cautions             []string
+	// Contributions holds, for each of the worst samples in turn, its
+	// contribution figure and then its signed-residual figure.
+	Contributions     []Figure
+	ContributionsNote string
+	Methods           string
+	References        []Reference
+	Command           string
+	Options           [][2]string
+	Cautions          []string
 
 	figures []figureJob
 }
@@ -290,21 +292,30 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 		}
 		d.ShiftRows = append(d.ShiftRows, []string{v, g4(m.Means[j]), g4(m.SDs[j]), g4(batch), shift})
 	}
-	for c := 0; c < min(contributionFigures, len(app.Contributions)); c++ {
+	shown := min(contributionFigures, len(app.Contributions))
+	for c := 0; c < shown; c++ {
 		i := app.Contributions[c].Sample
-		d.Contributions = append(d.Contributions, Figure{Stem: fmt.Sprintf("contributions-%d", c+1), Alt: "Contributions of " + t.IDs[i],
-			Caption: fmt.Sprintf("Contributions of each variable to the T² and the Q residual of sample %s, as shares of each (T² shares may be negative; Westerhuis, Gurden & Smilde 2000).", t.IDs[i])})
+		d.Contributions = append(d.Contributions,
+			Figure{Stem: fmt.Sprintf("contributions-%d", c+1), Alt: "Contributions of " + t.IDs[i],
+				Caption: fmt.Sprintf("Contributions of each variable to the T² and the Q residual of sample %s, as shares of each (T² shares may be negative; Westerhuis, Gurden & Smilde 2000).", t.IDs[i])},
+			Figure{Stem: fmt.Sprintf("residuals-%d", c+1), Alt: "Signed residuals of " + t.IDs[i],
+				Caption: residualCaption(t.IDs[i], c+1, shown, len(app.Flagged), m.Scaling)})
 	}
 	if len(app.Contributions) > 0 {
-		d.ContributionsNote = fmt.Sprintf("contributions.csv holds the contributions of all %d flagged samples.", len(app.Contributions))
+		d.ContributionsNote = fmt.Sprintf("contributions.csv holds the contributions and signed residuals of all %d flagged samples.", len(app.Contributions))
 	}
 	d.figures = append(d.figures,
 		figureJob{&d.ScoresFigure, func() drawing { return applyScoresFigure(run) }},
 		figureJob{&d.T2QFig, func() drawing {
 			return t2qDrawing("New samples: Hotelling T² against Q residual", app.T2, app.Q, applyLimits(app), app.Flagged, t.IDs)
 		}})
-	for c := range d.Contributions {
-		d.figures = append(d.figures, figureJob{&d.Contributions[c], func() drawing { return contributionFigure(app, app.Contributions[c]) }})
+	for f := range d.Contributions {
+		c := app.Contributions[f/2]
+		draw := func() drawing { return contributionFigure(app, c) }
+		if f%2 == 1 {
+			draw = func() drawing { return residualFigure(app, c) }
+		}
+		d.figures = append(d.figures, figureJob{&d.Contributions[f], draw})
 	}
 	prepareFigures(d.figures)
 	return d
