@@ -382,6 +382,8 @@ func componentSentences(res *analysis.Result) []string {
 	for _, n := range counts {
 		var kept string
 		switch {
+		case n == 0 && chosen == 0:
+			kept = "would also have retained none"
 		case n == 0:
 			kept = "would have retained none"
 		case n == chosen && res.Rule.Kind == analysis.RuleFixed:
