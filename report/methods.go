@@ -179,7 +179,7 @@ func dataSentence(res *analysis.Result, meta Meta) string {
 func rowsSentence(t *analysis.Table) string {
 	switch n := t.RowsDropped; {
 	case n == 1:
-		return "Before the analysis, 1 sample with missing values was removed."
+		return "Before the analysis, one sample with missing values was removed."
 	case n > 1:
 		return fmt.Sprintf("Before the analysis, %d samples with missing values were removed.", n)
 	}
@@ -199,7 +199,7 @@ func imputationSentence(t *analysis.Table) string {
 		scale = " on the transformed scale"
 	}
 	if n == 1 {
-		return fmt.Sprintf("The 1 missing value was replaced by the mean of its variable%s, before centring.", scale)
+		return fmt.Sprintf("The one missing value was replaced by the mean of its variable%s, before centring.", scale)
 	}
 	return fmt.Sprintf("The %d missing values were replaced by the mean of their variable%s, before centring.", n, scale)
 }
