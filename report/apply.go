@@ -393,7 +393,7 @@ func WriteApplyReport(dir string, run ApplyRun, meta Meta, opt ReportOptions, fo
 		return nil
 	}
 	d := BuildApplyDocument(run, meta, opt)
-	md, err := renderTemplate("apply.md.tmpl", d)
+	md, err := renderCiting(func() ([]byte, error) { return renderTemplate("apply.md.tmpl", d) }, &d.References)
 	if err != nil {
 		return err
 	}

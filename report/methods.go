@@ -2,6 +2,8 @@ package report
 
 import (
 	"fmt"
+	"slices"
+	"strconv"
 	"strings"
 
 	"pcqc/analysis"
@@ -86,6 +88,24 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{miller1998, author = {Miller, Paige and Swanson, Ronald E. and Heckler, Charles E.}, title = {Contribution plots: a missing link in multivariate quality control}, journal = {Applied Mathematics and Computer Science}, volume = {8}, number = {4}, pages = {775--792}, year = {1998}}`},
 	"shewhart1931": {Citation: "Shewhart, W. A. (1931). Economic Control of Quality of Manufactured Product. Van Nostrand, New York.",
 		BibTeX: `@book{shewhart1931, author = {Shewhart, Walter A.}, title = {Economic Control of Quality of Manufactured Product}, publisher = {Van Nostrand}, address = {New York}, year = {1931}}`},
+	// Cited by check sources and messages rather than by the methods.
+	// Verified against the publishers' pages or the papers' first pages
+	// where noted "verified"; the others are from memory and agree with
+	// the references in the code's comments.
+	"peresneto2005": {Citation: "Peres-Neto, P. R., Jackson, D. A. & Somers, K. M. (2005). How many principal components? Stopping rules for determining the number of non-trivial axes revisited. Computational Statistics & Data Analysis 49: 974–997.", // from memory
+		BibTeX: `@article{peresneto2005, author = {Peres-Neto, Pedro R. and Jackson, Donald A. and Somers, Keith M.}, title = {How many principal components? {S}topping rules for determining the number of non-trivial axes revisited}, journal = {Computational Statistics \& Data Analysis}, volume = {49}, number = {4}, pages = {974--997}, year = {2005}}`},
+	"anderson1963": {Citation: "Anderson, T. W. (1963). Asymptotic theory for principal component analysis. Annals of Mathematical Statistics 34: 122–148.", // from memory
+		BibTeX: `@article{anderson1963, author = {Anderson, Theodore W.}, title = {Asymptotic theory for principal component analysis}, journal = {Annals of Mathematical Statistics}, volume = {34}, number = {1}, pages = {122--148}, year = {1963}}`},
+	"hubert2005": {Citation: "Hubert, M., Rousseeuw, P. J. & Vanden Branden, K. (2005). ROBPCA: a new approach to robust principal component analysis. Technometrics 47: 64–79.", // verified
+		BibTeX: `@article{hubert2005, author = {Hubert, Mia and Rousseeuw, Peter J. and Vanden Branden, Karlien}, title = {{ROBPCA}: a new approach to robust principal component analysis}, journal = {Technometrics}, volume = {47}, number = {1}, pages = {64--79}, year = {2005}}`},
+	"gorsuch1983": {Citation: "Gorsuch, R. L. (1983). Factor Analysis, 2nd edn. Lawrence Erlbaum, Hillsdale, NJ.", // verified
+		BibTeX: `@book{gorsuch1983, author = {Gorsuch, Richard L.}, title = {Factor Analysis}, edition = {2nd}, publisher = {Lawrence Erlbaum}, address = {Hillsdale, NJ}, year = {1983}}`},
+	"maccallum1999": {Citation: "MacCallum, R. C., Widaman, K. F., Zhang, S. & Hong, S. (1999). Sample size in factor analysis. Psychological Methods 4: 84–99.", // verified
+		BibTeX: `@article{maccallum1999, author = {MacCallum, Robert C. and Widaman, Keith F. and Zhang, Shaobo and Hong, Sehee}, title = {Sample size in factor analysis}, journal = {Psychological Methods}, volume = {4}, number = {1}, pages = {84--99}, year = {1999}}`},
+	"fisher1915": {Citation: "Fisher, R. A. (1915). Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population. Biometrika 10: 507–521.", // title, volume and first page verified; last page from memory
+		BibTeX: `@article{fisher1915, author = {Fisher, Ronald A.}, title = {Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population}, journal = {Biometrika}, volume = {10}, number = {4}, pages = {507--521}, year = {1915}}`},
+	"fisher1924": {Citation: "Fisher, R. A. (1924). The distribution of the partial correlation coefficient. Metron 3: 329–332.", // from memory
+		BibTeX: `@article{fisher1924, author = {Fisher, Ronald A.}, title = {The distribution of the partial correlation coefficient}, journal = {Metron}, volume = {3}, pages = {329--332}, year = {1924}}`},
 	"gabriel1971": {Citation: "Gabriel, K. R. (1971). The biplot graphic display of matrices with application to principal component analysis. Biometrika 58: 453–467.",
 		BibTeX: `@article{gabriel1971, author = {Gabriel, K. Ruben}, title = {The biplot graphic display of matrices with application to principal component analysis}, journal = {Biometrika}, volume = {58}, number = {3}, pages = {453--467}, year = {1971}}`},
 }
@@ -122,194 +142,354 @@ func (c *citer) references() []Reference {
 }
 
 // methods writes the methods paragraph, ready to paste, and the references
-// for every method it names.
+// it cites. The paragraph is a sequence of whole sentences, one builder
+// each, so that every combination of options reads as English: a builder
+// that has nothing to say returns "". A new option (a new exclusion, a new
+// rule) gets its own sentence rather than a clause spliced into another.
 func methods(res *analysis.Result, meta Meta) (string, []Reference) {
-	var c citer
-	t := res.Table
-	var b strings.Builder
-	d := res.Decomp
-	pct := Percentages(d.Eigenvalues)
+	var sentences []string
+	add := func(s ...string) {
+		for _, x := range s {
+			if x != "" {
+				sentences = append(sentences, x)
+			}
+		}
+	}
+	add(dataSentence(res, meta))
+	add(rowsSentence(res.Table))
+	add(exclusionSentences(res.Table.DroppedVariables)...)
+	add(preprocessingSentence(res), imputationSentence(res.Table))
+	add(decompositionSentence(res), verificationSentence(res))
+	add(componentSentences(res)...)
+	add(outlierSentences(res)...)
+	add(adequacySentence(res))
+	add(stabilitySentences(res)...)
+	add(fmt.Sprintf("Random streams were seeded with %d.", res.Options.Seed))
+	text := strings.Join(sentences, " ")
+	return text, referencesIn(text)
+}
 
-	fmt.Fprintf(&b, "Principal component analysis (Jolliffe & Cadima 2016) was carried out with pcqc %s on %d samples and %d variables of %s (SHA-256 %s…)", meta.Version, t.Rows(), len(t.Variables), t.File, t.SHA256[:12])
-	c.cite("jolliffe2016")
-	if t.RowsDropped > 0 {
-		fmt.Fprintf(&b, ", after %d samples with missing values were removed", t.RowsDropped)
+func dataSentence(res *analysis.Result, meta Meta) string {
+	t := res.Table
+	return fmt.Sprintf("Principal component analysis (Jolliffe & Cadima 2016) was carried out with pcqc %s on %s and %s of %s (SHA-256 %s…).",
+		meta.Version, countNoun(t.Rows(), "sample"), countNoun(len(t.Variables), "variable"), t.File, t.SHA256[:min(12, len(t.SHA256))])
+}
+
+// rowsSentence says which samples were removed for missing values.
+func rowsSentence(t *analysis.Table) string {
+	switch n := t.RowsDropped; {
+	case n == 1:
+		return "Before the analysis, one sample with missing values was removed."
+	case n > 1:
+		return fmt.Sprintf("Before the analysis, %d samples with missing values were removed.", n)
 	}
-	if t.ImputedCells > 0 {
-		fmt.Fprintf(&b, ", after %d missing values were replaced by column means", t.ImputedCells)
+	return ""
+}
+
+// imputationSentence says which missing values were replaced. Means are
+// taken of the transformed values (analysis.ReadTable imputes after the
+// transform), which the sentence says when there is a transform.
+func imputationSentence(t *analysis.Table) string {
+	n := t.ImputedCells
+	if n == 0 {
+		return ""
 	}
-	if len(t.DroppedVariables) > 0 {
-		fmt.Fprintf(&b, "; %d variable%s %s left out (%s)", len(t.DroppedVariables), plural(len(t.DroppedVariables)), map[bool]string{true: "was", false: "were"}[len(t.DroppedVariables) == 1], droppedSummary(t.DroppedVariables))
+	scale := ""
+	if t.Transform != analysis.TransformNone && t.Transform != "" {
+		scale = " on the transformed scale"
 	}
-	b.WriteString(". ")
-	switch t.Transform {
-	case analysis.TransformLog, analysis.TransformLog10, analysis.TransformLog1p:
-		fmt.Fprintf(&b, "Values were transformed by the %s, then ", transformText(t.Transform))
+	if n == 1 {
+		return fmt.Sprintf("The one missing value was replaced by the mean of its variable%s, before centring.", scale)
+	}
+	return fmt.Sprintf("The %d missing values were replaced by the mean of their variable%s, before centring.", n, scale)
+}
+
+// exclusionSentences list every variable left out, grouped by reason, in
+// full: a methods paragraph is pasted into a paper, where "and 5 more"
+// would leave the reader guessing.
+func exclusionSentences(dropped []analysis.DroppedVariable) []string {
+	type group struct {
+		reason string
+		names  []string
+	}
+	var groups []*group
+	byReason := map[string]*group{}
+	for _, v := range dropped {
+		reason := v.Reason
+		switch {
+		case strings.HasPrefix(reason, "constant"):
+			reason = "constant"
+		case strings.Contains(reason, "--drop"):
+			reason = "drop"
+		}
+		g := byReason[reason]
+		if g == nil {
+			g = &group{reason: reason}
+			byReason[reason] = g
+			groups = append(groups, g)
+		}
+		g.names = append(g.names, v.Name)
+	}
+	var out []string
+	for _, g := range groups {
+		one := len(g.names) == 1
+		noun := map[bool]string{true: "variable", false: "variables"}[one]
+		verb := map[bool]string{true: "was", false: "were"}[one]
+		names := joinAnd(g.names)
+		switch g.reason {
+		case "constant":
+			out = append(out, fmt.Sprintf("The constant %s %s %s left out, having no variance to analyse.", noun, names, verb))
+		case "drop":
+			out = append(out, fmt.Sprintf("The %s %s %s left out at the user's request (--drop).", noun, names, verb))
+		default:
+			out = append(out, fmt.Sprintf("The %s %s %s left out: %s.", noun, names, verb, strings.TrimSuffix(g.reason, ".")))
+		}
+	}
+	return out
+}
+
+func preprocessingSentence(res *analysis.Result) string {
+	var b strings.Builder
+	switch res.Table.Transform {
+	case analysis.TransformLog:
+		b.WriteString("Every value was replaced by its natural logarithm, and every variable was then mean-centred")
+	case analysis.TransformLog10:
+		b.WriteString("Every value was replaced by its base-10 logarithm, and every variable was then mean-centred")
+	case analysis.TransformLog1p:
+		b.WriteString("Every value x was replaced by log(1 + x), and every variable was then mean-centred")
 	default:
-		b.WriteString("Values were ")
+		b.WriteString("Every variable was mean-centred")
 	}
-	b.WriteString("mean-centred")
 	switch res.Prep.Scaling {
 	case analysis.ScaleUnit:
-		b.WriteString(" and scaled to unit variance (sample standard deviation, n − 1)")
+		b.WriteString(" and scaled to unit variance (divided by its sample standard deviation, n − 1).")
 	case analysis.ScalePareto:
-		b.WriteString(" and Pareto-scaled (divided by the square root of the standard deviation; van den Berg et al. 2006)")
-		c.cite("vandenberg2006")
+		b.WriteString(" and Pareto-scaled (divided by the square root of its standard deviation; van den Berg et al. 2006).")
 	case analysis.ScaleRange:
-		b.WriteString(" and range-scaled (van den Berg et al. 2006)")
-		c.cite("vandenberg2006")
+		b.WriteString(" and range-scaled (divided by its range; van den Berg et al. 2006).")
 	default:
-		b.WriteString(" without scaling")
+		b.WriteString(" but not scaled, so that the variables keep their units (covariance PCA).")
 	}
-	if d.Method == analysis.MethodTallQR {
-		b.WriteString("; components were obtained by singular value decomposition of the preprocessed matrix, through a blocked Householder QR factorisation (Demmel et al. 2012), with eigenvalues λ = s²/(n − 1). ")
-		c.cite("demmel2012")
-	} else {
-		b.WriteString("; components were obtained by singular value decomposition of the preprocessed matrix through its n × n LQ factor, with eigenvalues λ = s²/(n − 1). ")
-	}
-	fmt.Fprintf(&b, "Correctness was verified on the result: column means below %s of the largest standard deviation, loadings orthonormal to %s, scores uncorrelated to %s, and eigenvalues equal to score variances to %s (relative). ",
-		g4(res.Properties.CenteringError), g4(res.Properties.OrthonormalityError), g4(res.Properties.ScoreCorrelation), g4(res.Properties.VarianceMismatch))
+	return b.String()
+}
 
-	// Number of components.
-	k := res.Retained
-	fmt.Fprintf(&b, "The number of components, %d, was chosen by %s", k, res.Rule.Describe())
+func decompositionSentence(res *analysis.Result) string {
+	if res.Decomp.Method == analysis.MethodTallQR {
+		return "Components were obtained by singular value decomposition of the preprocessed matrix, through a blocked Householder QR factorisation (Demmel et al. 2012), with eigenvalues λ = s²/(n − 1)."
+	}
+	return "Components were obtained by singular value decomposition of the preprocessed matrix, through its n × n LQ factor, with eigenvalues λ = s²/(n − 1)."
+}
+
+func verificationSentence(res *analysis.Result) string {
+	p := res.Properties
+	return fmt.Sprintf("Correctness was verified on the result: column means below %s of the largest standard deviation, loadings orthonormal to %s, scores uncorrelated to %s, and eigenvalues equal to score variances to %s (relative).",
+		g4(p.CenteringError), g4(p.OrthonormalityError), g4(p.ScoreCorrelation), g4(p.VarianceMismatch))
+}
+
+// ruleMethod describes the rule in force as the means of a choice: "…
+// chosen by <ruleMethod>".
+func ruleMethod(res *analysis.Result) string {
+	c := res.Counts
 	switch res.Rule.Kind {
 	case analysis.RuleParallel:
-		fmt.Fprintf(&b, " at 5 %% (Glorfeld 1995) with column-wise permutations run in batches of %d until every decision was settled by 99 %% Clopper–Pearson bounds (Clopper & Pearson 1934), %d of at most %d", analysis.ParallelBatch, res.Counts.Parallel.Permutations, res.Counts.Parallel.Cap)
-		if bl := res.Counts.Parallel.Borderline; bl >= 0 {
-			fmt.Fprintf(&b, "; PC%d stayed borderline and was not counted", bl+1)
-		}
-		c.cite("horn1965", "glorfeld1995", "clopper1934")
+		return "parallel analysis (Horn 1965), which keeps the leading components whose eigenvalues are significantly above those of column-wise permuted data at 5 % (Glorfeld 1995)"
 	case analysis.RuleCV:
-		fmt.Fprintf(&b, ", %d-fold, on %d rows, with the fewest components within one standard error of the smallest PRESS", res.Counts.CV.Folds, res.Counts.CV.Rows)
-		c.cite("bro2008")
+		return fmt.Sprintf("element-wise %d-fold cross-validation (Bro et al. 2008) on %s, as the fewest components within one standard error of the smallest PRESS", c.CV.Folds, countNoun(c.CV.Rows, "row"))
 	case analysis.RuleBrokenStick:
-		c.cite("frontier1976", "jackson1993")
+		return "the broken-stick rule (Frontier 1976; Jackson 1993), which keeps the leading components whose share of the variance exceeds the share expected under the broken stick"
 	case analysis.RuleKaiser:
-		c.cite("kaiser1960")
+		return "the Kaiser criterion (Kaiser 1960), which keeps the components whose eigenvalue exceeds 1, the variance of one unit-scaled variable"
+	case analysis.RuleVariance:
+		return fmt.Sprintf("the smallest number of components whose cumulative share of the variance reaches %s %%", strconv.FormatFloat(100*res.Rule.Variance, 'g', -1, 64))
 	}
-	var others []string
+	return res.Rule.Describe()
+}
+
+// otherRuleName names a rule that was not in force, for the comparison.
+func otherRuleName(res *analysis.Result, rc analysis.RuleCount) string {
+	c := res.Counts
+	switch rc.Rule {
+	case analysis.RuleParallel:
+		return fmt.Sprintf("parallel analysis (Horn 1965; %d permutations)", c.Parallel.Permutations)
+	case analysis.RuleCV:
+		return fmt.Sprintf("element-wise %d-fold cross-validation (Bro et al. 2008)", c.CV.Folds)
+	case analysis.RuleBrokenStick:
+		return "the broken-stick rule (Frontier 1976)"
+	case analysis.RuleKaiser:
+		return "the Kaiser criterion (Kaiser 1960)"
+	case analysis.RuleVariance:
+		return fmt.Sprintf("a cumulative share of %s of the variance", strings.TrimPrefix(strings.TrimPrefix(rc.Note, "≥"), " "))
+	}
+	return string(rc.Rule)
+}
+
+// componentSentences say how many components were retained and why, what
+// the other rules would have kept, and how much variance is retained.
+func componentSentences(res *analysis.Result) []string {
+	var out []string
+	k := res.Retained
+	chosen := k
+	switch {
+	case res.Rule.Kind == analysis.RuleFixed:
+		out = append(out, fmt.Sprintf("The analysis retained %s, the number set by the user.", countNoun(k, "component")))
+	case res.NoStructure:
+		chosen = 0
+		out = append(out, fmt.Sprintf("No component was retained by %s, so PC1 is kept for reference only.", ruleMethod(res)))
+	default:
+		out = append(out, fmt.Sprintf("The analysis retained %s, chosen by %s.", countNoun(k, "component"), ruleMethod(res)))
+	}
+	if p := res.Counts.Parallel; res.Rule.Kind == analysis.RuleParallel {
+		s := fmt.Sprintf("Permutations were run in batches of %d until 99 %% Clopper–Pearson bounds (Clopper & Pearson 1934) settled every decision, which took %d of at most %d", analysis.ParallelBatch, p.Permutations, p.Cap)
+		if p.Borderline >= 0 {
+			s += fmt.Sprintf("; PC%d stayed borderline and was not counted", p.Borderline+1)
+		}
+		out = append(out, s+".")
+	}
+
+	// The other rules, grouped by the count they give: the count in
+	// force first, then the others from fewest to most.
+	groups := map[int][]string{}
+	var counts []int
 	for _, rc := range res.Counts.Counts {
 		if rc.Rule == res.Rule.Kind || !rc.Applies {
 			continue
 		}
-		switch rc.Rule {
-		case analysis.RuleParallel:
-			others = append(others, fmt.Sprintf("parallel analysis (Horn 1965; %d permutations) %d", res.Counts.Parallel.Permutations, rc.Count))
-			c.cite("horn1965")
-		case analysis.RuleCV:
-			others = append(others, fmt.Sprintf("element-wise %d-fold cross-validation (Bro et al. 2008) %d", res.Counts.CV.Folds, rc.Count))
-			c.cite("bro2008")
-		case analysis.RuleBrokenStick:
-			others = append(others, fmt.Sprintf("the broken stick (Frontier 1976) %d", rc.Count))
-			c.cite("frontier1976")
-		case analysis.RuleKaiser:
-			others = append(others, fmt.Sprintf("the Kaiser criterion (Kaiser 1960) %d", rc.Count))
-			c.cite("kaiser1960")
-		case analysis.RuleVariance:
-			others = append(others, fmt.Sprintf("a cumulative share %s %d", rc.Note, rc.Count))
+		if _, ok := groups[rc.Count]; !ok {
+			counts = append(counts, rc.Count)
 		}
+		groups[rc.Count] = append(groups[rc.Count], otherRuleName(res, rc))
 	}
-	if len(others) > 0 {
-		fmt.Fprintf(&b, "; %s gave %s", map[bool]string{true: "the other rule", false: "the other rules"}[len(others) == 1], strings.Join(others, ", "))
+	slices.SortFunc(counts, func(a, b int) int {
+		if (a == chosen) != (b == chosen) {
+			if a == chosen {
+				return -1
+			}
+			return 1
+		}
+		return a - b
+	})
+	// The noun goes with the first number written: "… would have
+	// retained 1 component; … would have retained 4."
+	nounGiven := false
+	number := func(n int) string {
+		if nounGiven {
+			return strconv.Itoa(n)
+		}
+		nounGiven = true
+		return countNoun(n, "component")
 	}
-	b.WriteString(". ")
+	var parts []string
+	for _, n := range counts {
+		var kept string
+		switch {
+		case n == 0 && chosen == 0:
+			kept = "would also have retained none"
+		case n == 0:
+			kept = "would have retained none"
+		case n == chosen && res.Rule.Kind == analysis.RuleFixed:
+			kept = "would have retained the same number"
+		case n == chosen:
+			kept = "would also have retained " + number(n)
+		default:
+			kept = "would have retained " + number(n)
+		}
+		parts = append(parts, joinAnd(groups[n])+" "+kept)
+	}
+	if len(parts) > 0 {
+		out = append(out, "For comparison, "+strings.Join(parts, "; ")+".")
+	}
+
+	pct := Percentages(res.Decomp.Eigenvalues)
 	cum := 0.0
-	var shares []string
-	for a := 0; a < k; a++ {
+	shares := make([]string, k)
+	for a := range k {
 		cum += pct[a]
-		shares = append(shares, fmt.Sprintf("PC%d %.1f %%", a+1, pct[a]))
+		shares[a] = fmt.Sprintf("PC%d %.1f %%", a+1, pct[a])
 	}
-	fmt.Fprintf(&b, "The retained component%s explain %.1f %% of the total variance (%s). ", plural(k), cum, strings.Join(shares, ", "))
-
-	// Outliers.
-	l := res.Samples.Limits
-	fmt.Fprintf(&b, "Samples were screened with Hotelling's T² (Hotelling 1931) against beta-distribution limits for the samples that built the model (Tracy et al. 1992; %s at 95 %%, %s at 99 %%)", g4(l.T2_95), g4(l.T2_99))
-	c.cite("hotelling1931", "tracy1992")
-	switch l.QMethod {
-	case analysis.QJacksonMudholkar:
-		fmt.Fprintf(&b, ", Q residuals against Jackson & Mudholkar (1979) limits (%s and %s)", g4(l.Q95), g4(l.Q99))
-		c.cite("jackson1979")
-	case analysis.QBox:
-		fmt.Fprintf(&b, ", Q residuals against Box's (1954) χ² approximation (%s and %s), as the Jackson & Mudholkar (1979) formula is undefined for these eigenvalues", g4(l.Q95), g4(l.Q99))
-		c.cite("box1954", "jackson1979")
+	if k == 1 {
+		out = append(out, fmt.Sprintf("The retained component explains %.1f %% of the total variance.", cum))
+	} else {
+		out = append(out, fmt.Sprintf("The retained components explain %.1f %% of the total variance (%s).", cum, strings.Join(shares, ", ")))
 	}
-	fmt.Fprintf(&b, ", judged family-wise with Šidák's (1967) correction for the %d samples at α = %g (T² %s, Q %s) and a binomial tail test of the count beyond the 95 %% limit. ",
-		res.Decomp.Rows, analysis.FamilyAlpha, g4(l.T2Family), g4(l.QFamily))
-	c.cite("sidak1967")
-	if ph := l.T2Phase; len(ph.SetAside) > 0 {
-		fmt.Fprintf(&b, "Samples beyond the T² limit were set aside and the component variances estimated again from the other %d until the set settled, each set-aside sample being judged as a new one (Phase I practice; Sullivan & Woodall 1996). ", ph.Kept)
-		c.cite("sullivan1996")
-	}
-	if ct := l.Components; ct.Fitted() {
-		b.WriteString("The components' tail weight was estimated from the retained scores (Student t by maximum likelihood; Lange et al. 1989) and from the variance of Q; ")
-		fmt.Fprintf(&b, "with a heavier tail than the Gaussian (ν = %s), each family-wise limit is the larger of the normal-theory one and the tail of a sum of Student t terms (Embrechts et al. 1997). ", g4(ct.DF))
-		c.cite("lange1989", "embrechts1997")
-	}
-	if inf := res.Samples.Influence; inf.Angle != nil {
-		b.WriteString("Each sample's influence is the largest principal angle (Björck & Golub 1973) between the retained subspace and the one refitted without that sample, preprocessing included, computed exactly for every sample. ")
-		c.cite("bjorck1973")
-	}
-
-	// Adequacy.
-	ad := res.Adequacy
-	var adequacy []string
-	switch {
-	case ad.Bartlett.Computed && ad.Bartlett.Singular:
-		adequacy = append(adequacy, "Bartlett's test of sphericity (Bartlett 1950, 1951; the correlation matrix is singular, some variables being exact combinations of others)")
-		c.cite("bartlett1950", "bartlett1951")
-	case ad.Bartlett.Computed:
-		adequacy = append(adequacy, fmt.Sprintf("Bartlett's test of sphericity (Bartlett 1950, 1951; χ² = %s, df = %d, %s)", g4(ad.Bartlett.Chi2), ad.Bartlett.DF, pText(ad.Bartlett.P)))
-		c.cite("bartlett1950", "bartlett1951")
-	}
-	if ad.KMO.Computed {
-		adequacy = append(adequacy, fmt.Sprintf("the Kaiser–Meyer–Olkin measure (Kaiser 1970; %.2f, %s in the terms of Kaiser 1974)", ad.KMO.Overall, analysis.KMOLabel(ad.KMO.Overall)))
-		c.cite("kaiser1970", "kaiser1974")
-	}
-	adequacy = append(adequacy, "skewness (Joanes & Gill 1998, flagged above 2 after West et al. 1995)")
-	c.cite("joanes1998", "west1995")
-	adequacy = append(adequacy, "the separation of neighbouring eigenvalues (North et al. 1982)")
-	c.cite("north1982")
-	fmt.Fprintf(&b, "Data adequacy was assessed with %s. ", joinAnd(adequacy))
-
-	// Stability.
-	st := res.Stability
-	if st.Used > 0 {
-		fmt.Fprintf(&b, "Loading stability was assessed with %d bootstrap resamples (Efron 1979) of the whole pipeline, each redoing the preprocessing", st.Used)
-		c.cite("efron1979")
-		if d.Rows < d.Vars {
-			b.WriteString(" and computed exactly in the n-dimensional row space (Fisher et al. 2016)")
-			c.cite("fisher2016")
-		}
-		worst := 1.0
-		for _, cs := range st.Components {
-			worst = min(worst, cs.CongruenceP5)
-		}
-		fmt.Fprintf(&b, "; resample loadings were sign-aligned and, separately, Procrustes-rotated (Schönemann 1966) to the reference, and compared by Tucker's congruence coefficient (Tucker 1951), whose 5th percentile was at least %.3f for every retained component, against thresholds of 0.95 and 0.85 (Lorenzo-Seva & ten Berge 2006). ", worst)
-		c.cite("schonemann1966", "tucker1951", "lorenzoseva2006")
-	}
-	fmt.Fprintf(&b, "Random streams were seeded with %d.", res.Options.Seed)
-	if res.Retained >= 2 && res.Decomp.Vars <= biplotVariables {
-		c.cite("gabriel1971")
-	}
-	return b.String(), c.references()
+	return out
 }
 
-func droppedSummary(d []analysis.DroppedVariable) string {
+func outlierSentences(res *analysis.Result) []string {
+	l := res.Samples.Limits
+	var out []string
+	s := fmt.Sprintf("Samples were screened with Hotelling's T² (Hotelling 1931) against the beta-distribution limits for the samples that built the model (Tracy et al. 1992; %s at 95 %%, %s at 99 %%)", g4(l.T2_95), g4(l.T2_99))
+	switch l.QMethod {
+	case analysis.QJacksonMudholkar:
+		s += fmt.Sprintf(" and with the Q residual against Jackson & Mudholkar's (1979) limits (%s at 95 %%, %s at 99 %%).", g4(l.Q95), g4(l.Q99))
+	case analysis.QBox:
+		s += fmt.Sprintf(" and with the Q residual against the limits of Box's (1954) χ² approximation (%s at 95 %%, %s at 99 %%), the Jackson & Mudholkar (1979) formula being undefined for these eigenvalues.", g4(l.Q95), g4(l.Q99))
+	default:
+		s += "; every component was retained, so no variance is left for a Q residual."
+	}
+	out = append(out, s)
+	if l.QMethod == analysis.QJacksonMudholkar || l.QMethod == analysis.QBox {
+		out = append(out, fmt.Sprintf("Both were judged family-wise, with Šidák's (1967) correction for the %s at α = %g (limits: T² %s, Q %s), and by a binomial tail test of the count beyond the 95 %% limit.",
+			countNoun(res.Decomp.Rows, "sample"), analysis.FamilyAlpha, g4(l.T2Family), g4(l.QFamily)))
+	} else {
+		out = append(out, fmt.Sprintf("T² was judged family-wise, with Šidák's (1967) correction for the %s at α = %g (limit %s), and by a binomial tail test of the count beyond the 95 %% limit.",
+			countNoun(res.Decomp.Rows, "sample"), analysis.FamilyAlpha, g4(l.T2Family)))
+	}
+	if ph := l.T2Phase; len(ph.SetAside) > 0 {
+		out = append(out, fmt.Sprintf("Samples beyond the T² limit were set aside and the component variances estimated again from the other %s until the set settled, each set-aside sample being judged as a new one (Phase I practice; Sullivan & Woodall 1996).", countNoun(ph.Kept, "sample")))
+	}
+	if ct := l.Components; ct.Fitted() {
+		out = append(out, fmt.Sprintf("The components' tail weight was estimated from the retained scores (Student t by maximum likelihood; Lange et al. 1989) and from the variance of Q; as the tail was heavier than the Gaussian (ν = %s), each family-wise limit was taken as the larger of the normal-theory limit and the tail of a sum of Student t terms (Embrechts et al. 1997).", g4(ct.DF)))
+	}
+	if inf := res.Samples.Influence; inf.Angle != nil {
+		out = append(out, "Each sample's influence is the largest principal angle (Björck & Golub 1973) between the retained subspace and the one refitted without that sample, preprocessing included, computed exactly for every sample.")
+	}
+	return out
+}
+
+func adequacySentence(res *analysis.Result) string {
+	ad := res.Adequacy
 	var parts []string
-	for _, v := range d {
-		reason := v.Reason
-		if strings.HasPrefix(reason, "constant") {
-			reason = "constant"
-		} else if strings.HasPrefix(reason, "left out") {
-			reason = "by request"
+	switch {
+	case ad.Bartlett.Computed && ad.Bartlett.Singular:
+		parts = append(parts, "Bartlett's test of sphericity (Bartlett 1950, 1951; the correlation matrix is singular, some variables being exact combinations of others)")
+	case ad.Bartlett.Computed:
+		parts = append(parts, fmt.Sprintf("Bartlett's test of sphericity (Bartlett 1950, 1951; χ² = %s, df = %d, %s)", g4(ad.Bartlett.Chi2), ad.Bartlett.DF, pText(ad.Bartlett.P)))
+	}
+	if ad.KMO.Computed {
+		parts = append(parts, fmt.Sprintf("the Kaiser–Meyer–Olkin measure of sampling adequacy (Kaiser 1970; %.2f, %s in Kaiser's (1974) terms)", ad.KMO.Overall, analysis.KMOLabel(ad.KMO.Overall)))
+	}
+	parts = append(parts,
+		"the skewness of each variable (Joanes & Gill 1998; flagged beyond ±2, after West et al. 1995)",
+		"the separation of neighbouring eigenvalues (North et al. 1982)")
+	return fmt.Sprintf("Data adequacy was assessed with %s.", joinAnd(parts))
+}
+
+func stabilitySentences(res *analysis.Result) []string {
+	st := res.Stability
+	if st.Used == 0 {
+		if res.Options.Bootstrap <= 0 {
+			return []string{"Loading stability was not assessed: no bootstrap was run (--bootstrap 0)."}
 		}
-		parts = append(parts, v.Name+": "+reason)
+		return nil
 	}
-	if len(parts) > 8 {
-		return strings.Join(parts[:8], "; ") + fmt.Sprintf("; and %d more", len(parts)-8)
+	s := fmt.Sprintf("Loading stability was assessed with %d bootstrap resamples (Efron 1979) of the whole pipeline, each redoing the preprocessing", st.Used)
+	if res.Decomp.Rows < res.Decomp.Vars {
+		s += ", computed exactly in the n-dimensional row space (Fisher et al. 2016)"
 	}
-	return strings.Join(parts, "; ")
+	worst := 1.0
+	for _, cs := range st.Components {
+		worst = min(worst, cs.CongruenceP5)
+	}
+	return []string{s + ".",
+		fmt.Sprintf("Resample loadings were sign-aligned and, separately, Procrustes-rotated (Schönemann 1966) to the reference loadings and compared with them by Tucker's congruence coefficient (Tucker 1951); its 5th percentile was at least %.3f for every retained component, against the thresholds of Lorenzo-Seva & ten Berge (2006), 0.95 for equal and 0.85 for fair similarity.", worst)}
+}
+
+// countNoun writes a count with its noun, singular for one.
+func countNoun(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return strconv.Itoa(n) + " " + noun + "s"
 }
 
 func pText(p float64) string {

@@ -60,7 +60,7 @@ func WriteReport(dir string, audit Audit, meta Meta, opt ReportOptions, formats 
 		return nil
 	}
 	d := BuildDocument(audit, meta, opt)
-	md, err := RenderMarkdown(d)
+	md, err := renderCiting(func() ([]byte, error) { return RenderMarkdown(d) }, &d.References)
 	if err != nil {
 		return err
 	}
