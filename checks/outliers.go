@@ -101,7 +101,7 @@ func tailText(f analysis.TailFit, c analysis.ComponentTail, componentLimit, norm
 			g3(f.D1), g3(f.DF), analysis.TailFitCount))
 	}
 	if c.Fitted() && componentLimit > normal {
-		parts = append(parts, fmt.Sprintf("the components' scores have a heavier tail than the Gaussian (%s), and the tail of a sum of such terms gives %s",
+		parts = append(parts, fmt.Sprintf("the components' fitted tail weight (%s) gives, for a sum of such terms, %s",
 			componentTailText(c), g3(componentLimit)))
 	}
 	if len(parts) == 0 {

@@ -437,11 +437,9 @@ func outlierSentences(res *analysis.Result) []string {
 	if ph := l.T2Phase; len(ph.SetAside) > 0 {
 		out = append(out, fmt.Sprintf("Samples beyond the T² limit were set aside and the component variances estimated again from the other %s until the set settled, each set-aside sample being judged as a new one (Phase I practice; Sullivan & Woodall 1996).", countNoun(ph.Kept, "sample")))
 	}
-	// Only where the fitted tail actually raised a limit: a large ν̂ on
-	// Gaussian data is the Gaussian to within sampling error and changes
-	// nothing worth a sentence.
+	// Only where the fitted tail raised a limit.
 	if ct := l.Components; ct.Fitted() && (l.T2FamilyComponent > l.T2FamilyNormal || l.QFamilyComponent > l.QFamilyNormal) {
-		out = append(out, fmt.Sprintf("The components' tail weight was estimated from the retained scores (Student t by maximum likelihood; Lange et al. 1989) and from the variance of Q; as the tail was heavier than the Gaussian (ν = %s), each family-wise limit was taken as the larger of the normal-theory limit and the tail of a sum of Student t terms (Embrechts et al. 1997).", g4(ct.DF)))
+		out = append(out, fmt.Sprintf("The components' tail weight was estimated from the retained scores (Student t by maximum likelihood; Lange et al. 1989) and from the variance of Q (ν = %s), and each family-wise limit was taken as the larger of the normal-theory limit and the tail of a sum of Student t terms with that ν (Embrechts et al. 1997).", g4(ct.DF)))
 	}
 	if inf := res.Samples.Influence; inf.Angle != nil {
 		out = append(out, "Each sample's influence is the largest principal angle (Björck & Golub 1973) between the retained subspace and the one refitted without that sample, preprocessing included, computed exactly for every sample.")
