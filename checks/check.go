@@ -109,6 +109,10 @@ func finiteOrNil(v any) any {
 		if math.IsNaN(x) || math.IsInf(x, 0) {
 			return nil
 		}
+	case Probability:
+		if math.IsNaN(float64(x)) || math.IsInf(float64(x), 0) {
+			return nil
+		}
 	case map[string]float64:
 		clean := map[string]float64{}
 		for k, f := range x {

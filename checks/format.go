@@ -8,13 +8,32 @@ import (
 // sci formats a small measured quantity for messages.
 func sci(x float64) string { return fmt.Sprintf("%.2g", x) }
 
-// pvalue formats a p-value, with a floor below which double precision
-// cannot resolve it.
-func pvalue(p float64) string {
-	if p < 1e-16 {
-		return "p < 1e-16"
+// PFloor is the smallest p-value pcqc states. A p-value computed as
+// 1 − CDF cannot be resolved below double precision's machine epsilon
+// (2.2e-16), and upper-tail functions often return 0 there, so a smaller p
+// is written as "< 1e-16" rather than as a number, and never as 0.
+const PFloor = 1e-16
+
+// Probability marks a check's Value as a p-value, so that every rendering
+// writes it as the message does (FormatP) instead of as a plain number that
+// could round to 0. In summary.json it is the plain number.
+type Probability float64
+
+// FormatP writes a p-value without its "p": "< 1e-16" below PFloor, and
+// otherwise to two significant digits, the precision of the messages.
+func FormatP(p float64) string {
+	if p < PFloor {
+		return "< 1e-16"
 	}
-	return "p = " + sci(p)
+	return sci(p)
+}
+
+// pvalue formats a p-value for a message: "p < 1e-16" or "p = 0.54".
+func pvalue(p float64) string {
+	if p < PFloor {
+		return "p " + FormatP(p)
+	}
+	return "p = " + FormatP(p)
 }
 
 // g3 formats a quantity to three significant digits.

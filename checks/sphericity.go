@@ -11,7 +11,7 @@ var sphericity = Check{
 		if !b.Computed {
 			return Result{Status: Skip, Value: nil, Limit: SphericityAlpha, Message: "Not computed: " + b.SkipReason + "."}
 		}
-		r := Result{Value: b.P, Limit: fmt.Sprintf("p < %g", SphericityAlpha)}
+		r := Result{Value: Probability(b.P), Limit: fmt.Sprintf("p < %g", SphericityAlpha)}
 		if b.Singular {
 			r.Status = Pass
 			r.Message = "The correlation matrix is singular: some variables are exact linear combinations of others, which is as much shared structure as there can be (check whether a variable is a sum or copy of others)."

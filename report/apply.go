@@ -346,7 +346,7 @@ func verdictBlock(results []checks.Result) (VerdictBlock, []CheckRow) {
 		rows = append(rows, CheckRow{
 			ID: r.ID, Title: r.Title, Word: statusWord(r.Status), Symbol: r.Status.Symbol(),
 			Measured: formatMeasure(r.Value), Limit: formatMeasure(r.Limit),
-			Meaning: firstSentence(r.Message), Message: r.Message, Source: r.Source,
+			Meaning: firstSentence(r.Message), Message: r.Message, Source: r.Source, Brief: briefLimit(r.Limit),
 		})
 	}
 	v := VerdictBlock{

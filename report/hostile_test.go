@@ -159,38 +159,39 @@ func TestHostileNamesStayLiteral(t *testing.T) {
 
 	// report.md: exactly the template's sections.
 	md, _ := os.ReadFile(filepath.Join(dir, "report.md"))
-	want := []string{"1 " + title, "2 Verdict", "3 What each check found", "2 Data", "2 Components", "2 Loadings", "2 Scores",
-		"2 Outliers", "2 Stability", "2 Methods", "3 References", "2 Reproduce", "2 Cautions"}
+	want := []string{"1 " + title, "2 Verdict", "3 What the checks that did not pass found", "2 Data", "2 Components", "2 Loadings", "2 Scores",
+		"2 Outliers", "2 Stability", "2 Methods", "3 References", "2 Reproduce", "2 Cautions", "2 Appendix: every check", "3 What each check found"}
 	if got := headings(t, md); strings.Join(got, "\n") != strings.Join(want, "\n") {
 		t.Errorf("report.md headings:\n%s\nwant:\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
 	}
 	applyMD, _ := os.ReadFile(filepath.Join(applyDir, "report.md"))
-	wantApply := []string{"1 " + title, "2 Verdict", "3 What each check found", "2 Data", "2 New samples", "2 Drift",
-		"2 Contributions", "2 Methods", "3 References", "2 Reproduce", "2 Cautions"}
+	wantApply := []string{"1 " + title, "2 Verdict", "3 What the checks that did not pass found", "2 Data", "2 New samples", "2 Drift",
+		"2 Contributions", "2 Methods", "3 References", "2 Reproduce", "2 Cautions", "2 Appendix: every check", "3 What each check found"}
 	if got := headings(t, applyMD); strings.Join(got, "\n") != strings.Join(wantApply, "\n") {
 		t.Errorf("apply report.md headings:\n%s\nwant:\n%s", strings.Join(got, "\n"), strings.Join(wantApply, "\n"))
 	}
 
-	// report.html: no script, link or extra block from user text, and the
-	// names as text.
+	// report.html: no script, link or extra block from user text (the
+	// one block quote is the verdict banner), and the names as text.
 	for _, c := range []struct {
 		dir      string
 		h2, pre  int
 		sections []string
-	}{{dir, 10, 1, want}, {applyDir, 8, 1, wantApply}} {
+	}{{dir, 11, 1, want}, {applyDir, 9, 1, wantApply}} {
 		elements, images, text := htmlReport(t, filepath.Join(c.dir, "report.html"))
-		for _, tag := range []string{"script", "a", "blockquote", "ol", "h4", "b", "iframe"} {
+		for _, tag := range []string{"script", "a", "ol", "h4", "b", "iframe", "img"} {
 			if elements[tag] > 0 {
 				t.Errorf("%s: report.html has %d <%s> elements", c.dir, elements[tag], tag)
 			}
 		}
+		if elements["blockquote"] != 1 {
+			t.Errorf("%s: report.html has %d <blockquote> elements; want the banner only", c.dir, elements["blockquote"])
+		}
 		if elements["h1"] != 1 || elements["h2"] != c.h2 || elements["pre"] != c.pre {
 			t.Errorf("%s: report.html has %d h1, %d h2, %d pre; want 1, %d, %d", c.dir, elements["h1"], elements["h2"], elements["pre"], c.h2, c.pre)
 		}
-		for _, src := range images {
-			if !strings.HasPrefix(src, "figures/") {
-				t.Errorf("report.html shows an image from user text: %q", src)
-			}
+		if len(images) > 0 {
+			t.Errorf("report.html shows images %q; its figures are inline SVG", images)
 		}
 		for _, s := range append(names, title) {
 			if !strings.Contains(text, literal(s)) {

@@ -155,6 +155,10 @@ func markdownTable(header []string, rows [][]string) string {
 	return b.String()
 }
 
+// statusCell is the status column of a check table: the mark and the
+// word joined by a no-break space, so that a narrow column never parts them.
+func statusCell(c CheckRow) string { return c.Symbol + "\u00a0" + c.Word }
+
 // RenderMarkdown fills the report template with the document.
 func RenderMarkdown(d *Document) ([]byte, error) { return renderTemplate("report.md.tmpl", d) }
 
@@ -170,7 +174,15 @@ func renderTemplate(name string, data any) ([]byte, error) {
 		"checkRows": func(cs []CheckRow) [][]string {
 			rows := make([][]string, len(cs))
 			for i, c := range cs {
-				rows[i] = []string{c.Symbol + " " + c.Word, c.Title, c.Measured, c.Limit, c.Meaning}
+				rows[i] = []string{statusCell(c), c.Title, c.Measured, c.Limit, c.Meaning}
+			}
+			return rows
+		},
+		"overview": overview,
+		"briefRows": func(cs []CheckRow) [][]string {
+			rows := make([][]string, len(cs))
+			for i, c := range cs {
+				rows[i] = []string{statusCell(c), c.Title, c.Measured, c.Brief, c.Meaning}
 			}
 			return rows
 		},
@@ -189,7 +201,8 @@ func renderTemplate(name string, data any) ([]byte, error) {
 			return fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
 		},
 	}
-	t, err := template.New(name).Funcs(funcs).ParseFS(templates.FS, name)
+	// checks.md.tmpl defines the parts every report shares.
+	t, err := template.New(name).Funcs(funcs).ParseFS(templates.FS, name, "checks.md.tmpl")
 	if err != nil {
 		return nil, err
 	}

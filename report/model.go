@@ -59,6 +59,77 @@ type CheckRow struct {
 	ID, Title, Word, Symbol  string
 	Measured, Limit, Meaning string
 	Message, Source          string
+	// Brief is the limit as page 1 shows it: the limit the check judges
+	// by, without the other numbers of a map of limits.
+	Brief string
+}
+
+// Overview is what the report shows first: a headline for the verdict
+// banner, the checks that did not pass (fail, then warn, then skip, each
+// group in report order) and the passing checks, for a compact list.
+type Overview struct {
+	Headline string // "! WARN: 2 of 20 checks call for attention"
+	Counts   string // "+ 18 pass · ! 2 warn · × 0 fail · – 0 not applicable"
+	// Attention are the checks that did not pass, most serious first.
+	Attention []CheckRow
+	Passed    []CheckRow
+}
+
+// overview arranges the check rows for the report's first page. Its
+// status comes from the verdict, which the rows' statuses determine.
+func overview(v VerdictBlock, rows []CheckRow) Overview {
+	var o Overview
+	count := map[string]int{}
+	for _, want := range []string{string(checks.Fail), string(checks.Warn), string(checks.Skip)} {
+		for _, r := range rows {
+			if r.Word == want {
+				o.Attention = append(o.Attention, r)
+			}
+		}
+	}
+	for _, r := range rows {
+		count[r.Word]++
+		if r.Word == string(checks.Pass) {
+			o.Passed = append(o.Passed, r)
+		}
+	}
+	n := len(rows)
+	fail, warn, skip := count[string(checks.Fail)], count[string(checks.Warn)], count[string(checks.Skip)]
+	checksOf := func(k int) string {
+		if k == 1 {
+			return "1 check"
+		}
+		return fmt.Sprintf("%d checks", k)
+	}
+	mark := v.Symbol + " " + v.Word + ": "
+	switch {
+	case fail > 0:
+		o.Headline = fmt.Sprintf("%s%d of %s failed", mark, fail, checksOf(n))
+		if warn > 0 {
+			o.Headline += fmt.Sprintf(", %d more warn", warn)
+		}
+	case warn > 0:
+		o.Headline = fmt.Sprintf("%s%d of %s call for attention", mark, warn, checksOf(n))
+		if warn == 1 {
+			o.Headline = fmt.Sprintf("%s1 of %s calls for attention", mark, checksOf(n))
+		}
+	case skip > 0:
+		o.Headline = fmt.Sprintf("%severy applicable check passed (%d of %d; %d not applicable)", mark, n-skip, n, skip)
+	default:
+		o.Headline = fmt.Sprintf("%sall %s passed", mark, checksOf(n))
+	}
+	o.Counts = fmt.Sprintf("%s %d pass · %s %d warn · %s %d fail · %s %d not applicable",
+		checks.Pass.Symbol(), count[string(checks.Pass)], checks.Warn.Symbol(), warn, checks.Fail.Symbol(), fail, checks.Skip.Symbol(), skip)
+	return o
+}
+
+// briefLimit is a check's limit as page 1 shows it: a map of limits by its
+// first entry (the limit the check judges by), anything else in full.
+func briefLimit(v any) string {
+	if m, ok := v.(map[string]float64); ok && len(m) > 0 {
+		return strings.SplitN(formatLimits(m), "; ", 2)[0]
+	}
+	return formatMeasure(v)
 }
 
 type DataBlock struct {
@@ -166,11 +237,14 @@ func g4(x float64) string {
 	return strconv.FormatFloat(x, 'g', 4, 64)
 }
 
-// formatMeasure renders a check's value or limit for the table.
+// formatMeasure renders a check's value or limit for the table. A
+// p-value reads as in the check's message ("< 1e-16", never 0).
 func formatMeasure(v any) string {
 	switch x := v.(type) {
 	case nil:
 		return "–"
+	case checks.Probability:
+		return checks.FormatP(float64(x))
 	case float64:
 		return g4(x)
 	case int:
@@ -178,22 +252,64 @@ func formatMeasure(v any) string {
 	case string:
 		return x
 	case map[string]float64:
-		keys := make([]string, 0, len(x))
-		for k := range x {
-			keys = append(keys, k)
-		}
-		slices.Sort(keys)
-		parts := make([]string, len(keys))
-		for i, k := range keys {
-			label := strings.ReplaceAll(strings.TrimPrefix(k, "limit_"), "_", " ")
-			if _, err := strconv.Atoi(label); err == nil {
-				label += " %" // limit_95 is the 95 % limit
-			}
-			parts[i] = label + ": " + g4(x[k])
-		}
-		return strings.Join(parts, ", ")
+		return formatLimits(x)
 	}
 	return fmt.Sprint(v)
+}
+
+// limitLabels names the numbers of a check's map of limits for the table,
+// in the order the table lists them: the limit the check judges by first.
+// Keys not listed here follow in alphabetical order, named after the key.
+var limitLabels = []struct{ key, label string }{
+	{"limit_family", "family-wise"},
+	{"family_confidence", "per-sample confidence"},
+	{"limit_family_component_tail", "family-wise from the components' tail"},
+	{"limit_95", "95 %"},
+	{"limit_99", "99 %"},
+	{"limit_count_95", "count test beyond"},
+	{"binomial_alpha", "count test α"},
+	{"tail_df", "tail ν"},
+	{"component_tail_df", "components' tail ν"},
+	{"phase1_kept", "Phase I kept"},
+	{"phase1_rounds", "Phase I rounds"},
+}
+
+// formatLimits writes a map of limits as "label: value" pairs. A
+// confidence near 1 is written 1 − ε, so that 0.99996 does not read as 1.
+func formatLimits(m map[string]float64) string {
+	rank := map[string]int{}
+	for i, l := range limitLabels {
+		rank[l.key] = i + 1
+	}
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	slices.SortFunc(keys, func(a, b string) int {
+		ra, rb := rank[a], rank[b]
+		switch {
+		case ra == 0 && rb == 0:
+			return strings.Compare(a, b)
+		case ra == 0:
+			return 1
+		case rb == 0:
+			return -1
+		}
+		return ra - rb
+	})
+	parts := make([]string, len(keys))
+	for i, k := range keys {
+		label := strings.ReplaceAll(strings.TrimPrefix(k, "limit_"), "_", " ")
+		if r := rank[k]; r > 0 {
+			label = limitLabels[r-1].label
+		}
+		value := g4(m[k])
+		if strings.HasSuffix(k, "confidence") && m[k] < 1 && m[k] > 0.99 {
+			value = "1 − " + g4(1-m[k])
+		}
+		parts[i] = label + ": " + value
+	}
+	return strings.Join(parts, "; ")
 }
 
 // firstSentence returns the message up to its first full stop followed by a

@@ -223,6 +223,8 @@ func (w *pdfWriter) block(n ast.Node) error {
 		w.code(n)
 	case *east.Table:
 		w.table(n)
+	case *ast.Blockquote:
+		return w.banner(n)
 	case *ast.ThematicBreak:
 		y := w.pdf.GetY() + 2
 		w.pdf.Line(pdfMargin, y, pdfMargin+w.contentW, y)
@@ -276,6 +278,72 @@ func (w *pdfWriter) heading(h *ast.Heading) {
 	}
 	w.size, w.lineH = pdfBodySize, pdfLine
 	w.setFont()
+}
+
+// bannerColours are the bars of the verdict banner by status (the HTML
+// page uses the same): the bar repeats what the mark and the word say.
+var bannerColours = map[string][3]int{
+	"pass": {0x2e, 0x7d, 0x4f},
+	"warn": {0xc9, 0x84, 0x3a},
+	"fail": {0x9c, 0x2f, 0x22},
+	"":     {43, 47, 54},
+}
+
+// banner draws a block quote, which the report uses for the verdict
+// banner only: framed, with a bar on the left in the status's colour, its
+// first paragraph (the headline) large and the rest at body size.
+func (w *pdfWriter) banner(q *ast.Blockquote) error {
+	const bar, pad, headline = 3.0, 3.0, 14.0
+	pdf := w.pdf
+	// The banner is never split: it is a few lines, and a split frame
+	// would read as two banners.
+	lines := 0
+	for c := q.FirstChild(); c != nil; c = c.NextSibling() {
+		lines += 1 + len(plainText(c, w.src))/110
+	}
+	w.ensure(headline*mmPerPt*1.35 + float64(lines)*w.lineH + 2*pad + 4)
+	left, _, right, _ := pdf.GetMargins()
+	x0, y0 := left, pdf.GetY()+1
+	pdf.SetLeftMargin(left + bar + pad)
+	pdf.SetRightMargin(right + pad)
+	pdf.SetXY(left+bar+pad, y0+pad)
+	for c := q.FirstChild(); c != nil; c = c.NextSibling() {
+		if c == q.FirstChild() {
+			w.size, w.lineH = headline, headline*mmPerPt*1.35
+			w.bold++
+		}
+		w.setFont()
+		switch c := c.(type) {
+		case *ast.Paragraph, *ast.TextBlock:
+			w.inlines(c)
+			pdf.Ln(w.lineH)
+		default:
+			if err := w.block(c); err != nil {
+				return err
+			}
+		}
+		if c == q.FirstChild() {
+			w.size, w.lineH = pdfBodySize, pdfLine
+			w.bold--
+			w.setFont()
+		}
+		if c.NextSibling() != nil {
+			pdf.Ln(1.2)
+		}
+	}
+	y1 := pdf.GetY() + pad - 1
+	pdf.SetLeftMargin(left)
+	pdf.SetRightMargin(right)
+	rgb := bannerColours[bannerStatus(q, w.src)]
+	pdf.SetDrawColor(43, 47, 54)
+	pdf.SetLineWidth(0.3)
+	pdf.Rect(x0, y0, w.contentW, y1-y0, "D")
+	pdf.SetFillColor(rgb[0], rgb[1], rgb[2])
+	pdf.Rect(x0, y0, bar, y1-y0, "F")
+	pdf.SetDrawColor(0, 0, 0)
+	pdf.SetLineWidth(0.2)
+	pdf.SetXY(left, y1+5)
+	return nil
 }
 
 func (w *pdfWriter) paragraph(n ast.Node, indent float64) {

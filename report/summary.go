@@ -348,6 +348,8 @@ func jsonValue(v any) any {
 	switch x := v.(type) {
 	case float64:
 		return Number(x)
+	case checks.Probability:
+		return Number(x)
 	case float32:
 		return Number(x)
 	case []float64:

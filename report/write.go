@@ -83,7 +83,7 @@ func writeRenderings(dir string, md []byte, figures []figureJob, page Page, form
 		}
 	}
 	doc := parseMarkdown(md)
-	// The PDF first: the HTML rendering points the image nodes at SVG.
+	// The PDF first: the HTML rendering marks the banner's node with its class.
 	if formats.PDF {
 		pdf, err := RenderPDF(md, doc, page, dir)
 		if err != nil {
@@ -94,7 +94,7 @@ func writeRenderings(dir string, md []byte, figures []figureJob, page Page, form
 		}
 	}
 	if formats.HTML {
-		html, err := RenderHTML(md, doc, page)
+		html, err := RenderHTML(md, doc, page, dir)
 		if err != nil {
 			return err
 		}

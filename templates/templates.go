@@ -6,7 +6,8 @@ package templates
 import "embed"
 
 // FS holds report.md.tmpl (an audit), apply.md.tmpl (new samples against a
-// saved model) and page.html.tmpl.
+// saved model), checks.md.tmpl (the verdict banner, the Verdict section and
+// the appendix of checks, which both place) and page.html.tmpl.
 //
-//go:embed report.md.tmpl apply.md.tmpl page.html.tmpl
+//go:embed report.md.tmpl apply.md.tmpl checks.md.tmpl page.html.tmpl
 var FS embed.FS
