@@ -1,13 +1,17 @@
 package analysis_test
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 
 	. "pcqc/analysis"
 	"pcqc/internal/fixture"
@@ -234,5 +238,79 @@ func TestLooseTableEncoding(t *testing.T) {
 	lt := loose(t, "bom", "\xef\xbb\xbfvariable,PC1\nx,0.5\n")
 	if lt.Header[0] != "variable" {
 		t.Errorf("byte order mark kept: header %q", lt.Header)
+	}
+}
+
+// Principal angles come from their sines below 45°, so that an exact match
+// reads 0° and angles of 1e-12 to 1e-8 rad, which an arccosine rounds to 0
+// or to 1e-6° of noise, are measured. Reference: scipy 1.10.1
+// scipy.linalg.subspace_angles on the same bases (testdata/review/angles.py).
+func TestPrincipalAnglesFromSines(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "testdata", "review", "angles.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		Cases []struct {
+			Name       string
+			A, B       [][]float64
+			PlantedRad []float64 `json:"planted_rad"`
+			ScipyDeg   []float64 `json:"scipy_deg"`
+		}
+	}
+	if err := json.Unmarshal(raw, &ref); err != nil {
+		t.Fatal(err)
+	}
+	dense := func(rows [][]float64) *mat.Dense {
+		m := mat.NewDense(len(rows), len(rows[0]), nil)
+		for i, r := range rows {
+			m.SetRow(i, r)
+		}
+		return m
+	}
+	if len(ref.Cases) != 4 {
+		t.Fatalf("%d reference cases", len(ref.Cases))
+	}
+	for _, c := range ref.Cases {
+		got := PrincipalAngles(dense(c.A), dense(c.B))
+		if len(got) != len(c.ScipyDeg) {
+			t.Fatalf("%s: %d angles, scipy %d", c.Name, len(got), len(c.ScipyDeg))
+		}
+		for i, want := range c.ScipyDeg {
+			switch {
+			case c.PlantedRad != nil && c.PlantedRad[i] == 0:
+				// scipy leaves 1e-14° of rounding; an exact match is 0.
+				if got[i] != 0 || want > 1e-12 {
+					t.Errorf("%s: angle %d is %g°, scipy %g°, want 0", c.Name, i, got[i], want)
+				}
+			case want < 1:
+				// Tiny angles agree with scipy to 1e-6 relative, or to
+				// 1e-13° (2e-15 rad, ten units of rounding of the bases)
+				// below 1e-9 rad, where that rounding is the larger.
+				if math.Abs(got[i]-want) > 1e-6*want+1e-13 {
+					t.Errorf("%s: angle %d is %.10g°, scipy %.10g°", c.Name, i, got[i], want)
+				}
+			default:
+				if math.Abs(got[i]-want) > 1e-9 {
+					t.Errorf("%s: angle %d is %.12g°, scipy %.12g°", c.Name, i, got[i], want)
+				}
+			}
+		}
+		// The same subspace given with its bases swapped has the same angles.
+		back := PrincipalAngles(dense(c.B), dense(c.A))
+		for i := range got {
+			if math.Abs(back[i]-got[i]) > 1e-6*got[i]+1e-12 {
+				t.Errorf("%s: angle %d is %g° one way, %g° the other", c.Name, i, got[i], back[i])
+			}
+		}
+	}
+	// Bases of different sizes: a plane inside a 3-dimensional space meets
+	// it at 0° twice, whichever is given first.
+	a := mat.NewDense(4, 3, []float64{1, 0, 0, 0, 1, 0, 0, 0, 1, 0, 0, 0})
+	b := mat.NewDense(4, 2, []float64{0.6, 0, 0.8, 0, 0, 1, 0, 0})
+	for _, got := range [][]float64{PrincipalAngles(a, b), PrincipalAngles(b, a)} {
+		if len(got) != 2 || got[0] != 0 || got[1] != 0 {
+			t.Errorf("plane in a 3-space: %v", got)
+		}
 	}
 }
