@@ -53,11 +53,12 @@ type Review struct {
 	Loadings *TheirLoadings
 	Scores   *TheirScores // nil when not given
 
-	VarianceValues  []float64 // as stated, nil when not given
-	VarianceHint    string    // the header of the column they came from
-	VarianceKind    VarianceKind
-	VariancePercent []float64 // theirs, as percentages of the total variance
-	VarianceDiff    []float64 // theirs − recomputed, percentage points
+	Variance        *TheirVariance  // nil when not given
+	VarianceValues  []float64       // as stated, nil when not given
+	VarianceKind    VarianceKind    // what the values were read as
+	VarianceReading VarianceReading // how and why
+	VariancePercent []float64       // theirs, as percentages of the total variance
+	VarianceDiff    []float64       // theirs − recomputed, percentage points
 
 	ClaimedScale  Scaling // "" when not claimed
 	Variants      []Variant
@@ -99,8 +100,11 @@ var reviewVariants = func() []Variant {
 // CompareReview recomputes the analysis of the table under every plausible
 // preprocessing and measures how another person's tables relate to it. The
 // table must hold exactly the variables their loadings cover, in data order.
-func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []float64, hint string, claimed Scaling) (*Review, error) {
-	r := &Review{Loadings: l, Scores: s, VarianceValues: varianceValues, VarianceHint: hint, ClaimedScale: claimed}
+func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVariance, claimed Scaling) (*Review, error) {
+	r := &Review{Loadings: l, Scores: s, Variance: variance, ClaimedScale: claimed}
+	if variance != nil {
+		r.VarianceValues = variance.Values
+	}
 	_, k := l.V.Dims()
 	theirBasis := orthonormalBasis(l.V)
 	for _, v := range reviewVariants {
@@ -201,8 +205,9 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []
 		}
 	}
 
-	if varianceValues != nil {
-		r.VarianceKind, r.VariancePercent = DetectVarianceKind(varianceValues, best.Eigenvalues)
+	if variance != nil {
+		r.VarianceReading = variance.Read(best.Eigenvalues)
+		r.VarianceKind, r.VariancePercent = r.VarianceReading.Kind, r.VarianceReading.Percent
 		total := 0.0
 		for _, e := range best.Eigenvalues {
 			total += e

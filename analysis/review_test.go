@@ -58,14 +58,13 @@ func review(t *testing.T, tab *Table, loadings, scores, variance string, claimed
 			t.Fatal(err)
 		}
 	}
-	var vals []float64
-	var hint string
+	var v *TheirVariance
 	if variance != "" {
-		if vals, hint, err = ParseVarianceValues(loose(t, "variance.csv", variance)); err != nil {
+		if v, err = ParseVariance(loose(t, "variance.csv", variance)); err != nil {
 			t.Fatal(err)
 		}
 	}
-	r, err := CompareReview(sub, l, s, vals, hint, claimed)
+	r, err := CompareReview(sub, l, s, v, claimed)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -311,6 +310,104 @@ func TestPrincipalAnglesFromSines(t *testing.T) {
 	for _, got := range [][]float64{PrincipalAngles(a, b), PrincipalAngles(b, a)} {
 		if len(got) != 2 || got[0] != 0 || got[1] != 0 {
 			t.Errorf("plane in a 3-space: %v", got)
+		}
+	}
+}
+
+// The variance files people send, written by R 4.2.2, scikit-learn 1.2.1,
+// numpy 1.24.2 and pandas 1.5.3 themselves (testdata/review/generate.R and
+// generate.py), are each read as what they hold, from the right column or
+// row, and agree with the recomputed analysis; the file's shape decides
+// where the values are, its header or content what they are.
+func TestReviewReadsVarianceFileShapes(t *testing.T) {
+	dir := filepath.Join("..", "testdata", "review")
+	wine, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		file, loadings string
+		tab            *Table
+		kind           VarianceKind
+		from, why      string
+		ambiguous      bool
+		points         float64 // the largest difference allowed by the printed rounding
+	}{
+		// R write.csv(pca$sdev): the row names 1..4 are an index, "x" says
+		// nothing, and only standard deviations fit.
+		{"r-sdev.csv", "r-loadings.csv", usarrests(t), VarianceSD, `column "x"`, `the label "x" does not say`, false, 1e-9},
+		// R summary(pca)$importance: rows named by what they hold.
+		{"r-importance.csv", "r-loadings.csv", usarrests(t), VarianceProportions, `row "Proportion of Variance"`, "says so", false, 1e-3},
+		// pandas Series of explained_variance_ratio_: header ",0", index 0..12.
+		{"pandas-ratio-series.csv", "sklearn-wine-loadings.csv", wine, VarianceProportions, `column "0"`, "they sum to 1", false, 1e-9},
+		// pandas Series of explained_variance_: eigenvalues, not a share.
+		{"pandas-variance-series.csv", "sklearn-wine-loadings.csv", wine, VarianceEigenvalues, `column "0"`, "does not say", false, 1e-9},
+		// pandas DataFrame: index column, named columns, a cumulative one.
+		{"pandas-variance-frame.csv", "sklearn-wine-loadings.csv", wine, VarianceProportions, `column "explained_variance_ratio"`, "says so", false, 1e-9},
+		// pandas with the component names as index, a column "sd".
+		{"pandas-sd-named-index.csv", "sklearn-wine-loadings.csv", wine, VarianceSD, `column "sd"`, "says so", false, 1e-9},
+		// numpy savetxt: a bare column, no header.
+		{"numpy-explained-variance.txt", "sklearn-wine-loadings.csv", wine, VarianceEigenvalues, "the one column", "no header says", false, 1e-9},
+		{"numpy-explained-variance-ratio.txt", "sklearn-wine-loadings.csv", wine, VarianceProportions, "the one column", "they sum to 1", false, 1e-9},
+		// numpy savetxt with a header, written as "# name".
+		{"numpy-ratio-header.txt", "sklearn-wine-loadings.csv", wine, VarianceProportions, `column "explained_variance_ratio"`, "says so", false, 1e-9},
+		// A bare column of percentages to two decimals: they sum to 100.
+		{"numpy-percent-2dp.txt", "sklearn-wine-loadings.csv", wine, VariancePercentages, "the one column", "they sum to 100", false, 0.005},
+	}
+	for _, c := range cases {
+		read := func(name string) string {
+			b, err := os.ReadFile(filepath.Join(dir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			return string(b)
+		}
+		r := review(t, c.tab, read(c.loadings), "", read(c.file), "")
+		got := r.VarianceReading
+		if got.Kind != c.kind || !strings.Contains(r.Variance.From, c.from) || !strings.Contains(got.Why, c.why) || got.Ambiguous != c.ambiguous {
+			t.Errorf("%s: read %s from %s (ambiguous %v): %s", c.file, got.Kind, r.Variance.From, got.Ambiguous, got.Why)
+		}
+		if m := maxAbs(r.VarianceDiff); m > c.points || len(r.VarianceDiff) < 2 {
+			t.Errorf("%s: %d values, largest difference %.3g points", c.file, len(r.VarianceDiff), m)
+		}
+	}
+}
+
+// When neither header nor content tells and two readings fit, the reading
+// is called ambiguous and says which was taken and why; values that fit no
+// reading are not called ambiguous. Eigenvalues near 1 (a near-spherical
+// table) are equally standard deviations; the values are invented.
+func TestVarianceReadingAmbiguity(t *testing.T) {
+	eig := []float64{1.02, 1.0, 0.99, 0.99} // sums to 4
+	cases := []struct {
+		text      string
+		kind      VarianceKind
+		ambiguous bool
+		why       string
+	}{
+		{"v\n1.02\n1.00\n0.99\n0.99\n", VarianceEigenvalues, true, "more than one reading fits"},
+		{"v\n1.02\n1.00\n", VarianceEigenvalues, true, "more than one reading fits"},
+		{"sdev\n1.02\n1.00\n", VarianceSD, false, "says so"},
+		// The first two of four proportions: below 1, so not "sum to 1";
+		// only the proportions reading fits.
+		{"v\n0.255\n0.25\n", VarianceProportions, false, "only this one agrees"},
+		// 0.255 + 0.25 + … = 1: fractions, whatever else might fit.
+		{"v\n0.255\n0.25\n0.2475\n0.2475\n", VarianceProportions, false, "they sum to 1"},
+		// A label contradicted by the content: "proportion" above 1.
+		{"proportion\n25.5\n25\n24.75\n24.75\n", VariancePercentages, false, `the label "proportion" says proportions of the total variance, but a value of 25.5 exceeds 1`},
+		// A label the values do not fit, while another reading does.
+		{"variance\n1.0100\n1.0000\n", VarianceEigenvalues, false, "says so"},
+		{"eigenvalue\n1.0404\n1.0000\n0.9801\n0.9801\n", VarianceEigenvalues, false, "says so"},
+		{"eigenvalue\n0.255\n0.25\n0.2475\n0.2475\n", VarianceEigenvalues, false, "as proportions of the total variance they would agree"},
+	}
+	for _, c := range cases {
+		v, err := ParseVariance(loose(t, "v.csv", c.text))
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := v.Read(eig)
+		if r.Kind != c.kind || r.Ambiguous != c.ambiguous || !strings.Contains(r.Why, c.why) {
+			t.Errorf("%q: %s, ambiguous %v: %s", c.text, r.Kind, r.Ambiguous, r.Why)
 		}
 	}
 }

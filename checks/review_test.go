@@ -57,14 +57,13 @@ func reviewChecks(t *testing.T, tab *analysis.Table, loadings, scores, variance 
 			t.Fatal(err)
 		}
 	}
-	var vals []float64
-	var hint string
+	var v *analysis.TheirVariance
 	if variance != "" {
-		if vals, hint, err = analysis.ParseVarianceValues(looseTable(t, variance)); err != nil {
+		if v, err = analysis.ParseVariance(looseTable(t, variance)); err != nil {
 			t.Fatal(err)
 		}
 	}
-	rv, err := analysis.CompareReview(sub, l, s, vals, hint, claimed)
+	rv, err := analysis.CompareReview(sub, l, s, v, claimed)
 	if err != nil {
 		t.Fatal(err)
 	}

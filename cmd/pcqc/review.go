@@ -66,6 +66,14 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-review"
 	}
+	if !f.set["components"] {
+		// Review keeps their number of components unless told otherwise;
+		// it is known once their loadings are read (below). Until then a
+		// fixed rule stands in, so that validation does not hold review to
+		// parallel analysis, the default of run, and refuse
+		// --permutations 0.
+		f.components = analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}.String()
+	}
 	reads := []string{data, loadingsPath, scoresPath, variancePath}
 	read, err := f.validate(reads...)
 	if err != nil {
@@ -95,18 +103,17 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 			return 0, err
 		}
 	}
-	var values []float64
-	var hint string
+	var variance *analysis.TheirVariance
 	if variancePath != "" {
 		vt, err := analysis.ReadLooseTable(variancePath, read.Encoding)
 		if err != nil {
 			return 0, err
 		}
-		if values, hint, err = analysis.ParseVarianceValues(vt); err != nil {
+		if variance, err = analysis.ParseVariance(vt); err != nil {
 			return 0, err
 		}
 	}
-	rv, err := analysis.CompareReview(t, loadings, scores, values, hint, claimedScale)
+	rv, err := analysis.CompareReview(t, loadings, scores, variance, claimedScale)
 	if err != nil {
 		return 0, err
 	}

@@ -48,6 +48,8 @@ type reviewSummary struct {
 		LoadingsLayout  string           `json:"loadings_layout"`
 		ScoresMatchedBy string           `json:"scores_matched_by"`
 		VarianceKind    string           `json:"variance_kind"`
+		VarianceFrom    string           `json:"variance_from"`
+		VarianceReading string           `json:"variance_reading"`
 	} `json:"review"`
 }
 
@@ -153,6 +155,35 @@ func TestReviewCommandRejectsMismatchedTables(t *testing.T) {
 		}
 		if _, err := os.Stat(out); !os.IsNotExist(err) {
 			t.Errorf("%v: output folder created", c.args)
+		}
+	}
+}
+
+// R's write.csv(pca$sdev) — a "" column of row names 1..4, then "x" — was
+// read from its row names and failed a correct PCA. End to end with R's own
+// files (testdata/review/generate.R, R 4.2.2): every review check passes and
+// the reading is stated in summary.json.
+func TestReviewCommandReadsRFiles(t *testing.T) {
+	dir := t.TempDir()
+	fixture := func(name string) string { return filepath.Join("..", "..", "testdata", "review", name) }
+	for _, c := range []struct{ variance, kind, from string }{
+		{"r-sdev.csv", "standard deviations", `column "x"`},
+		{"r-importance.csv", "proportions of the total variance", `row "Proportion of Variance"`},
+	} {
+		out := filepath.Join(dir, c.variance)
+		status, _, stderr := runPCQC(t, "review", usarrestsPath, "--loadings", fixture("r-loadings.csv"), "--scores", fixture("r-scores.csv"),
+			"--variance", fixture(c.variance), "--out", out, "--bootstrap", "0", "--permutations", "0", "--format", "none")
+		if status != exitOK && status != exitChecks {
+			t.Fatalf("%s: status %d %s", c.variance, status, stderr)
+		}
+		s := readSummaryFile[reviewSummary](t, out)
+		if s.Review.VarianceKind != c.kind || !strings.Contains(s.Review.VarianceFrom, c.from) || s.Review.VarianceReading == "" {
+			t.Errorf("%s: read %q from %q: %q", c.variance, s.Review.VarianceKind, s.Review.VarianceFrom, s.Review.VarianceReading)
+		}
+		for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+			if st := s.status(id); st != "pass" {
+				t.Errorf("%s: %s is %s", c.variance, id, st)
+			}
 		}
 	}
 }
