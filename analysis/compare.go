@@ -79,6 +79,13 @@ type Review struct {
 	ScoreCorrelation float64   // largest off-diagonal |r| among their scores
 	ScoreMeanShift   float64   // largest |mean(t_a)| / sd(t_a)
 	ScoreBest        int       // the variant whose data best reproduce their scores
+	// ScoreColumnOf is set when their score columns follow from their
+	// loadings only in another order: score column a holds the
+	// projections on loadings column ScoreColumnOf[a]. PermutedResiduals
+	// are the residuals so matched. Both nil when the columns are in the
+	// loadings' order, or no other order fits better.
+	ScoreColumnOf     []int
+	PermutedResiduals []float64
 
 	// ComponentVariance is the variance each of their components carries,
 	// from the source named in OrderSource, for the order check.
@@ -189,6 +196,7 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVa
 
 	if s != nil {
 		_, r.ScoreResiduals, r.ScoreFactors = scoreFit(best.z, l.V, s.T)
+		r.ScoreColumnOf, r.PermutedResiduals = scorePermutation(best.z, l.V, s.T, r.ScoreResiduals)
 		r.ScoreCorrelation = MaxOffDiagonalCorrelation(s.T, nil)
 		_, ks := s.T.Dims()
 		for a := 0; a < ks; a++ {
@@ -364,6 +372,57 @@ func scoreFit(z, v, t *mat.Dense) (float64, []float64, []float64) {
 		worst = math.Max(worst, res[a])
 	}
 	return worst, res, fac
+}
+
+// scorePermutation looks for the order of their loadings columns that their
+// score columns follow: each score column is fitted against every loadings
+// column, and matched to the one that leaves the smallest residual. It
+// returns that matching when it is one-to-one, differs from the columns'
+// own order and improves the fit of every column it moves; nil otherwise.
+func scorePermutation(z, v, t *mat.Dense, own []float64) ([]int, []float64) {
+	n, ks := t.Dims()
+	_, k := v.Dims()
+	if ks < 2 {
+		return nil, nil
+	}
+	cols := make([]int, ks)
+	res := make([]float64, ks)
+	used := make([]bool, k)
+	moved := false
+	for a := 0; a < ks; a++ {
+		ta := mat.DenseCopyOf(t.Slice(0, n, a, a+1))
+		cols[a], res[a] = a, own[a]
+		for b := 0; b < k; b++ {
+			vb := mat.DenseCopyOf(v.Slice(0, v.RawMatrix().Rows, b, b+1))
+			if _, rb, _ := scoreFit(z, vb, ta); rb[0] < res[a] {
+				cols[a], res[a] = b, rb[0]
+			}
+		}
+		if used[cols[a]] {
+			return nil, nil
+		}
+		used[cols[a]] = true
+		moved = moved || cols[a] != a
+	}
+	if !moved {
+		return nil, nil
+	}
+	return cols, res
+}
+
+// ScoreColumnsNamedAlike reports whether, under ScoreColumnOf, every score
+// column bears the name of the loadings column it follows (folded as
+// variable names are): then the columns were only listed in another order.
+func (r *Review) ScoreColumnsNamedAlike() bool {
+	if r.ScoreColumnOf == nil {
+		return false
+	}
+	for a, b := range r.ScoreColumnOf {
+		if nameKey(r.Scores.Columns[a]) != nameKey(r.Loadings.Components[b]) {
+			return false
+		}
+	}
+	return true
 }
 
 // scaledBySD reports whether loadings with the given column norms are

@@ -258,6 +258,9 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 	var cells []string
 	if idCol >= 0 {
 		s.MatchedBy = fmt.Sprintf("by sample id (column %q)", t.Header[idCol])
+		if t.Header[idCol] == "" {
+			s.MatchedBy = "by sample id (the row names, in a column without a header)"
+		}
 		filled := make([]bool, n)
 		var unknown []string
 		for i, r := range t.Rows {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -238,5 +239,57 @@ func TestReviewOrthonormalityOfDegenerateLoadings(t *testing.T) {
 		if c.want == Fail && strings.Contains(r["review-order"].Message, "PC2 is the recomputed PC1") {
 			t.Errorf("%s: a zero column is matched to our PC1: %s", c.name, r["review-order"].Message)
 		}
+	}
+}
+
+// Score columns permuted against the loadings under the loadings' names are
+// diagnosed as permuted (warn), not as scores from other data; columns only
+// listed in another order under their own names pass; correct columns stay
+// a pass. The files are R 4.2.2's own (testdata/review/generate.R).
+func TestReviewScoreColumnsPermuted(t *testing.T) {
+	tab := usarrestsTable(t)
+	read := func(name string) string {
+		b, err := os.ReadFile(filepath.Join("..", "testdata", "review", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	cases := []struct {
+		loadings, scores string
+		want             Status
+		message          []string
+	}{
+		{"r-loadings-3.csv", "r-scores-permuted.csv", Warn, []string{
+			`score column "PC1" holds the scores on "PC2"`, `"PC2" holds the scores on "PC3"`, `"PC3" holds the scores on "PC1"`, "permuted against the loadings"}},
+		{"r-loadings.csv", "r-scores-reordered.csv", Pass, []string{`only listed in another order, "PC2", "PC1"`}},
+		{"r-loadings.csv", "r-scores.csv", Pass, []string{"equal the centred, unit variance data projected"}},
+	}
+	for _, c := range cases {
+		r := reviewChecks(t, tab, read(c.loadings), read(c.scores), "", "")["review-scores"]
+		if r.Status != c.want {
+			t.Errorf("%s: %s: %s", c.scores, r.Status, r.Message)
+		}
+		for _, m := range c.message {
+			if !strings.Contains(r.Message, m) {
+				t.Errorf("%s: message lacks %q: %s", c.scores, m, r.Message)
+			}
+		}
+	}
+	// Two columns swapped in a fixture of another person's tables (no
+	// names to go by): a warning naming both.
+	o := other(t, tab, true, analysis.ScaleUnit, 3)
+	scores := o.ScoresCSV(true, fixture.Identity(50))
+	lines := strings.Split(strings.TrimSpace(scores), "\n")
+	for i, line := range lines {
+		f := strings.Split(line, ",")
+		if i > 0 {
+			f[1], f[2] = f[2], f[1]
+		}
+		lines[i] = strings.Join(f, ",")
+	}
+	r := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), strings.Join(lines, "\n")+"\n", "", "")["review-scores"]
+	if r.Status != Warn || !strings.Contains(r.Message, "permuted") {
+		t.Errorf("swapped fixture columns: %s %s", r.Status, r.Message)
 	}
 }
