@@ -87,6 +87,13 @@ type Review struct {
 	ScoreColumnOf     []int
 	PermutedResiduals []float64
 
+	// Variables are the data variables their loadings cover, and
+	// PreprocessedVariance the variance of each as it entered the best
+	// variant's decomposition (after its centring and scaling): what
+	// decides how much each variable weighs in their components.
+	Variables            []string
+	PreprocessedVariance []float64
+
 	// ComponentVariance is the variance each of their components carries,
 	// from the source named in OrderSource, for the order check.
 	ComponentVariance []float64
@@ -155,6 +162,14 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVa
 	r.BestCentred = pick(func(v Variant) bool { return v.Centered })
 	r.BestUncentred = pick(func(v Variant) bool { return !v.Centered })
 	best := r.Variants[r.Best]
+	_, p0 := best.z.Dims()
+
+	r.Variables = t.Variables
+	r.PreprocessedVariance = make([]float64, p0)
+	for j := range r.PreprocessedVariance {
+		_, sd := meanSD(best.z, j)
+		r.PreprocessedVariance[j] = sd * sd
+	}
 
 	// Their loadings as given.
 	r.Orthonormality = OrthonormalityError(l.V)

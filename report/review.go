@@ -38,11 +38,15 @@ type VariantInfo struct {
 
 // reviewFindings are the first sentences of the review checks, each written
 // to be pasted into a referee report, prefixed by the status.
+// Failures come first, then warnings, then passes, each group in the
+// checks' order, so that what needs saying is read first.
 func reviewFindings(results []checks.Result) []string {
 	var out []string
-	for _, r := range results {
-		if strings.HasPrefix(r.ID, "review-") && r.Status != checks.Skip {
-			out = append(out, fmt.Sprintf("%s %s: %s", r.Status.Symbol(), r.Status, firstSentence(r.Message)))
+	for _, level := range []checks.Status{checks.Fail, checks.Warn, checks.Pass} {
+		for _, r := range results {
+			if strings.HasPrefix(r.ID, "review-") && r.Status == level {
+				out = append(out, fmt.Sprintf("%s %s: %s", r.Status.Symbol(), r.Status, firstSentence(r.Message)))
+			}
 		}
 	}
 	return out

@@ -89,7 +89,7 @@ func TestReviewCommandReadsTheirTables(t *testing.T) {
 		if !s.Review.BestVariant.Centered || s.Review.BestVariant.Scale != "unit" || len(s.Review.Variants) != 8 {
 			t.Errorf("%s: best variant %+v, %d variants", c.name, s.Review.BestVariant, len(s.Review.Variants))
 		}
-		for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+		for _, id := range []string{"review-centering", "review-scaling", "review-preprocessing", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
 			if st := s.status(id); st != "pass" {
 				t.Errorf("%s: %s is %s", c.name, id, st)
 			}
@@ -180,10 +180,57 @@ func TestReviewCommandReadsRFiles(t *testing.T) {
 		if s.Review.VarianceKind != c.kind || !strings.Contains(s.Review.VarianceFrom, c.from) || s.Review.VarianceReading == "" {
 			t.Errorf("%s: read %q from %q: %q", c.variance, s.Review.VarianceKind, s.Review.VarianceFrom, s.Review.VarianceReading)
 		}
-		for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+		for _, id := range []string{"review-centering", "review-scaling", "review-preprocessing", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
 			if st := s.status(id); st != "pass" {
 				t.Errorf("%s: %s is %s", c.variance, id, st)
 			}
 		}
+	}
+}
+
+// scikit-learn's default PCA of wine (centred, unscaled; files written by
+// scikit-learn 1.2.1 and numpy 1.24.2, testdata/review/generate.py) is
+// computed correctly, and every check of its computation passes; but
+// proline's variance is 6.4 million times nonflavanoid_phenols's (numpy
+// 1.24.2 on testdata/datasets/wine.csv) and PC1 holds 99.8 % of the
+// variance (sklearn's explained_variance_ratio_[0] = 0.9981), which the
+// review's findings must say, first, not only the audit's table.
+func TestReviewCommandUnscaledWine(t *testing.T) {
+	fixture := func(name string) string { return filepath.Join("..", "..", "testdata", "review", name) }
+	out := filepath.Join(t.TempDir(), "wine")
+	status, _, stderr := runPCQC(t, "review", filepath.Join("..", "..", "testdata", "datasets", "wine.csv"), "--group", "cultivar",
+		"--loadings", fixture("sklearn-wine-loadings.csv"), "--scores", fixture("sklearn-wine-scores.csv"),
+		"--variance", fixture("numpy-explained-variance-ratio.txt"), "--out", out, "--bootstrap", "0", "--permutations", "0", "--format", "md")
+	if status != exitOK {
+		t.Fatalf("status %d %s", status, stderr)
+	}
+	s := readSummaryFile[reviewSummary](t, out)
+	if s.Verdict != "warn" || s.Review.BestVariant.Scale != "none" || !s.Review.BestVariant.Centered {
+		t.Errorf("verdict %s, best variant %+v", s.Verdict, s.Review.BestVariant)
+	}
+	for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+		if st := s.status(id); st != "pass" {
+			t.Errorf("%s is %s", id, st)
+		}
+	}
+	if st := s.status("review-preprocessing"); st != "warn" {
+		t.Errorf("review-preprocessing is %s", st)
+	}
+	if len(s.Review.Findings) == 0 {
+		t.Fatal("no findings")
+	}
+	first := s.Review.Findings[0]
+	for _, want := range []string{"! warn", "computed correctly", "proline's variance is 6.4 million times nonflavanoid_phenols's", "PC1 holds 99.8 %", "almost entirely proline"} {
+		if !strings.Contains(first, want) {
+			t.Errorf("first finding lacks %q: %s", want, first)
+		}
+	}
+	md, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	findings := string(md)[strings.Index(string(md), "## Review findings"):strings.Index(string(md), "How their tables were read")]
+	if !strings.Contains(findings, "PC1 holds 99.8 %") {
+		t.Errorf("the report's review findings do not say it:\n%s", findings)
 	}
 }
