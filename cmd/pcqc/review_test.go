@@ -234,3 +234,33 @@ func TestReviewCommandUnscaledWine(t *testing.T) {
 		t.Errorf("the report's review findings do not say it:\n%s", findings)
 	}
 }
+
+// help review states review's own defaults, not run's: the best-matching
+// scaling, their number of components, the -review folder; and --scale,
+// --components, --permutations and --out each appear once.
+func TestHelpReviewStatesItsDefaults(t *testing.T) {
+	status, stdout, stderr := runPCQC(t, "help", "review")
+	if status != exitOK {
+		t.Fatalf("status %d %s", status, stderr)
+	}
+	for _, want := range []string{
+		"(default: the scaling\n                      their loadings match best",
+		"(default: their number of components",
+		"0 turns it off, which review's default rule never",
+		"output folder (default <DATA name>-review)",
+	} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("help review lacks %q", want)
+		}
+	}
+	for _, wrong := range []string{"default auto = parallel analysis", "(default unit", "Defaults in review"} {
+		if strings.Contains(stdout, wrong) {
+			t.Errorf("help review says %q", wrong)
+		}
+	}
+	for _, flag := range []string{"  --scale ", "  --components ", "  --permutations ", "  --out "} {
+		if n := strings.Count(stdout, "\n"+flag); n != 1 {
+			t.Errorf("%q appears %d times", flag, n)
+		}
+	}
+}
