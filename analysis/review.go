@@ -230,11 +230,34 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 		idCol = -1
 	}
 	s := &TheirScores{File: t.Name}
+	// A first column counting the rows, 0, 1, 2 … (pandas' index) or
+	// 1, 2, 3 … (R's row names of a data frame without them), is an
+	// index, not a component: scores have mean zero. Counted from 0 it
+	// would match row-number ids one row off, so the rows are taken in
+	// order instead.
+	indexCol := -1
+	if len(t.Header) > 1 && t.NumericColumn(0) && isRowIndex(t, 0) {
+		first, _ := t.Number(t.Rows[0][0])
+		_, idZero := m.exact["0"]
+		switch {
+		case idCol == 0 && first == 0 && !idZero:
+			idCol, indexCol = -1, 0
+		case idCol != 0:
+			indexCol = 0
+		}
+	}
+	if indexCol == 0 {
+		name := t.Header[0]
+		if name == "" {
+			name = "(unnamed)"
+		}
+		s.Notes = append(s.Notes, fmt.Sprintf("column %s counts the rows and was read as an index", quoteText(name)))
+	}
 	var scoreCols []int
 	var text []string
 	for j, h := range t.Header {
 		switch {
-		case j == idCol:
+		case j == idCol, j == indexCol:
 		case !t.NumericColumn(j):
 			text = append(text, quoteText(h))
 		default:

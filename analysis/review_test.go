@@ -411,3 +411,52 @@ func TestVarianceReadingAmbiguity(t *testing.T) {
 		}
 	}
 }
+
+// Scores saved with a row index: pandas' default to_csv (0, 1, 2 …, here
+// written by pandas 1.5.3 from scikit-learn's scores, as
+// testdata/review/generate.py writes them) would match the data's row-number
+// ids one row off; R's write.csv of a data frame without row names (1, 2,
+// 3 …) against data with named samples would make the index a component.
+// Both are read as an index, rows in data order.
+func TestReviewScoresWithRowIndex(t *testing.T) {
+	wine, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	read := func(name string) string {
+		b, err := os.ReadFile(filepath.Join("..", "testdata", "review", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	withIndex := func(text string, from int) string {
+		lines := strings.Split(strings.TrimSpace(text), "\n")
+		for i := range lines {
+			if i == 0 {
+				lines[i] = "," + lines[i]
+			} else {
+				lines[i] = fmt.Sprintf("%d,%s", i-1+from, lines[i])
+			}
+		}
+		return strings.Join(lines, "\n") + "\n"
+	}
+	o := computeOther(t, usarrests(t), true, ScaleUnit, 2)
+	usScores := o.ScoresCSV(false, fixture.Identity(50))
+	cases := []struct {
+		name             string
+		tab              *Table
+		loadings, scores string
+	}{
+		{"pandas index from 0, row-number ids", wine, read("sklearn-wine-loadings.csv"), read("sklearn-wine-scores-indexed.csv")},
+		{"index from 1, named samples", usarrests(t), o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), withIndex(usScores, 1)},
+		{"index from 0, named samples", usarrests(t), o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), withIndex(usScores, 0)},
+	}
+	for _, c := range cases {
+		r := review(t, c.tab, c.loadings, c.scores, "", "")
+		if !strings.Contains(r.Scores.MatchedBy, "row order") || len(r.Scores.Columns) != 2 || maxAbs(r.ScoreResiduals) > 1e-6 ||
+			len(r.Scores.Notes) == 0 || !strings.Contains(r.Scores.Notes[0], "counts the rows") {
+			t.Errorf("%s: matched %s, columns %v, residual %.3g, notes %v", c.name, r.Scores.MatchedBy, r.Scores.Columns, maxAbs(r.ScoreResiduals), r.Scores.Notes)
+		}
+	}
+}

@@ -25,6 +25,8 @@ names = ["PC%d" % (a + 1) for a in range(2)]
 pd.DataFrame(pca.components_[:2].T, index=X.columns, columns=names).to_csv(OUT + "sklearn-wine-loadings.csv")
 # Scores of the first two, without an index: matched by row order.
 pd.DataFrame(pca.transform(X)[:, :2], columns=names).to_csv(OUT + "sklearn-wine-scores.csv", index=False)
+# The same with pandas' default index (0, 1, 2 …) in a first column.
+pd.DataFrame(pca.transform(X)[:, :2], columns=names).to_csv(OUT + "sklearn-wine-scores-indexed.csv")
 
 # numpy savetxt: one bare column, no header.
 np.savetxt(OUT + "numpy-explained-variance.txt", pca.explained_variance_)
