@@ -53,11 +53,12 @@ type Review struct {
 	Loadings *TheirLoadings
 	Scores   *TheirScores // nil when not given
 
-	VarianceValues  []float64 // as stated, nil when not given
-	VarianceHint    string    // the header of the column they came from
-	VarianceKind    VarianceKind
-	VariancePercent []float64 // theirs, as percentages of the total variance
-	VarianceDiff    []float64 // theirs − recomputed, percentage points
+	Variance        *TheirVariance  // nil when not given
+	VarianceValues  []float64       // as stated, nil when not given
+	VarianceKind    VarianceKind    // what the values were read as
+	VarianceReading VarianceReading // how and why
+	VariancePercent []float64       // theirs, as percentages of the total variance
+	VarianceDiff    []float64       // theirs − recomputed, percentage points
 
 	ClaimedScale  Scaling // "" when not claimed
 	Variants      []Variant
@@ -78,6 +79,20 @@ type Review struct {
 	ScoreCorrelation float64   // largest off-diagonal |r| among their scores
 	ScoreMeanShift   float64   // largest |mean(t_a)| / sd(t_a)
 	ScoreBest        int       // the variant whose data best reproduce their scores
+	// ScoreColumnOf is set when their score columns follow from their
+	// loadings only in another order: score column a holds the
+	// projections on loadings column ScoreColumnOf[a]. PermutedResiduals
+	// are the residuals so matched. Both nil when the columns are in the
+	// loadings' order, or no other order fits better.
+	ScoreColumnOf     []int
+	PermutedResiduals []float64
+
+	// Variables are the data variables their loadings cover, and
+	// PreprocessedVariance the variance of each as it entered the best
+	// variant's decomposition (after its centring and scaling): what
+	// decides how much each variable weighs in their components.
+	Variables            []string
+	PreprocessedVariance []float64
 
 	// ComponentVariance is the variance each of their components carries,
 	// from the source named in OrderSource, for the order check.
@@ -99,8 +114,11 @@ var reviewVariants = func() []Variant {
 // CompareReview recomputes the analysis of the table under every plausible
 // preprocessing and measures how another person's tables relate to it. The
 // table must hold exactly the variables their loadings cover, in data order.
-func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []float64, hint string, claimed Scaling) (*Review, error) {
-	r := &Review{Loadings: l, Scores: s, VarianceValues: varianceValues, VarianceHint: hint, ClaimedScale: claimed}
+func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVariance, claimed Scaling) (*Review, error) {
+	r := &Review{Loadings: l, Scores: s, Variance: variance, ClaimedScale: claimed}
+	if variance != nil {
+		r.VarianceValues = variance.Values
+	}
 	_, k := l.V.Dims()
 	theirBasis := orthonormalBasis(l.V)
 	for _, v := range reviewVariants {
@@ -144,6 +162,14 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []
 	r.BestCentred = pick(func(v Variant) bool { return v.Centered })
 	r.BestUncentred = pick(func(v Variant) bool { return !v.Centered })
 	best := r.Variants[r.Best]
+	_, p0 := best.z.Dims()
+
+	r.Variables = t.Variables
+	r.PreprocessedVariance = make([]float64, p0)
+	for j := range r.PreprocessedVariance {
+		_, sd := meanSD(best.z, j)
+		r.PreprocessedVariance[j] = sd * sd
+	}
 
 	// Their loadings as given.
 	r.Orthonormality = OrthonormalityError(l.V)
@@ -185,6 +211,7 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []
 
 	if s != nil {
 		_, r.ScoreResiduals, r.ScoreFactors = scoreFit(best.z, l.V, s.T)
+		r.ScoreColumnOf, r.PermutedResiduals = scorePermutation(best.z, l.V, s.T, r.ScoreResiduals)
 		r.ScoreCorrelation = MaxOffDiagonalCorrelation(s.T, nil)
 		_, ks := s.T.Dims()
 		for a := 0; a < ks; a++ {
@@ -201,8 +228,9 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, varianceValues []
 		}
 	}
 
-	if varianceValues != nil {
-		r.VarianceKind, r.VariancePercent = DetectVarianceKind(varianceValues, best.Eigenvalues)
+	if variance != nil {
+		r.VarianceReading = variance.Read(best.Eigenvalues)
+		r.VarianceKind, r.VariancePercent = r.VarianceReading.Kind, r.VarianceReading.Percent
 		total := 0.0
 		for _, e := range best.Eigenvalues {
 			total += e
@@ -273,20 +301,59 @@ func orthonormalBasis(v *mat.Dense) *mat.Dense {
 }
 
 // PrincipalAngles returns the principal angles, in degrees and ascending,
-// between the subspaces spanned by the orthonormal columns of a and b: the
-// arccosines of the singular values of aᵀb (Björck & Golub 1973).
+// between the subspaces spanned by the orthonormal columns of a and b
+// (Björck & Golub 1973, Math. Comp. 27:579–594).
+//
+// The cosines are the singular values of aᵀb, but an arccosine loses half
+// the digits near 0°: cos θ = 1 − θ²/2 rounds to 1 for θ below about 1e-8
+// rad, so a perfect match would read 1e-6° of noise and a tiny real angle
+// would be lost. Angles up to 45° therefore come from their sines, the
+// singular values of the part of one basis outside the other,
+// b − a(aᵀb) (Björck & Golub §3; the same split as Knyazev & Argentati
+// 2002, SIAM J. Sci. Comput. 23:2008–2040), and larger ones from their
+// cosines, where the arccosine is well conditioned.
 func PrincipalAngles(a, b mat.Matrix) []float64 {
+	// The residual is taken of the basis with fewer columns, so that its
+	// singular values are exactly the sines of the min(ka, kb) angles.
+	_, ka := a.Dims()
+	_, kb := b.Dims()
+	if ka < kb {
+		a, b = b, a
+	}
 	var m mat.Dense
 	m.Mul(a.T(), b)
 	var svd mat.SVD
 	svd.Factorize(&m, mat.SVDNone)
-	s := svd.Values(nil) // descending, so the angles come out ascending
-	out := make([]float64, len(s))
-	for i, c := range s {
-		out[i] = math.Acos(math.Min(1, math.Max(-1, c))) * 180 / math.Pi
+	cos := svd.Values(nil) // descending, so the angles come out ascending
+	var r mat.Dense
+	r.Mul(a, &m)
+	r.Sub(b, &r)
+	svd.Factorize(&r, mat.SVDNone)
+	sin := svd.Values(nil) // descending: the largest sine is the largest angle
+	k := len(cos)
+	out := make([]float64, k)
+	for i, c := range cos {
+		theta := math.Acos(math.Min(1, math.Max(-1, c)))
+		if c*c >= 0.5 && k-1-i < len(sin) {
+			s := sin[k-1-i]
+			// Sines at the rounding level of the residual are an exact
+			// match: a·(aᵀb) reproduces b to a few units of the last
+			// place, and such sines carry no angle.
+			if s <= sineResolution*float64(max(k, 1)) {
+				s = 0
+			}
+			theta = math.Asin(math.Min(1, s))
+		}
+		out[i] = theta * 180 / math.Pi
 	}
 	return out
 }
+
+// sineResolution is the size of the rounding in b − a(aᵀb) per column of
+// unit vectors: a few units of double precision (2.2e-16). A sine below it
+// (times the number of columns) cannot be told from an exact match; it is
+// 1e-15 rad, 6e-14°, far below any printed loading's precision.
+const sineResolution = 8 * 2.220446049250313e-16
 
 // scoreFit compares their scores t (n × k_s) with z·v (their loadings
 // applied to the preprocessed data), fitting one factor per component. It
@@ -320,6 +387,57 @@ func scoreFit(z, v, t *mat.Dense) (float64, []float64, []float64) {
 		worst = math.Max(worst, res[a])
 	}
 	return worst, res, fac
+}
+
+// scorePermutation looks for the order of their loadings columns that their
+// score columns follow: each score column is fitted against every loadings
+// column, and matched to the one that leaves the smallest residual. It
+// returns that matching when it is one-to-one, differs from the columns'
+// own order and improves the fit of every column it moves; nil otherwise.
+func scorePermutation(z, v, t *mat.Dense, own []float64) ([]int, []float64) {
+	n, ks := t.Dims()
+	_, k := v.Dims()
+	if ks < 2 {
+		return nil, nil
+	}
+	cols := make([]int, ks)
+	res := make([]float64, ks)
+	used := make([]bool, k)
+	moved := false
+	for a := 0; a < ks; a++ {
+		ta := mat.DenseCopyOf(t.Slice(0, n, a, a+1))
+		cols[a], res[a] = a, own[a]
+		for b := 0; b < k; b++ {
+			vb := mat.DenseCopyOf(v.Slice(0, v.RawMatrix().Rows, b, b+1))
+			if _, rb, _ := scoreFit(z, vb, ta); rb[0] < res[a] {
+				cols[a], res[a] = b, rb[0]
+			}
+		}
+		if used[cols[a]] {
+			return nil, nil
+		}
+		used[cols[a]] = true
+		moved = moved || cols[a] != a
+	}
+	if !moved {
+		return nil, nil
+	}
+	return cols, res
+}
+
+// ScoreColumnsNamedAlike reports whether, under ScoreColumnOf, every score
+// column bears the name of the loadings column it follows (folded as
+// variable names are): then the columns were only listed in another order.
+func (r *Review) ScoreColumnsNamedAlike() bool {
+	if r.ScoreColumnOf == nil {
+		return false
+	}
+	for a, b := range r.ScoreColumnOf {
+		if nameKey(r.Scores.Columns[a]) != nameKey(r.Loadings.Components[b]) {
+			return false
+		}
+	}
+	return true
 }
 
 // scaledBySD reports whether loadings with the given column norms are

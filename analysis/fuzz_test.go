@@ -136,9 +136,9 @@ func FuzzReadReviewTables(f *testing.F) {
 		} else if n, _ := s.T.Dims(); n != len(ids) {
 			t.Fatalf("scores for %d samples, want %d", n, len(ids))
 		}
-		if v, _, err := ParseVarianceValues(lt); err != nil {
+		if v, err := ParseVariance(lt); err != nil {
 			checkInputError(t, err, data)
-		} else if len(v) == 0 {
+		} else if len(v.Values) == 0 {
 			t.Fatal("no variance values and no error")
 		}
 	})
@@ -267,15 +267,14 @@ func FuzzReviewFiles(f *testing.F) {
 				s = nil
 			}
 		}
-		var values []float64
-		var hint string
+		var v *TheirVariance
 		if vt := read("variance.csv", variance); vt != nil {
-			if values, hint, err = ParseVarianceValues(vt); err != nil {
+			if v, err = ParseVariance(vt); err != nil {
 				checkInputError(t, err, variance)
-				values = nil
+				v = nil
 			}
 		}
-		rv, err := CompareReview(sub, l, s, values, hint, "")
+		rv, err := CompareReview(sub, l, s, v, "")
 		if err != nil {
 			checkInputError(t, err, loadings)
 			return

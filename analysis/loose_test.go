@@ -78,7 +78,7 @@ func TestReviewTablesRefuseOverflowingCells(t *testing.T) {
 	type parse func(*LooseTable) error
 	loadings := func(lt *LooseTable) error { _, err := ParseLoadings(lt, vars); return err }
 	scores := func(lt *LooseTable) error { _, err := ParseScores(lt, ids, 2); return err }
-	variance := func(lt *LooseTable) error { _, _, err := ParseVarianceValues(lt); return err }
+	variance := func(lt *LooseTable) error { _, err := ParseVariance(lt); return err }
 	cases := []struct {
 		name, text string
 		parse      parse

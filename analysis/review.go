@@ -2,7 +2,6 @@ package analysis
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 
@@ -231,11 +230,34 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 		idCol = -1
 	}
 	s := &TheirScores{File: t.Name}
+	// A first column counting the rows, 0, 1, 2 … (pandas' index) or
+	// 1, 2, 3 … (R's row names of a data frame without them), is an
+	// index, not a component: scores have mean zero. Counted from 0 it
+	// would match row-number ids one row off, so the rows are taken in
+	// order instead.
+	indexCol := -1
+	if len(t.Header) > 1 && t.NumericColumn(0) && isRowIndex(t, 0) {
+		first, _ := t.Number(t.Rows[0][0])
+		_, idZero := m.exact["0"]
+		switch {
+		case idCol == 0 && first == 0 && !idZero:
+			idCol, indexCol = -1, 0
+		case idCol != 0:
+			indexCol = 0
+		}
+	}
+	if indexCol == 0 {
+		name := t.Header[0]
+		if name == "" {
+			name = "(unnamed)"
+		}
+		s.Notes = append(s.Notes, fmt.Sprintf("column %s counts the rows and was read as an index", quoteText(name)))
+	}
 	var scoreCols []int
 	var text []string
 	for j, h := range t.Header {
 		switch {
-		case j == idCol:
+		case j == idCol, j == indexCol:
 		case !t.NumericColumn(j):
 			text = append(text, quoteText(h))
 		default:
@@ -259,6 +281,9 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 	var cells []string
 	if idCol >= 0 {
 		s.MatchedBy = fmt.Sprintf("by sample id (column %q)", t.Header[idCol])
+		if t.Header[idCol] == "" {
+			s.MatchedBy = "by sample id (the row names, in a column without a header)"
+		}
 		filled := make([]bool, n)
 		var unknown []string
 		for i, r := range t.Rows {
@@ -310,112 +335,4 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 	}
 	s.Decimals = decimals(cells)
 	return s, nil
-}
-
-// VarianceKind is how a variance table states the size of each component.
-type VarianceKind string
-
-const (
-	VarianceEigenvalues VarianceKind = "eigenvalues"
-	VarianceSD          VarianceKind = "standard deviations"
-	VarianceProportions VarianceKind = "proportions of the total variance"
-	VariancePercentages VarianceKind = "percentages of the total variance"
-)
-
-// ParseVarianceValues reads the numbers of a variance table: the numeric
-// column (preferring one whose header names what it holds) or, for a table
-// of one row, that row. It returns the values and the header hint. A value
-// used that is not a finite number within ±MaxMagnitude is an InputError.
-func ParseVarianceValues(t *LooseTable) ([]float64, string, error) {
-	var candidates []int
-	var hints []string
-	for j, h := range t.Header {
-		if t.NumericColumn(j) {
-			candidates = append(candidates, j)
-			hints = append(hints, strings.ToLower(h))
-		}
-	}
-	column := func(c int) ([]float64, string, error) {
-		out := make([]float64, len(t.Rows))
-		for i := range t.Rows {
-			v, err := t.value(i, candidates[c], "variance")
-			if err != nil {
-				return nil, "", err
-			}
-			out[i] = v
-		}
-		return out, hints[c], nil
-	}
-	if len(t.Rows) == 1 && len(candidates) > 1 {
-		// One row of values, components in the header.
-		out := make([]float64, len(candidates))
-		for c, j := range candidates {
-			v, err := t.value(0, j, "variance")
-			if err != nil {
-				return nil, "", err
-			}
-			out[c] = v
-		}
-		return out, "", nil
-	}
-	if len(candidates) == 0 {
-		return nil, "", &InputError{File: t.Name, Line: 1, Reason: "no numeric column of variances"}
-	}
-	if len(candidates) > 1 {
-		for _, pref := range []string{"percent", "%", "proportion", "prop", "eigen", "variance", "sd", "std"} {
-			for c, h := range hints {
-				if strings.Contains(h, pref) && !strings.Contains(h, "cum") {
-					return column(c)
-				}
-			}
-		}
-	}
-	return column(0)
-}
-
-// DetectVarianceKind decides whether values are eigenvalues, standard
-// deviations, proportions or percentages, by which reading lies closest (in
-// log ratio) to the recomputed eigenvalues. It returns the kind and the
-// values as percentages of the total variance.
-func DetectVarianceKind(values, eigenvalues []float64) (VarianceKind, []float64) {
-	total := 0.0
-	for _, l := range eigenvalues {
-		total += l
-	}
-	kinds := []VarianceKind{VarianceEigenvalues, VarianceSD, VarianceProportions, VariancePercentages}
-	asPercent := func(kind VarianceKind, v float64) float64 {
-		switch kind {
-		case VarianceEigenvalues:
-			return 100 * v / total
-		case VarianceSD:
-			return 100 * v * v / total
-		case VarianceProportions:
-			return 100 * v
-		}
-		return v
-	}
-	best, bestErr := kinds[0], math.Inf(1)
-	for _, kind := range kinds {
-		worst := 0.0
-		for a, v := range values {
-			if a >= len(eigenvalues) {
-				break
-			}
-			ours := 100 * eigenvalues[a] / total
-			theirs := asPercent(kind, v)
-			if theirs <= 0 || ours <= 0 {
-				worst = math.Inf(1)
-				break
-			}
-			worst = math.Max(worst, math.Abs(math.Log(theirs/ours)))
-		}
-		if worst < bestErr {
-			best, bestErr = kind, worst
-		}
-	}
-	pct := make([]float64, len(values))
-	for a, v := range values {
-		pct[a] = asPercent(best, v)
-	}
-	return best, pct
 }

@@ -1,13 +1,17 @@
 package analysis_test
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/mat"
 
 	. "pcqc/analysis"
 	"pcqc/internal/fixture"
@@ -54,14 +58,13 @@ func review(t *testing.T, tab *Table, loadings, scores, variance string, claimed
 			t.Fatal(err)
 		}
 	}
-	var vals []float64
-	var hint string
+	var v *TheirVariance
 	if variance != "" {
-		if vals, hint, err = ParseVarianceValues(loose(t, "variance.csv", variance)); err != nil {
+		if v, err = ParseVariance(loose(t, "variance.csv", variance)); err != nil {
 			t.Fatal(err)
 		}
 	}
-	r, err := CompareReview(sub, l, s, vals, hint, claimed)
+	r, err := CompareReview(sub, l, s, v, claimed)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -234,5 +237,226 @@ func TestLooseTableEncoding(t *testing.T) {
 	lt := loose(t, "bom", "\xef\xbb\xbfvariable,PC1\nx,0.5\n")
 	if lt.Header[0] != "variable" {
 		t.Errorf("byte order mark kept: header %q", lt.Header)
+	}
+}
+
+// Principal angles come from their sines below 45°, so that an exact match
+// reads 0° and angles of 1e-12 to 1e-8 rad, which an arccosine rounds to 0
+// or to 1e-6° of noise, are measured. Reference: scipy 1.10.1
+// scipy.linalg.subspace_angles on the same bases (testdata/review/angles.py).
+func TestPrincipalAnglesFromSines(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "testdata", "review", "angles.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref struct {
+		Cases []struct {
+			Name       string
+			A, B       [][]float64
+			PlantedRad []float64 `json:"planted_rad"`
+			ScipyDeg   []float64 `json:"scipy_deg"`
+		}
+	}
+	if err := json.Unmarshal(raw, &ref); err != nil {
+		t.Fatal(err)
+	}
+	dense := func(rows [][]float64) *mat.Dense {
+		m := mat.NewDense(len(rows), len(rows[0]), nil)
+		for i, r := range rows {
+			m.SetRow(i, r)
+		}
+		return m
+	}
+	if len(ref.Cases) != 4 {
+		t.Fatalf("%d reference cases", len(ref.Cases))
+	}
+	for _, c := range ref.Cases {
+		got := PrincipalAngles(dense(c.A), dense(c.B))
+		if len(got) != len(c.ScipyDeg) {
+			t.Fatalf("%s: %d angles, scipy %d", c.Name, len(got), len(c.ScipyDeg))
+		}
+		for i, want := range c.ScipyDeg {
+			switch {
+			case c.PlantedRad != nil && c.PlantedRad[i] == 0:
+				// scipy leaves 1e-14° of rounding; an exact match is 0.
+				if got[i] != 0 || want > 1e-12 {
+					t.Errorf("%s: angle %d is %g°, scipy %g°, want 0", c.Name, i, got[i], want)
+				}
+			case want < 1:
+				// Tiny angles agree with scipy to 1e-6 relative, or to
+				// 1e-13° (2e-15 rad, ten units of rounding of the bases)
+				// below 1e-9 rad, where that rounding is the larger.
+				if math.Abs(got[i]-want) > 1e-6*want+1e-13 {
+					t.Errorf("%s: angle %d is %.10g°, scipy %.10g°", c.Name, i, got[i], want)
+				}
+			default:
+				if math.Abs(got[i]-want) > 1e-9 {
+					t.Errorf("%s: angle %d is %.12g°, scipy %.12g°", c.Name, i, got[i], want)
+				}
+			}
+		}
+		// The same subspace given with its bases swapped has the same angles.
+		back := PrincipalAngles(dense(c.B), dense(c.A))
+		for i := range got {
+			if math.Abs(back[i]-got[i]) > 1e-6*got[i]+1e-12 {
+				t.Errorf("%s: angle %d is %g° one way, %g° the other", c.Name, i, got[i], back[i])
+			}
+		}
+	}
+	// Bases of different sizes: a plane inside a 3-dimensional space meets
+	// it at 0° twice, whichever is given first.
+	a := mat.NewDense(4, 3, []float64{1, 0, 0, 0, 1, 0, 0, 0, 1, 0, 0, 0})
+	b := mat.NewDense(4, 2, []float64{0.6, 0, 0.8, 0, 0, 1, 0, 0})
+	for _, got := range [][]float64{PrincipalAngles(a, b), PrincipalAngles(b, a)} {
+		if len(got) != 2 || got[0] != 0 || got[1] != 0 {
+			t.Errorf("plane in a 3-space: %v", got)
+		}
+	}
+}
+
+// The variance files people send, written by R 4.2.2, scikit-learn 1.2.1,
+// numpy 1.24.2 and pandas 1.5.3 themselves (testdata/review/generate.R and
+// generate.py), are each read as what they hold, from the right column or
+// row, and agree with the recomputed analysis; the file's shape decides
+// where the values are, its header or content what they are.
+func TestReviewReadsVarianceFileShapes(t *testing.T) {
+	dir := filepath.Join("..", "testdata", "review")
+	wine, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		file, loadings string
+		tab            *Table
+		kind           VarianceKind
+		from, why      string
+		ambiguous      bool
+		points         float64 // the largest difference allowed by the printed rounding
+	}{
+		// R write.csv(pca$sdev): the row names 1..4 are an index, "x" says
+		// nothing, and only standard deviations fit.
+		{"r-sdev.csv", "r-loadings.csv", usarrests(t), VarianceSD, `column "x"`, `the label "x" does not say`, false, 1e-9},
+		// R summary(pca)$importance: rows named by what they hold.
+		{"r-importance.csv", "r-loadings.csv", usarrests(t), VarianceProportions, `row "Proportion of Variance"`, "says so", false, 1e-3},
+		// pandas Series of explained_variance_ratio_: header ",0", index 0..12.
+		{"pandas-ratio-series.csv", "sklearn-wine-loadings.csv", wine, VarianceProportions, `column "0"`, "they sum to 1", false, 1e-9},
+		// pandas Series of explained_variance_: eigenvalues, not a share.
+		{"pandas-variance-series.csv", "sklearn-wine-loadings.csv", wine, VarianceEigenvalues, `column "0"`, "does not say", false, 1e-9},
+		// pandas DataFrame: index column, named columns, a cumulative one.
+		{"pandas-variance-frame.csv", "sklearn-wine-loadings.csv", wine, VarianceProportions, `column "explained_variance_ratio"`, "says so", false, 1e-9},
+		// pandas with the component names as index, a column "sd".
+		{"pandas-sd-named-index.csv", "sklearn-wine-loadings.csv", wine, VarianceSD, `column "sd"`, "says so", false, 1e-9},
+		// numpy savetxt: a bare column, no header.
+		{"numpy-explained-variance.txt", "sklearn-wine-loadings.csv", wine, VarianceEigenvalues, "the one column", "no header says", false, 1e-9},
+		{"numpy-explained-variance-ratio.txt", "sklearn-wine-loadings.csv", wine, VarianceProportions, "the one column", "they sum to 1", false, 1e-9},
+		// numpy savetxt with a header, written as "# name".
+		{"numpy-ratio-header.txt", "sklearn-wine-loadings.csv", wine, VarianceProportions, `column "explained_variance_ratio"`, "says so", false, 1e-9},
+		// A bare column of percentages to two decimals: they sum to 100.
+		{"numpy-percent-2dp.txt", "sklearn-wine-loadings.csv", wine, VariancePercentages, "the one column", "they sum to 100", false, 0.005},
+	}
+	for _, c := range cases {
+		read := func(name string) string {
+			b, err := os.ReadFile(filepath.Join(dir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			return string(b)
+		}
+		r := review(t, c.tab, read(c.loadings), "", read(c.file), "")
+		got := r.VarianceReading
+		if got.Kind != c.kind || !strings.Contains(r.Variance.From, c.from) || !strings.Contains(got.Why, c.why) || got.Ambiguous != c.ambiguous {
+			t.Errorf("%s: read %s from %s (ambiguous %v): %s", c.file, got.Kind, r.Variance.From, got.Ambiguous, got.Why)
+		}
+		if m := maxAbs(r.VarianceDiff); m > c.points || len(r.VarianceDiff) < 2 {
+			t.Errorf("%s: %d values, largest difference %.3g points", c.file, len(r.VarianceDiff), m)
+		}
+	}
+}
+
+// When neither header nor content tells and two readings fit, the reading
+// is called ambiguous and says which was taken and why; values that fit no
+// reading are not called ambiguous. Eigenvalues near 1 (a near-spherical
+// table) are equally standard deviations; the values are invented.
+func TestVarianceReadingAmbiguity(t *testing.T) {
+	eig := []float64{1.02, 1.0, 0.99, 0.99} // sums to 4
+	cases := []struct {
+		text      string
+		kind      VarianceKind
+		ambiguous bool
+		why       string
+	}{
+		{"v\n1.02\n1.00\n0.99\n0.99\n", VarianceEigenvalues, true, "more than one reading fits"},
+		{"v\n1.02\n1.00\n", VarianceEigenvalues, true, "more than one reading fits"},
+		{"sdev\n1.02\n1.00\n", VarianceSD, false, "says so"},
+		// The first two of four proportions: below 1, so not "sum to 1";
+		// only the proportions reading fits.
+		{"v\n0.255\n0.25\n", VarianceProportions, false, "only this one agrees"},
+		// 0.255 + 0.25 + … = 1: fractions, whatever else might fit.
+		{"v\n0.255\n0.25\n0.2475\n0.2475\n", VarianceProportions, false, "they sum to 1"},
+		// A label contradicted by the content: "proportion" above 1.
+		{"proportion\n25.5\n25\n24.75\n24.75\n", VariancePercentages, false, `the label "proportion" says proportions of the total variance, but a value of 25.5 exceeds 1`},
+		// A label the values do not fit, while another reading does.
+		{"variance\n1.0100\n1.0000\n", VarianceEigenvalues, false, "says so"},
+		{"eigenvalue\n1.0404\n1.0000\n0.9801\n0.9801\n", VarianceEigenvalues, false, "says so"},
+		{"eigenvalue\n0.255\n0.25\n0.2475\n0.2475\n", VarianceEigenvalues, false, "as proportions of the total variance they would agree"},
+	}
+	for _, c := range cases {
+		v, err := ParseVariance(loose(t, "v.csv", c.text))
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := v.Read(eig)
+		if r.Kind != c.kind || r.Ambiguous != c.ambiguous || !strings.Contains(r.Why, c.why) {
+			t.Errorf("%q: %s, ambiguous %v: %s", c.text, r.Kind, r.Ambiguous, r.Why)
+		}
+	}
+}
+
+// Scores saved with a row index: pandas' default to_csv (0, 1, 2 …, here
+// written by pandas 1.5.3 from scikit-learn's scores, as
+// testdata/review/generate.py writes them) would match the data's row-number
+// ids one row off; R's write.csv of a data frame without row names (1, 2,
+// 3 …) against data with named samples would make the index a component.
+// Both are read as an index, rows in data order.
+func TestReviewScoresWithRowIndex(t *testing.T) {
+	wine, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	read := func(name string) string {
+		b, err := os.ReadFile(filepath.Join("..", "testdata", "review", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	withIndex := func(text string, from int) string {
+		lines := strings.Split(strings.TrimSpace(text), "\n")
+		for i := range lines {
+			if i == 0 {
+				lines[i] = "," + lines[i]
+			} else {
+				lines[i] = fmt.Sprintf("%d,%s", i-1+from, lines[i])
+			}
+		}
+		return strings.Join(lines, "\n") + "\n"
+	}
+	o := computeOther(t, usarrests(t), true, ScaleUnit, 2)
+	usScores := o.ScoresCSV(false, fixture.Identity(50))
+	cases := []struct {
+		name             string
+		tab              *Table
+		loadings, scores string
+	}{
+		{"pandas index from 0, row-number ids", wine, read("sklearn-wine-loadings.csv"), read("sklearn-wine-scores-indexed.csv")},
+		{"index from 1, named samples", usarrests(t), o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), withIndex(usScores, 1)},
+		{"index from 0, named samples", usarrests(t), o.LoadingsCSV(",", func(a int) string { return fmt.Sprintf("PC%d", a+1) }), withIndex(usScores, 0)},
+	}
+	for _, c := range cases {
+		r := review(t, c.tab, c.loadings, c.scores, "", "")
+		if !strings.Contains(r.Scores.MatchedBy, "row order") || len(r.Scores.Columns) != 2 || maxAbs(r.ScoreResiduals) > 1e-6 ||
+			len(r.Scores.Notes) == 0 || !strings.Contains(r.Scores.Notes[0], "counts the rows") {
+			t.Errorf("%s: matched %s, columns %v, residual %.3g, notes %v", c.name, r.Scores.MatchedBy, r.Scores.Columns, maxAbs(r.ScoreResiduals), r.Scores.Notes)
+		}
 	}
 }

@@ -130,6 +130,7 @@ var Registry = []Check{
 	// Review mode: does another person's PCA follow from the data?
 	reviewCentering,
 	reviewScaling,
+	reviewPreprocessing,
 	reviewSubspace,
 	reviewOrthonormality,
 	reviewScores,

@@ -41,9 +41,12 @@ var reviewCentering = Check{
 // FormatDegrees formats an angle in degrees for messages and reports.
 func FormatDegrees(a float64) string { return deg(a) }
 
-// deg formats an angle in degrees.
+// deg formats an angle in degrees. An exact match (the principal angles
+// snap sines at the rounding level to zero) reads 0, not 0.0e+00.
 func deg(a float64) string {
 	switch {
+	case a == 0:
+		return "0"
 	case a < 0.001:
 		return fmt.Sprintf("%.1e", a)
 	case a < 10:

@@ -25,9 +25,29 @@ var reviewScores = Check{
 				scaled = append(scaled, fmt.Sprintf("%s ×%.3g", rv.Scores.Columns[a], rv.ScoreFactors[a]))
 			}
 		}
-		r := Result{Value: worst, Limit: limit}
 		best := rv.Variants[rv.Best]
 		matched := fmt.Sprintf(" Rows were matched to samples %s.", rv.Scores.MatchedBy)
+		// Score columns that follow from the loadings in another order:
+		// the numbers are right and the labels are not, unless each column
+		// carries the name of the loadings column it follows.
+		if permuted := maxOf(rv.PermutedResiduals); rv.ScoreColumnOf != nil && worst > ScoreResidualPass && permuted <= ScoreResidualPass {
+			var pairs []string
+			for a, b := range rv.ScoreColumnOf {
+				if a != b {
+					pairs = append(pairs, fmt.Sprintf("score column %q holds the scores on %q", rv.Scores.Columns[a], rv.Loadings.Components[b]))
+				}
+			}
+			r := Result{Value: permuted, Limit: limit}
+			if rv.ScoreColumnsNamedAlike() {
+				r.Status = Pass
+				r.Message = fmt.Sprintf("The reported scores equal the %s data projected on the reported loadings once each score column is matched to the loadings column of its name (largest relative residual %s): they are only listed in another order, %s.", best.Name(), sci(permuted), strings.Join(quoted(rv.Scores.Columns), ", ")) + matched
+				return r
+			}
+			r.Status = Warn
+			r.Message = fmt.Sprintf("The score columns are permuted against the loadings: %s (so matched, largest relative residual %s). The numbers follow from the %s data, but the labels do not: score plots and biplots would name the wrong component. Label scores and loadings alike.", strings.Join(pairs, "; "), sci(permuted), best.Name()) + matched
+			return r
+		}
+		r := Result{Value: worst, Limit: limit}
 		switch {
 		case worst <= ScoreResidualPass:
 			r.Status = Pass
@@ -50,4 +70,20 @@ var reviewScores = Check{
 		}
 		return r
 	},
+}
+
+func maxOf(xs []float64) float64 {
+	m := 0.0
+	for _, x := range xs {
+		m = math.Max(m, x)
+	}
+	return m
+}
+
+func quoted(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = fmt.Sprintf("%q", n)
+	}
+	return out
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -57,14 +58,13 @@ func reviewChecks(t *testing.T, tab *analysis.Table, loadings, scores, variance 
 			t.Fatal(err)
 		}
 	}
-	var vals []float64
-	var hint string
+	var v *analysis.TheirVariance
 	if variance != "" {
-		if vals, hint, err = analysis.ParseVarianceValues(looseTable(t, variance)); err != nil {
+		if v, err = analysis.ParseVariance(looseTable(t, variance)); err != nil {
 			t.Fatal(err)
 		}
 	}
-	rv, err := analysis.CompareReview(sub, l, s, vals, hint, claimed)
+	rv, err := analysis.CompareReview(sub, l, s, v, claimed)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -78,7 +78,7 @@ func reviewChecks(t *testing.T, tab *analysis.Table, loadings, scores, variance 
 			out[r.ID] = r
 		}
 	}
-	if len(out) != 8 {
+	if len(out) != 9 {
 		t.Fatalf("%d review checks ran", len(out))
 	}
 	return out
@@ -105,6 +105,15 @@ func TestReviewChecksPassOnCorrectTables(t *testing.T) {
 			o.Flip(0)
 			o.Flip(2)
 			rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), o.ScoresCSV(true, fixture.Identity(len(o.IDs))), o.PercentCSV(3, 0), sc)
+			// Unscaled, both tables weigh their variables by their units
+			// (variance ratios 366 and 1.6 million): a correct PCA, and
+			// the wrong analysis, which the review must say.
+			if r := rs["review-preprocessing"]; sc == analysis.ScaleNone {
+				if r.Status != Warn || !strings.Contains(r.Message, "computed correctly (their loadings match the centred, no scaling recomputation), but without scaling") {
+					t.Errorf("%s unscaled: review-preprocessing %s: %s", tab.File, r.Status, r.Message)
+				}
+				delete(rs, "review-preprocessing")
+			}
 			for id, r := range rs {
 				if r.Status != Pass {
 					t.Errorf("%s %s: %s is %s: %s", tab.File, sc, id, r.Status, r.Message)
@@ -239,5 +248,57 @@ func TestReviewOrthonormalityOfDegenerateLoadings(t *testing.T) {
 		if c.want == Fail && strings.Contains(r["review-order"].Message, "PC2 is the recomputed PC1") {
 			t.Errorf("%s: a zero column is matched to our PC1: %s", c.name, r["review-order"].Message)
 		}
+	}
+}
+
+// Score columns permuted against the loadings under the loadings' names are
+// diagnosed as permuted (warn), not as scores from other data; columns only
+// listed in another order under their own names pass; correct columns stay
+// a pass. The files are R 4.2.2's own (testdata/review/generate.R).
+func TestReviewScoreColumnsPermuted(t *testing.T) {
+	tab := usarrestsTable(t)
+	read := func(name string) string {
+		b, err := os.ReadFile(filepath.Join("..", "testdata", "review", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	cases := []struct {
+		loadings, scores string
+		want             Status
+		message          []string
+	}{
+		{"r-loadings-3.csv", "r-scores-permuted.csv", Warn, []string{
+			`score column "PC1" holds the scores on "PC2"`, `"PC2" holds the scores on "PC3"`, `"PC3" holds the scores on "PC1"`, "permuted against the loadings"}},
+		{"r-loadings.csv", "r-scores-reordered.csv", Pass, []string{`only listed in another order, "PC2", "PC1"`}},
+		{"r-loadings.csv", "r-scores.csv", Pass, []string{"equal the centred, unit variance data projected"}},
+	}
+	for _, c := range cases {
+		r := reviewChecks(t, tab, read(c.loadings), read(c.scores), "", "")["review-scores"]
+		if r.Status != c.want {
+			t.Errorf("%s: %s: %s", c.scores, r.Status, r.Message)
+		}
+		for _, m := range c.message {
+			if !strings.Contains(r.Message, m) {
+				t.Errorf("%s: message lacks %q: %s", c.scores, m, r.Message)
+			}
+		}
+	}
+	// Two columns swapped in a fixture of another person's tables (no
+	// names to go by): a warning naming both.
+	o := other(t, tab, true, analysis.ScaleUnit, 3)
+	scores := o.ScoresCSV(true, fixture.Identity(50))
+	lines := strings.Split(strings.TrimSpace(scores), "\n")
+	for i, line := range lines {
+		f := strings.Split(line, ",")
+		if i > 0 {
+			f[1], f[2] = f[2], f[1]
+		}
+		lines[i] = strings.Join(f, ",")
+	}
+	r := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), strings.Join(lines, "\n")+"\n", "", "")["review-scores"]
+	if r.Status != Warn || !strings.Contains(r.Message, "permuted") {
+		t.Errorf("swapped fixture columns: %s %s", r.Status, r.Message)
 	}
 }

@@ -26,8 +26,12 @@ var reviewVariance = Check{
 			parts = append(parts, fmt.Sprintf("component %d stated %.1f %%, recomputed %.1f %%", a+1, rv.VariancePercent[a], rv.VariancePercent[a]-d))
 		}
 		r := Result{Value: worst, Limit: limit}
-		read := fmt.Sprintf(" The values were read as %s.", rv.VarianceKind)
+		read := fmt.Sprintf(" The values (%s of %s) were read as %s: %s.", rv.Variance.From, rv.Variance.File, rv.VarianceKind, rv.VarianceReading.Why)
 		detail := " " + strings.Join(parts, "; ") + "."
+		if len(parts) > 0 {
+			// The list opens a sentence.
+			detail = " C" + detail[2:]
+		}
 		best := rv.Variants[rv.Best]
 		switch {
 		case worst <= VarianceWarnPP:

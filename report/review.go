@@ -19,8 +19,14 @@ type ReviewInfo struct {
 	ScoresFile      *string       `json:"scores_file"`
 	ScoresMatchedBy *string       `json:"scores_matched_by"`
 	VarianceKind    *string       `json:"variance_kind"`
-	ClaimedScale    *string       `json:"claimed_scale"`
-	Notes           []string      `json:"notes"`
+	VarianceFrom    *string       `json:"variance_from"`
+	VarianceReading *string       `json:"variance_reading"`
+	// VarianceAmbiguous is set when neither the header nor the content of
+	// their variance file said what the values are and more than one
+	// reading fitted; variance_reading then says which was taken and why.
+	VarianceAmbiguous bool     `json:"variance_ambiguous"`
+	ClaimedScale      *string  `json:"claimed_scale"`
+	Notes             []string `json:"notes"`
 }
 
 type VariantInfo struct {
@@ -32,11 +38,15 @@ type VariantInfo struct {
 
 // reviewFindings are the first sentences of the review checks, each written
 // to be pasted into a referee report, prefixed by the status.
+// Failures come first, then warnings, then passes, each group in the
+// checks' order, so that what needs saying is read first.
 func reviewFindings(results []checks.Result) []string {
 	var out []string
-	for _, r := range results {
-		if strings.HasPrefix(r.ID, "review-") && r.Status != checks.Skip {
-			out = append(out, fmt.Sprintf("%s %s: %s", r.Status.Symbol(), r.Status, firstSentence(r.Message)))
+	for _, level := range []checks.Status{checks.Fail, checks.Warn, checks.Pass} {
+		for _, r := range results {
+			if strings.HasPrefix(r.ID, "review-") && r.Status == level {
+				out = append(out, fmt.Sprintf("%s %s: %s", r.Status.Symbol(), r.Status, firstSentence(r.Message)))
+			}
 		}
 	}
 	return out
@@ -71,6 +81,9 @@ func reviewInfo(rv *analysis.Review, results []checks.Result) *ReviewInfo {
 	}
 	if rv.VarianceValues != nil {
 		info.VarianceKind = optional(string(rv.VarianceKind))
+		info.VarianceFrom = optional(rv.Variance.From)
+		info.VarianceReading = optional(rv.VarianceReading.Why)
+		info.VarianceAmbiguous = rv.VarianceReading.Ambiguous
 	}
 	if rv.ClaimedScale != "" {
 		info.ClaimedScale = optional(string(rv.ClaimedScale))
@@ -91,7 +104,14 @@ func reviewNotes(rv *analysis.Review) []string {
 		}
 	}
 	if rv.VarianceValues != nil {
-		notes = append(notes, fmt.Sprintf("Variances: read as %s.", rv.VarianceKind))
+		v := rv.Variance
+		notes = append(notes, fmt.Sprintf("Variances (%s): %s, read as %s: %s.", v.File, v.From, rv.VarianceKind, rv.VarianceReading.Why))
+		if rv.VarianceReading.Ambiguous {
+			notes[len(notes)-1] = "Variances (ambiguous): " + notes[len(notes)-1][len("Variances "):]
+		}
+		for _, n := range v.Notes {
+			notes = append(notes, "Variances: "+n+".")
+		}
 	}
 	return notes
 }

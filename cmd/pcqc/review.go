@@ -4,6 +4,7 @@ import (
 	"flag"
 	"io"
 	"path/filepath"
+	"strings"
 
 	"pcqc/analysis"
 )
@@ -22,7 +23,11 @@ those results follow from the data, and if not, why.
   --scores FILE       their scores; matched to samples by id when a column
                       holds the sample ids, otherwise by row order
   --variance FILE     their eigenvalues, standard deviations, proportions or
-                      percentages (which one is detected and reported)
+                      percentages: a column (R's write.csv, pandas, a bare
+                      numpy column) or a row (R's summary importance).
+                      Which of the four they are is read from the header,
+                      else from their sum (1 or 100), else from the
+                      recomputation, and the report says which and why
   --claimed-scale S   the scaling the methods claim: unit, pareto, range or none
 
 The analysis is recomputed under each plausible preprocessing (centred or
@@ -36,8 +41,62 @@ unless --components is given).
 
 The output folder defaults to <DATA name>-review.
 
-` + auditFlagHelp,
+` + reviewFlagHelp(),
 	run: runReview,
+}
+
+// reviewDefaults are the flags whose defaults differ in review: what the
+// shared help says of run would mislead here.
+var reviewDefaults = []struct{ flag, text string }{
+	{"scale", `  --scale S           unit | pareto | range | none (default: the scaling
+                      their loadings match best, named in the findings)
+`},
+	{"components", `  --components RULE   N | auto | parallel | broken-stick | cv | kaiser |
+                      variance:F (default: their number of components, the
+                      columns of --loadings)
+`},
+	{"permutations", `  --permutations P    the most permutations parallel analysis may run, when
+                      --components auto or parallel is given (default 2000;
+                      0 turns it off, which review's default rule never
+                      needs)
+`},
+	{"out", `  --out DIR           output folder (default <DATA name>-review)
+`},
+}
+
+// reviewFlagHelp is the shared flag help with review's own defaults in
+// place of run's. A flag whose entry is not found is listed at the end,
+// so that a change to the shared text cannot drop review's defaults.
+func reviewFlagHelp() string {
+	text := auditFlagHelp
+	var missing []string
+	for _, d := range reviewDefaults {
+		var ok bool
+		if text, ok = replaceFlagEntry(text, d.flag, d.text); !ok {
+			missing = append(missing, d.text)
+		}
+	}
+	if len(missing) > 0 {
+		text += "\nDefaults in review:\n" + strings.Join(missing, "")
+	}
+	return text
+}
+
+// replaceFlagEntry replaces the entry of --name in a flag help text: its
+// first line and the indented lines that continue it.
+func replaceFlagEntry(text, name, entry string) (string, bool) {
+	lines := strings.SplitAfter(text, "\n")
+	for i, l := range lines {
+		if !strings.HasPrefix(l, "  --"+name+" ") {
+			continue
+		}
+		end := i + 1
+		for end < len(lines) && strings.HasPrefix(lines[end], "                ") {
+			end++
+		}
+		return strings.Join(lines[:i], "") + entry + strings.Join(lines[end:], ""), true
+	}
+	return text, false
 }
 
 func runReview(args []string, stdout, stderr io.Writer) (int, error) {
@@ -65,6 +124,14 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	data := pos[0]
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-review"
+	}
+	if !f.set["components"] {
+		// Review keeps their number of components unless told otherwise;
+		// it is known once their loadings are read (below). Until then a
+		// fixed rule stands in, so that validation does not hold review to
+		// parallel analysis, the default of run, and refuse
+		// --permutations 0.
+		f.components = analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}.String()
 	}
 	reads := []string{data, loadingsPath, scoresPath, variancePath}
 	read, err := f.validate(reads...)
@@ -95,18 +162,17 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 			return 0, err
 		}
 	}
-	var values []float64
-	var hint string
+	var variance *analysis.TheirVariance
 	if variancePath != "" {
 		vt, err := analysis.ReadLooseTable(variancePath, read.Encoding)
 		if err != nil {
 			return 0, err
 		}
-		if values, hint, err = analysis.ParseVarianceValues(vt); err != nil {
+		if variance, err = analysis.ParseVariance(vt); err != nil {
 			return 0, err
 		}
 	}
-	rv, err := analysis.CompareReview(t, loadings, scores, values, hint, claimedScale)
+	rv, err := analysis.CompareReview(t, loadings, scores, variance, claimedScale)
 	if err != nil {
 		return 0, err
 	}

@@ -48,6 +48,8 @@ type reviewSummary struct {
 		LoadingsLayout  string           `json:"loadings_layout"`
 		ScoresMatchedBy string           `json:"scores_matched_by"`
 		VarianceKind    string           `json:"variance_kind"`
+		VarianceFrom    string           `json:"variance_from"`
+		VarianceReading string           `json:"variance_reading"`
 	} `json:"review"`
 }
 
@@ -87,7 +89,7 @@ func TestReviewCommandReadsTheirTables(t *testing.T) {
 		if !s.Review.BestVariant.Centered || s.Review.BestVariant.Scale != "unit" || len(s.Review.Variants) != 8 {
 			t.Errorf("%s: best variant %+v, %d variants", c.name, s.Review.BestVariant, len(s.Review.Variants))
 		}
-		for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+		for _, id := range []string{"review-centering", "review-scaling", "review-preprocessing", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
 			if st := s.status(id); st != "pass" {
 				t.Errorf("%s: %s is %s", c.name, id, st)
 			}
@@ -153,6 +155,112 @@ func TestReviewCommandRejectsMismatchedTables(t *testing.T) {
 		}
 		if _, err := os.Stat(out); !os.IsNotExist(err) {
 			t.Errorf("%v: output folder created", c.args)
+		}
+	}
+}
+
+// R's write.csv(pca$sdev) — a "" column of row names 1..4, then "x" — was
+// read from its row names and failed a correct PCA. End to end with R's own
+// files (testdata/review/generate.R, R 4.2.2): every review check passes and
+// the reading is stated in summary.json.
+func TestReviewCommandReadsRFiles(t *testing.T) {
+	dir := t.TempDir()
+	fixture := func(name string) string { return filepath.Join("..", "..", "testdata", "review", name) }
+	for _, c := range []struct{ variance, kind, from string }{
+		{"r-sdev.csv", "standard deviations", `column "x"`},
+		{"r-importance.csv", "proportions of the total variance", `row "Proportion of Variance"`},
+	} {
+		out := filepath.Join(dir, c.variance)
+		status, _, stderr := runPCQC(t, "review", usarrestsPath, "--loadings", fixture("r-loadings.csv"), "--scores", fixture("r-scores.csv"),
+			"--variance", fixture(c.variance), "--out", out, "--bootstrap", "0", "--permutations", "0", "--format", "none")
+		if status != exitOK && status != exitChecks {
+			t.Fatalf("%s: status %d %s", c.variance, status, stderr)
+		}
+		s := readSummaryFile[reviewSummary](t, out)
+		if s.Review.VarianceKind != c.kind || !strings.Contains(s.Review.VarianceFrom, c.from) || s.Review.VarianceReading == "" {
+			t.Errorf("%s: read %q from %q: %q", c.variance, s.Review.VarianceKind, s.Review.VarianceFrom, s.Review.VarianceReading)
+		}
+		for _, id := range []string{"review-centering", "review-scaling", "review-preprocessing", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+			if st := s.status(id); st != "pass" {
+				t.Errorf("%s: %s is %s", c.variance, id, st)
+			}
+		}
+	}
+}
+
+// scikit-learn's default PCA of wine (centred, unscaled; files written by
+// scikit-learn 1.2.1 and numpy 1.24.2, testdata/review/generate.py) is
+// computed correctly, and every check of its computation passes; but
+// proline's variance is 6.4 million times nonflavanoid_phenols's (numpy
+// 1.24.2 on testdata/datasets/wine.csv) and PC1 holds 99.8 % of the
+// variance (sklearn's explained_variance_ratio_[0] = 0.9981), which the
+// review's findings must say, first, not only the audit's table.
+func TestReviewCommandUnscaledWine(t *testing.T) {
+	fixture := func(name string) string { return filepath.Join("..", "..", "testdata", "review", name) }
+	out := filepath.Join(t.TempDir(), "wine")
+	status, _, stderr := runPCQC(t, "review", filepath.Join("..", "..", "testdata", "datasets", "wine.csv"), "--group", "cultivar",
+		"--loadings", fixture("sklearn-wine-loadings.csv"), "--scores", fixture("sklearn-wine-scores.csv"),
+		"--variance", fixture("numpy-explained-variance-ratio.txt"), "--out", out, "--bootstrap", "0", "--permutations", "0", "--format", "md")
+	if status != exitOK {
+		t.Fatalf("status %d %s", status, stderr)
+	}
+	s := readSummaryFile[reviewSummary](t, out)
+	if s.Verdict != "warn" || s.Review.BestVariant.Scale != "none" || !s.Review.BestVariant.Centered {
+		t.Errorf("verdict %s, best variant %+v", s.Verdict, s.Review.BestVariant)
+	}
+	for _, id := range []string{"review-centering", "review-scaling", "review-subspace", "review-orthonormality", "review-scores", "review-uncorrelated", "review-variance", "review-order"} {
+		if st := s.status(id); st != "pass" {
+			t.Errorf("%s is %s", id, st)
+		}
+	}
+	if st := s.status("review-preprocessing"); st != "warn" {
+		t.Errorf("review-preprocessing is %s", st)
+	}
+	if len(s.Review.Findings) == 0 {
+		t.Fatal("no findings")
+	}
+	first := s.Review.Findings[0]
+	for _, want := range []string{"! warn", "computed correctly", "proline's variance is 6.4 million times nonflavanoid_phenols's", "PC1 holds 99.8 %", "almost entirely proline"} {
+		if !strings.Contains(first, want) {
+			t.Errorf("first finding lacks %q: %s", want, first)
+		}
+	}
+	md, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	findings := string(md)[strings.Index(string(md), "## Review findings"):strings.Index(string(md), "How their tables were read")]
+	if !strings.Contains(findings, "PC1 holds 99.8 %") {
+		t.Errorf("the report's review findings do not say it:\n%s", findings)
+	}
+}
+
+// help review states review's own defaults, not run's: the best-matching
+// scaling, their number of components, the -review folder; and --scale,
+// --components, --permutations and --out each appear once.
+func TestHelpReviewStatesItsDefaults(t *testing.T) {
+	status, stdout, stderr := runPCQC(t, "help", "review")
+	if status != exitOK {
+		t.Fatalf("status %d %s", status, stderr)
+	}
+	for _, want := range []string{
+		"(default: the scaling\n                      their loadings match best",
+		"(default: their number of components",
+		"0 turns it off, which review's default rule never",
+		"output folder (default <DATA name>-review)",
+	} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("help review lacks %q", want)
+		}
+	}
+	for _, wrong := range []string{"default auto = parallel analysis", "(default unit", "Defaults in review"} {
+		if strings.Contains(stdout, wrong) {
+			t.Errorf("help review says %q", wrong)
+		}
+	}
+	for _, flag := range []string{"  --scale ", "  --components ", "  --permutations ", "  --out "} {
+		if n := strings.Count(stdout, "\n"+flag); n != 1 {
+			t.Errorf("%q appears %d times", flag, n)
 		}
 	}
 }
