@@ -132,14 +132,13 @@ func reviewOf(t *testing.T, tab *analysis.Table, sc, claimed analysis.Scaling, k
 			t.Fatal(err)
 		}
 	}
-	var vals []float64
-	var hint string
+	var variance *analysis.TheirVariance
 	if withVariances {
-		if vals, hint, err = analysis.ParseVarianceValues(loose(o.PercentCSV(k, 0))); err != nil {
+		if variance, err = analysis.ParseVariance(loose(o.PercentCSV(k, 0))); err != nil {
 			t.Fatal(err)
 		}
 	}
-	rv, err := analysis.CompareReview(sub, l, s, vals, hint, claimed)
+	rv, err := analysis.CompareReview(sub, l, s, variance, claimed)
 	if err != nil {
 		t.Fatal(err)
 	}
