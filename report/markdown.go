@@ -186,7 +186,11 @@ func renderTemplate(name string, data any) ([]byte, error) {
 				return "*" + escapeMarkdown(f.Omitted) + "*\n"
 			}
 			figureNo++
-			return fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
+			out := fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
+			if len(f.TableRows) > 0 {
+				out += "\n" + markdownTable(f.TableHeader, f.TableRows)
+			}
+			return out
 		},
 	}
 	t, err := template.New(name).Funcs(funcs).ParseFS(templates.FS, name)

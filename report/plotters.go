@@ -29,8 +29,9 @@ func (guides) Plot(c draw.Canvas, plt *plot.Plot) {
 	}
 }
 
-// refLine is a vertical or horizontal reference line across the data area,
-// with an optional label at its end.
+// refLine is a vertical or horizontal reference line across the data area.
+// Its name is placed by the figure's labeller (labeller.addRef), which
+// keeps it clear of the other names and inside the data area.
 type refLine struct {
 	vertical bool
 	at       float64
@@ -40,22 +41,13 @@ type refLine struct {
 
 func (r refLine) Plot(c draw.Canvas, plt *plot.Plot) {
 	trX, trY := plt.Transforms(&c)
-	ts := draw.TextStyle{Color: r.style.Color, Font: textFont(7, false), Handler: plot.DefaultTextHandler}
 	if r.vertical {
 		x := trX(r.at)
 		c.StrokeLine2(r.style, x, c.Min.Y, x, c.Max.Y)
-		if r.label != "" {
-			ts.XAlign, ts.YAlign = text.XLeft, text.YTop
-			c.FillText(ts, vg.Point{X: x + vg.Points(2), Y: c.Max.Y}, r.label)
-		}
 		return
 	}
 	y := trY(r.at)
 	c.StrokeLine2(r.style, c.Min.X, y, c.Max.X, y)
-	if r.label != "" {
-		ts.XAlign, ts.YAlign = text.XRight, text.YBottom
-		c.FillText(ts, vg.Point{X: c.Max.X, Y: y + vg.Points(1)}, r.label)
-	}
 }
 
 func (r refLine) DataRange() (xmin, xmax, ymin, ymax float64) {
@@ -141,35 +133,22 @@ func (h hbars) DataRange() (xmin, xmax, ymin, ymax float64) {
 	return xmin, xmax, -0.6, float64(len(h.values)) - 0.4
 }
 
-// arrows draws lines from the origin to each point, with a label at the tip.
+// arrows draws lines from the origin to each point, with a head at the
+// tip; the figure's labeller names them.
 type arrows struct {
-	x, y   []float64
-	labels []string
+	x, y []float64
 }
 
 func (a arrows) Plot(c draw.Canvas, plt *plot.Plot) {
 	trX, trY := plt.Transforms(&c)
 	ls := lineStyle(accent99, 0.8)
-	ts := draw.TextStyle{Color: accent99, Font: textFont(7, false), Handler: plot.DefaultTextHandler}
-	ox, oy := trX(0), trY(0)
+	o := vg.Point{X: trX(0), Y: trY(0)}
 	for i := range a.x {
-		tx, ty := trX(a.x[i]), trY(a.y[i])
-		c.StrokeLine2(ls, ox, oy, tx, ty)
-		// Arrow head: two short strokes back from the tip.
-		ang := math.Atan2(float64(ty-oy), float64(tx-ox))
-		for _, d := range []float64{0.45, -0.45} {
-			hx := tx - vg.Points(5)*vg.Length(math.Cos(ang+d))
-			hy := ty - vg.Points(5)*vg.Length(math.Sin(ang+d))
-			c.StrokeLine2(ls, tx, ty, hx, hy)
+		t := vg.Point{X: trX(a.x[i]), Y: trY(a.y[i])}
+		c.StrokeLine2(ls, o.X, o.Y, t.X, t.Y)
+		for _, h := range arrowHead(o, t) {
+			c.StrokeLine2(ls, t.X, t.Y, h.X, h.Y)
 		}
-		ts.XAlign, ts.YAlign = text.XLeft, text.YBottom
-		if a.x[i] < 0 {
-			ts.XAlign = text.XRight
-		}
-		if a.y[i] < 0 {
-			ts.YAlign = text.YTop
-		}
-		c.FillText(ts, vg.Point{X: tx, Y: ty}, a.labels[i])
 	}
 }
 
@@ -180,6 +159,6 @@ func (a arrows) DataRange() (xmin, xmax, ymin, ymax float64) {
 		xmin, xmax = math.Min(xmin, a.x[i]), math.Max(xmax, a.x[i])
 		ymin, ymax = math.Min(ymin, a.y[i]), math.Max(ymax, a.y[i])
 	}
-	padX, padY := 0.35*(xmax-xmin), 0.1*(ymax-ymin)
+	padX, padY := 0.35*(xmax-xmin), 0.15*(ymax-ymin)
 	return xmin - padX, xmax + padX, ymin - padY, ymax + padY
 }

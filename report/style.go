@@ -42,18 +42,19 @@ var (
 		rgb(0x9B5A1E), // umber, mid-dark
 		rgb(0x7A8B8F), // slate, mid-light
 	}
-	groupShapes = []draw.GlyphDrawer{
-		draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.BoxGlyph{}, draw.RingGlyph{},
-		draw.PyramidGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}, draw.PlusGlyph{},
-	}
+	// groupShapes are all filled: hollow marks mean something else in the
+	// figures (samples within the limits, training samples behind new
+	// ones), so every group keeps to the one convention.
+	groupShapes = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.SquareGlyph{}}
 )
 
 // maxColouredGroups is the most groups a figure colours individually;
 // beyond it every sample is drawn alike and the legend says why.
 const maxColouredGroups = 16
 
-// groupStyle returns the glyph of group g: colour and shape cycle with
-// different periods, so the first 8 × 8 combinations are distinct.
+// groupStyle returns the glyph of group g: the shape moves on by one with
+// every group and again with every round of the palette, so the first
+// 8 × 3 combinations of colour and shape are distinct.
 func groupStyle(g int) draw.GlyphStyle {
 	return draw.GlyphStyle{
 		Color:  groupPalette[g%len(groupPalette)],
