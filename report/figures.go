@@ -630,7 +630,9 @@ func groupNote(ann *labeller, t *analysis.Table) {
 		return
 	}
 	named := ann.note
-	ann.note = func(k int) string { return "Every group is drawn with filled marks, told apart by colour and shape. " + named(k) }
+	ann.note = func(k int) string {
+		return "Every group is drawn with filled marks, told apart by colour and shape. " + named(k)
+	}
 }
 
 // maxLabelRunes is the longest sample id or variable name a figure prints;
