@@ -45,20 +45,20 @@ var (
 	// groupShapes are all filled: hollow marks mean something else in the
 	// figures (samples within the limits, training samples behind new
 	// ones), so every group keeps to the one convention.
-	groupShapes = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.SquareGlyph{}}
+	groupShapes = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.BoxGlyph{}}
 )
 
 // maxColouredGroups is the most groups a figure colours individually;
 // beyond it every sample is drawn alike and the legend says why.
 const maxColouredGroups = 16
 
-// groupStyle returns the glyph of group g: the shape moves on by one with
-// every group and again with every round of the palette, so the first
-// 8 × 3 combinations of colour and shape are distinct.
+// groupStyle returns the glyph of group g: colour and shape cycle with
+// periods 8 and 3, which share no factor, so the first 24 groups all
+// differ in colour or shape (TestGroupStylesDiffer).
 func groupStyle(g int) draw.GlyphStyle {
 	return draw.GlyphStyle{
 		Color:  groupPalette[g%len(groupPalette)],
-		Shape:  groupShapes[(g+g/len(groupPalette))%len(groupShapes)],
+		Shape:  groupShapes[g%len(groupShapes)],
 		Radius: vg.Points(2.6),
 	}
 }
