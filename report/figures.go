@@ -761,7 +761,7 @@ const biplotVariables = 30
 // biplotLabels is the most arrows a biplot names: the longest ones. More
 // names than this crowd one another into a cluster of leader lines; the
 // table below the figure lists the rest.
-const biplotLabels = 10
+const biplotLabels = 15
 
 // biplotFigure is Gabriel's (1971, Biometrika 58:453–467) biplot of PC1 and
 // PC2 in its column-metric form: samples at their standardised scores

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 
 	"pcqc/analysis"
@@ -126,15 +127,26 @@ func TestNamedNote(t *testing.T) {
 	}
 }
 
+// Groups differ in colour and shape together, and the first eight in
+// shape alone, so that no figure relies on colour; every mark is filled.
 func TestGroupStylesDiffer(t *testing.T) {
-	seen := map[string]int{}
+	seen, shapes := map[string]int{}, map[string]int{}
 	for g := 0; g < maxColouredGroups; g++ {
 		s := groupStyle(g)
-		k := fmt.Sprintf("%v %T", s.Color, s.Shape)
+		shape := fmt.Sprintf("%#v", s.Shape)
+		k := fmt.Sprintf("%v %s", s.Color, shape)
 		if h, ok := seen[k]; ok {
 			t.Errorf("groups %d and %d are drawn alike (%s)", h, g, k)
 		}
 		seen[k] = g
+		if h, ok := shapes[shape]; ok && g < 8 {
+			t.Errorf("groups %d and %d have one shape (%s)", h, g, shape)
+		}
+		shapes[shape] = g
+		switch s.Shape.(type) {
+		case draw.RingGlyph, draw.SquareGlyph, draw.TriangleGlyph, draw.CrossGlyph, draw.PlusGlyph:
+			t.Errorf("group %d is drawn hollow (%s)", g, shape)
+		}
 	}
 }
 

@@ -162,3 +162,56 @@ func (a arrows) DataRange() (xmin, xmax, ymin, ymax float64) {
 	padX, padY := 0.35*(xmax-xmin), 0.15*(ymax-ymin)
 	return xmin - padX, xmax + padX, ymin - padY, ymax + padY
 }
+
+// filledGlyph is a filled polygon marker: a regular polygon of n corners
+// (the first at angle rot, in radians from the right), or, with inner > 0,
+// a star whose inner corners sit at inner times the radius. gonum/plot has
+// three filled markers only; the groups of a score plot need eight shapes
+// that all keep the one convention, filled.
+type filledGlyph struct {
+	n     int
+	rot   float64
+	scale float64 // radius relative to the style's, to match the circle's weight
+	inner float64
+}
+
+func (g filledGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r := float64(sty.Radius) * g.scale
+	corners := g.n
+	if g.inner > 0 {
+		corners *= 2
+	}
+	var p vg.Path
+	for k := 0; k < corners; k++ {
+		rk := r
+		if g.inner > 0 && k%2 == 1 {
+			rk = r * g.inner
+		}
+		th := g.rot + 2*math.Pi*float64(k)/float64(corners)
+		q := vg.Point{X: pt.X + vg.Length(rk*math.Cos(th)), Y: pt.Y + vg.Length(rk*math.Sin(th))}
+		if k == 0 {
+			p.Move(q)
+		} else {
+			p.Line(q)
+		}
+	}
+	p.Close()
+	c.Fill(p)
+}
+
+// crossGlyph is a filled Greek cross: two bars a third of its width thick.
+type crossGlyph struct{}
+
+func (crossGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r, t := sty.Radius*1.1, sty.Radius*0.4
+	var p vg.Path
+	for k, q := range [][2]vg.Length{{-t, r}, {t, r}, {t, t}, {r, t}, {r, -t}, {t, -t}, {t, -r}, {-t, -r}, {-t, -t}, {-r, -t}, {-r, t}, {-t, t}} {
+		if k == 0 {
+			p.Move(vg.Point{X: pt.X + q[0], Y: pt.Y + q[1]})
+		} else {
+			p.Line(vg.Point{X: pt.X + q[0], Y: pt.Y + q[1]})
+		}
+	}
+	p.Close()
+	c.Fill(p)
+}

@@ -2,6 +2,7 @@ package report
 
 import (
 	"image/color"
+	"math"
 
 	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
@@ -45,7 +46,14 @@ var (
 	// groupShapes are all filled: hollow marks mean something else in the
 	// figures (samples within the limits, training samples behind new
 	// ones), so every group keeps to the one convention.
-	groupShapes = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.BoxGlyph{}}
+	groupShapes = []draw.GlyphDrawer{
+		draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.BoxGlyph{},
+		filledGlyph{n: 4, rot: math.Pi / 2, scale: 1.3},              // diamond
+		filledGlyph{n: 3, rot: -math.Pi / 2, scale: 1.3},             // triangle pointing down
+		filledGlyph{n: 5, rot: math.Pi / 2, scale: 1.5, inner: 0.45}, // star
+		crossGlyph{},
+		filledGlyph{n: 6, rot: 0, scale: 1.15}, // hexagon
+	}
 )
 
 // maxColouredGroups is the most groups a figure colours individually;
@@ -53,12 +61,12 @@ var (
 const maxColouredGroups = 16
 
 // groupStyle returns the glyph of group g: colour and shape cycle with
-// periods 8 and 3, which share no factor, so the first 24 groups all
-// differ in colour or shape (TestGroupStylesDiffer).
+// different periods, so the first 8 × 8 combinations are distinct and the
+// first 8 groups differ in shape as well as colour (TestGroupStylesDiffer).
 func groupStyle(g int) draw.GlyphStyle {
 	return draw.GlyphStyle{
 		Color:  groupPalette[g%len(groupPalette)],
-		Shape:  groupShapes[g%len(groupShapes)],
+		Shape:  groupShapes[(g+g/len(groupPalette))%len(groupShapes)],
 		Radius: vg.Points(2.6),
 	}
 }
