@@ -252,9 +252,9 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 	d.Limits = fmt.Sprintf("Hotelling T² %s (95 %%) and %s (99 %%) for new observations, k(n²−1)/(n(n−k))·F(k, n−k) with n = %d training samples and k = %d (Tracy, Young & Mason 1992); Q residual %s (95 %%) and %s (99 %%) from the training eigenvalues.",
 		g4(l.T2_95), g4(l.T2_99), m.Input.Rows, m.Retained, g4(l.Q95), g4(l.Q99))
 	d.ScoresFigure = Figure{Stem: "new-scores", Alt: "New samples on the training score plot",
-		Caption: "New samples (filled) on the training score plot (training samples as grey rings when the audit folder holds their scores), with the 95 % Hotelling T² ellipse for new observations; samples beyond a 99 % limit are named."}
+		Caption: "New samples (filled) on the training score plot (training samples as grey rings when the audit folder holds their scores), with the 95 % Hotelling T² ellipse for new observations."}
 	if m.Retained == 1 {
-		d.ScoresFigure.Caption = "Scores of the new samples on PC1 in input order, with the 95 % Hotelling T² limit for new observations."
+		d.ScoresFigure.Caption = "Scores of the new samples on PC1 in input order, with the 95 % Hotelling T² limits for new observations."
 	}
 	d.T2QFig = Figure{Stem: "new-t2-q", Alt: "Hotelling T² against Q for the new samples",
 		Caption: "Hotelling T² against the Q residual of the new samples, with the limits of the training model at 95 % (dashed) and 99 % (solid)."}
@@ -414,14 +414,14 @@ func applyScoresFigure(run ApplyRun) drawing {
 		}
 		p := newPlot("New samples on PC1", "new sample (input order)", "PC1")
 		p.Add(guides{})
+		ann := &labeller{}
 		if lim := analysis.T2LimitNew(m.Input.Rows, 1, analysis.Conf95); !math.IsNaN(lim) {
-			addLimitPair(p, math.Sqrt(lim*m.Eigenvalues[0]))
+			addLimitPair(p, ann, math.Sqrt(lim*m.Eigenvalues[0]))
 		}
 		left := addGroupedPoints(p, app.Table, x, y)
-		if l := labelPoints(app.Table.IDs, app.Flagged, x, y); l != nil {
-			p.Add(l)
-		}
-		dr := drawing{plot: p, w: figWidth, h: figHeight, legendOutside: true}
+		ann.addPoints(x, y, vg.Points(sampleRadius))
+		nameSamples(ann, app.Table.IDs, app.Flagged, x, y, beyond99)
+		dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann}
 		dr.leaveOut(left, "sample")
 		return dr
 	}
@@ -456,10 +456,10 @@ func applyScoresFigure(run ApplyRun) drawing {
 	if app.Table.GroupColumn == "" {
 		p.Legend.Add("new samples", plotThumb{groupStyle(0)})
 	}
-	if l := labelPoints(app.Table.IDs, app.Flagged, x, y); l != nil {
-		p.Add(l)
-	}
-	dr := drawing{plot: p, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	ann := &labeller{}
+	ann.addPoints(x, y, vg.Points(sampleRadius))
+	nameSamples(ann, app.Table.IDs, app.Flagged, x, y, beyond99)
+	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann}
 	dr.leaveOut(left, "sample")
 	return dr
 }
@@ -522,7 +522,7 @@ func contributionFigure(app *analysis.Application, c analysis.Contribution) draw
 	pl.Legend.Add("share of Q", swatchThumb{mainColor})
 	pl.Legend.Add("share of T²", swatchThumb{accent95})
 	h := vg.Length(2.4+0.5*float64(shown)) * vg.Centimeter
-	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter), legendOutside: true}
+	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter)}
 	dr.leaveOut(left, "variable")
 	return dr
 }

@@ -18,7 +18,6 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
-	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
@@ -36,6 +35,10 @@ type Figure struct {
 	// Omitted, when set, says why the figure could not be drawn; the
 	// report shows that sentence in its place.
 	Omitted string
+	// TableHeader and TableRows, when set, list below the caption what the
+	// figure does not name (the biplot's unlabelled arrows).
+	TableHeader []string
+	TableRows   [][]string
 }
 
 // PNG and SVG are the figure's paths relative to the report.
@@ -51,9 +54,12 @@ type drawing struct {
 	plot        *plot.Plot
 	w, h        vg.Length
 	rightMargin vg.Length
-	// legendOutside draws the legend in a column right of the plot, for
-	// plots whose data fill the whole field.
-	legendOutside bool
+	// ann places the figure's text labels and records the layout; nil
+	// for a figure without labels.
+	ann *labeller
+	// table, when set, lists what the figure could not name, given how
+	// many names it drew; the report prints it below the caption.
+	table func(named int) (header []string, rows [][]string)
 	// equalAspect gives both axes the same scale, so that distances and
 	// angles in the plane read true (score plots, biplots).
 	equalAspect bool
@@ -114,7 +120,9 @@ func equalise(p *plot.Plot, c draw.Canvas) {
 }
 
 // draw draws the figure on c. A panic inside gonum/plot becomes an error:
-// a figure must never take the report down with it.
+// a figure must never take the report down with it. The legend, if any,
+// goes in a column right of the plot (and of its second axis), so that it
+// never covers data; the labeller then names what it can.
 func (d drawing) draw(c vg.CanvasSizer) (err error) {
 	defer func() {
 		if r := recover(); r != nil {
@@ -122,21 +130,15 @@ func (d drawing) draw(c vg.CanvasSizer) (err error) {
 		}
 	}()
 	dc := draw.New(c)
-	if !d.legendOutside {
-		field := draw.Crop(dc, 0, -d.rightMargin, 0, 0)
-		if d.equalAspect {
-			equalise(d.plot, field)
-		}
-		if err := drawable(d.plot, field); err != nil {
-			return err
-		}
-		d.plot.Draw(field)
-		return nil
-	}
 	legend := d.plot.Legend
-	d.plot.Legend = plot.NewLegend()
-	defer func() { d.plot.Legend = legend }()
-	width := legend.Rectangle(dc).Size().X + vg.Points(10)
+	size := legend.Rectangle(dc).Size()
+	hasLegend := size.X > 0 && size.Y > 0
+	width := d.rightMargin
+	if hasLegend {
+		d.plot.Legend = plot.NewLegend()
+		defer func() { d.plot.Legend = legend }()
+		width += size.X + vg.Points(10)
+	}
 	field := draw.Crop(dc, 0, -width, 0, 0)
 	if d.equalAspect {
 		equalise(d.plot, field)
@@ -145,9 +147,18 @@ func (d drawing) draw(c vg.CanvasSizer) (err error) {
 		return err
 	}
 	d.plot.Draw(field)
-	legend.Left, legend.Top = true, true
-	strip := draw.Crop(dc, dc.Max.X-dc.Min.X-width+vg.Points(8), 0, 0, -vg.Points(28))
-	legend.Draw(strip)
+	var box vg.Rectangle
+	if hasLegend {
+		legend.Left, legend.Top, legend.YOffs = true, true, 0
+		strip := draw.Crop(dc, dc.Max.X-dc.Min.X-width+d.rightMargin+vg.Points(8), 0, 0, -vg.Points(28))
+		legend.Draw(strip)
+		box = vg.Rectangle{Min: vg.Point{X: strip.Min.X, Y: strip.Max.Y - size.Y}, Max: vg.Point{X: strip.Min.X + size.X, Y: strip.Max.Y}}
+	}
+	if d.ann != nil {
+		data := d.plot.DataCanvas(field)
+		trX, trY := d.plot.Transforms(&data)
+		d.ann.place(dc, data, trX, trY, box)
+	}
 	return nil
 }
 
@@ -228,31 +239,54 @@ func (nullCanvas) Fill(vg.Path)                           {}
 func (nullCanvas) FillString(font.Face, vg.Point, string) {}
 func (nullCanvas) DrawImage(vg.Rectangle, image.Image)    {}
 
-// build makes the job's drawing, with a panic inside it made an error.
-func (job figureJob) build() (d drawing, err error) {
+// build makes the job's drawing, the i-th figure of its report, with a
+// panic inside it made an error.
+//
+// Each figure is one pixel wider than the one before. fpdf writes image
+// objects sorted by pixel width and leaves ties in map order, which would
+// make the PDF's bytes differ from run to run; distinct widths make the
+// order, and so the file, reproducible. One pixel at 300 dpi is 0.08 mm.
+// prepareFigures draws at the same width as saveFigures, so that the
+// labels it counts for the caption are the labels in the file.
+func (job figureJob) build(i int) (d drawing, err error) {
 	defer func() {
 		if r := recover(); r != nil {
 			err = fmt.Errorf("the plotting library failed: %v", r)
 		}
 	}()
-	return job.drawing(), nil
+	d = job.drawing()
+	d.w += vg.Length(i) * vg.Inch / figureDPI
+	return d, nil
 }
 
 // prepareFigures draws every figure into a nullCanvas, before the Markdown
 // is written: a figure that cannot be drawn is marked Omitted with the
-// reason, and the caption of one that left items out says how many. The
-// drawings are made again when the files are written (saveFigures) rather
-// than kept, so that the figures of a large table are never all in memory
-// at once; they are deterministic, so the second drawing is the first.
+// reason, the caption of one that left items out says how many, and the
+// caption says which samples or variables the figure names. The drawings
+// are made again when the files are written (saveFigures) rather than
+// kept, so that the figures of a large table are never all in memory at
+// once; they are deterministic, so the second drawing is the first.
 func prepareFigures(jobs []figureJob) {
-	for _, job := range jobs {
-		d, err := job.build()
+	for i, job := range jobs {
+		d, err := job.build(i)
 		if err == nil {
 			err = d.draw(nullCanvas{d.w, d.h})
 		}
 		if err != nil {
 			job.fig.Omitted = fmt.Sprintf("The figure “%s” is left out: %s.", job.fig.Alt, strings.TrimSuffix(err.Error(), "."))
 			continue
+		}
+		if d.ann != nil && d.ann.note != nil {
+			if note := d.ann.note(d.ann.placed); note != "" {
+				job.fig.Caption += " " + note
+			}
+		}
+		if d.table != nil {
+			named := 0
+			if d.ann != nil {
+				named = d.ann.placed
+			}
+			job.fig.TableHeader, job.fig.TableRows = d.table(named)
 		}
 		if d.left > 0 {
 			what := d.what
@@ -266,11 +300,6 @@ func prepareFigures(jobs []figureJob) {
 
 // saveFigures renders every figure of the document into dir/figures, as
 // PNG (for the PDF and the Markdown) and SVG (for the HTML).
-//
-// Each figure is one pixel wider than the one before. fpdf writes image
-// objects sorted by pixel width and leaves ties in map order, which would
-// make the PDF's bytes differ from run to run; distinct widths make the
-// order, and so the file, reproducible. One pixel at 300 dpi is 0.08 mm.
 func (d *Document) saveFigures(dir string) error { return saveFigures(d.figures, dir, true, true) }
 
 // saveFigures renders the PNG files, the SVG files or both, leaving out the
@@ -280,9 +309,8 @@ func saveFigures(figures []figureJob, dir string, pngToo, svgToo bool) error {
 		if job.fig.Omitted != "" {
 			continue
 		}
-		dr, err := job.build()
+		dr, err := job.build(i)
 		if err == nil {
-			dr.w += vg.Length(i) * vg.Inch / figureDPI
 			err = dr.saveAs(dir, job.fig.Stem, pngToo, svgToo)
 		}
 		if err != nil {
@@ -400,8 +428,6 @@ func screeFigure(res *analysis.Result) drawing {
 	addScatter(p, idx[:kept], obs[:kept], draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(3)}, "observed, retained")
 	addScatter(p, idx[kept:], obs[kept:], draw.GlyphStyle{Color: mainColor, Shape: draw.RingGlyph{}, Radius: vg.Points(3)}, "observed, not retained")
 	p.Add(secondAxis{scale: p.Y.Max / 100, ticks: []float64{0, 25, 50, 75, 100}, unit: " %", label: "cumulative share of variance"})
-	// Below the cumulative curve, which fills the top right.
-	p.Legend.YOffs = -figHeight * 0.22
 	dr := drawing{plot: p, w: figWidth, h: figHeight, rightMargin: vg.Points(52)}
 	dr.leaveOut(left, "component")
 	return dr
@@ -555,54 +581,72 @@ func flaggedSamples(res *analysis.Result) []int {
 // labelledSamples is how many flagged samples a figure names at most.
 const labelledSamples = 15
 
-func sampleLabels(res *analysis.Result, x, y []float64) *plotter.Labels {
-	return labelPoints(res.Table.IDs, flaggedSamples(res), x, y)
-}
+// beyond99 says which samples flaggedSamples returns, for captions.
+const beyond99 = "beyond a 99 % limit of T² or Q"
 
-// labelPoints names the flagged points (most extreme first, at most
-// labelledSamples of them) that have a place in the figure.
-func labelPoints(ids []string, flagged []int, x, y []float64) *plotter.Labels {
-	var lx, ly []float64
-	var names []string
+// nameSamples gives the labeller the names of the flagged points (most
+// extreme first, at most labelledSamples of them) that have a place in the
+// figure, and the caption sentence that says how many it drew of how many
+// samples are beyond, in the words of beyond.
+func nameSamples(ann *labeller, ids []string, flagged []int, x, y []float64, beyond string) {
 	for _, i := range flagged {
-		if len(names) == labelledSamples {
+		if len(ann.names) == labelledSamples {
 			break
 		}
 		if !isFinite(x[i]) || !isFinite(y[i]) {
 			continue
 		}
-		lx, ly = append(lx, x[i]), append(ly, y[i])
-		names = append(names, figureText(ids[i], maxLabelRunes))
+		ann.names = append(ann.names, pointLabel{x: x[i], y: y[i], text: figureText(ids[i], maxLabelRunes), color: accent99, gap: vg.Points(3)})
 	}
-	if len(names) == 0 {
-		return nil
+	total := len(flagged)
+	ann.note = func(named int) string { return namedNote(named, total, beyond) }
+}
+
+// namedNote is the caption's sentence on the names a figure drew: named
+// of the total samples beyond, most extreme first.
+func namedNote(named, total int, beyond string) string {
+	switch {
+	case total == 0:
+		return fmt.Sprintf("No sample is %s, so none is named.", beyond)
+	case named == 0:
+		if total == 1 {
+			return fmt.Sprintf("1 sample is %s: the figure has no room to name it.", beyond)
+		}
+		return fmt.Sprintf("%d samples are %s: the figure has no room to name them.", total, beyond)
+	case named == total && total == 1:
+		return fmt.Sprintf("The one sample %s is named.", beyond)
+	case named == total:
+		return fmt.Sprintf("The %d samples %s are named.", total, beyond)
+	case named == 1:
+		return fmt.Sprintf("The most extreme of the %d samples %s is named.", total, beyond)
 	}
-	l, err := plotter.NewLabels(plotter.XYLabels{XYs: xyPairs(lx, ly), Labels: names})
-	if err != nil {
-		return nil // cannot happen for finite points; draw no names
+	return fmt.Sprintf("The %d most extreme of the %d samples %s are named.", named, total, beyond)
+}
+
+// groupNote states in the caption that every group is drawn with filled
+// marks, the convention hollow marks are set against in the other figures.
+func groupNote(ann *labeller, t *analysis.Table) {
+	if groups, _ := groupsOf(t); len(groups) < 2 || len(groups) > maxColouredGroups {
+		return
 	}
-	for i := range l.TextStyle {
-		l.TextStyle[i] = text.Style{Color: accent99, Font: textFont(6.5, false), Handler: plot.DefaultTextHandler, XAlign: text.XLeft, YAlign: text.YBottom}
+	named := ann.note
+	ann.note = func(k int) string {
+		return "Every group is drawn with filled marks, told apart by colour and shape. " + named(k)
 	}
-	l.Offset = vg.Point{X: vg.Points(3), Y: vg.Points(2)}
-	return l
 }
 
 // maxLabelRunes is the longest sample id or variable name a figure prints;
 // longer ones are cut with an ellipsis (tables and CSV files keep them).
 const maxLabelRunes = 28
 
-func xyPairs(x, y []float64) plotter.XYs {
-	out := make(plotter.XYs, len(x))
-	for i := range x {
-		out[i].X, out[i].Y = x[i], y[i]
-	}
-	return out
-}
+// sampleRadius is the largest glyph radius of a sample in a score plot;
+// the labeller keeps names and the legend clear of it.
+const sampleRadius = 2.6
 
 // addGroupedPoints draws the samples, one series per group (colour and
-// shape), or all alike beyond maxColouredGroups. It returns how many
-// samples it left out because a coordinate is not a finite number.
+// shape, every mark filled), or all alike beyond maxColouredGroups. It
+// returns how many samples it left out because a coordinate is not a
+// finite number.
 func addGroupedPoints(p *plot.Plot, t *analysis.Table, x, y []float64) int {
 	groups, of := groupsOf(t)
 	if groups == nil || len(groups) > maxColouredGroups {
@@ -670,10 +714,11 @@ func scoresFigure(res *analysis.Result, a, b int) drawing {
 		addEllipse(p, math.Sqrt(lim*ev[a]), math.Sqrt(lim*ev[b]), "95 % Hotelling T² ellipse")
 	}
 	left := addGroupedPoints(p, res.Table, x, y)
-	if l := sampleLabels(res, x, y); l != nil {
-		p.Add(l)
-	}
-	dr := drawing{plot: p, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	ann := &labeller{}
+	ann.addPoints(x, y, vg.Points(sampleRadius))
+	nameSamples(ann, res.Table.IDs, flaggedSamples(res), x, y, beyond99)
+	groupNote(ann, res.Table)
+	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann}
 	dr.leaveOut(left, "sample")
 	return dr
 }
@@ -688,34 +733,42 @@ func indexScoresFigure(res *analysis.Result) drawing {
 	}
 	p := newPlot("Scores on PC1 in sample order", "sample (input order)", componentLabel(res, 0))
 	p.Add(guides{})
+	ann := &labeller{}
 	if lim := analysis.T2LimitModel(n, 1, analysis.Conf95); !math.IsNaN(lim) {
-		addLimitPair(p, math.Sqrt(lim*res.Decomp.Eigenvalues[0]))
+		addLimitPair(p, ann, math.Sqrt(lim*res.Decomp.Eigenvalues[0]))
 	}
 	left := addGroupedPoints(p, res.Table, x, y)
-	if l := sampleLabels(res, x, y); l != nil {
-		p.Add(l)
-	}
-	dr := drawing{plot: p, w: figWidth, h: figHeight, legendOutside: true}
+	ann.addPoints(x, y, vg.Points(sampleRadius))
+	nameSamples(ann, res.Table.IDs, flaggedSamples(res), x, y, beyond99)
+	groupNote(ann, res.Table)
+	dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann}
 	dr.leaveOut(left, "sample")
 	return dr
 }
 
-// addLimitPair draws the 95 % limit ±r of one component's scores, unless r
-// is not a finite number.
-func addLimitPair(p *plot.Plot, r float64) {
+// addLimitPair draws the 95 % limits ±r of one component's scores, each
+// named, unless r is not a finite number.
+func addLimitPair(p *plot.Plot, ann *labeller, r float64) {
 	if isFinite(r) {
-		p.Add(refLine{at: r, style: lineStyle(accent95, 1, 4, 2), label: "95 % limit"}, refLine{at: -r, style: lineStyle(accent95, 1, 4, 2)})
+		ann.addRef(p, refLine{at: r, style: lineStyle(accent95, 1, 4, 2), label: "+95 % limit"})
+		ann.addRef(p, refLine{at: -r, style: lineStyle(accent95, 1, 4, 2), label: "−95 % limit"})
 	}
 }
 
 // biplotVariables is the most variables a biplot draws.
 const biplotVariables = 30
 
+// biplotLabels is the most arrows a biplot names: the longest ones. More
+// names than this crowd one another into a cluster of leader lines; the
+// table below the figure lists the rest.
+const biplotLabels = 15
+
 // biplotFigure is Gabriel's (1971, Biometrika 58:453–467) biplot of PC1 and
 // PC2 in its column-metric form: samples at their standardised scores
 // t_ia/√λ_a, variables as arrows to v_ja·√λ_a (for unit-scaled data, the
 // correlation of the variable with the component), arrows stretched by one
-// common factor to the extent of the samples.
+// common factor to the extent of the samples. The longest arrows are named
+// at their tips; the table lists the others.
 func biplotFigure(res *analysis.Result) drawing {
 	n, p := res.Decomp.Rows, res.Decomp.Vars
 	ev := res.Decomp.Eigenvalues
@@ -728,8 +781,12 @@ func biplotFigure(res *analysis.Result) drawing {
 			reach = math.Max(reach, r)
 		}
 	}
-	var ax, ay []float64
-	var labels []string
+	type arrow struct {
+		j      int
+		u, w   float64 // loading × √eigenvalue on PC1 and PC2
+		length float64
+	}
+	var all []arrow
 	longest := 0.0
 	for j := 0; j < p; j++ {
 		u := res.Decomp.Loadings.At(j, 0) * math.Sqrt(ev[0])
@@ -737,25 +794,50 @@ func biplotFigure(res *analysis.Result) drawing {
 		if !isFinite(u) || !isFinite(w) {
 			continue
 		}
-		ax, ay = append(ax, u), append(ay, w)
-		labels = append(labels, figureText(res.Table.Variables[j], maxLabelRunes))
+		all = append(all, arrow{j, u, w, math.Hypot(u, w)})
 		longest = math.Max(longest, math.Hypot(u, w))
 	}
+	// Longest first; ties keep the variables' order.
+	slices.SortStableFunc(all, func(a, b arrow) int { return cmp.Compare(b.length, a.length) })
 	stretch := 1.0
 	if longest > 0 {
 		stretch = 0.8 * reach / longest
 	}
-	for j := range ax {
-		ax[j] *= stretch
-		ay[j] *= stretch
-	}
 	pl := newPlot("Biplot, PC1 and PC2", componentLabel(res, 0)+" (standardised scores)", componentLabel(res, 1)+" (standardised scores)")
 	pl.Add(guides{})
 	left := addGroupedPoints(pl, res.Table, x, y)
-	pl.Add(arrows{x: ax, y: ay, labels: labels})
-	dr := drawing{plot: pl, w: figWidth, h: figTall, legendOutside: true, equalAspect: true}
+	ann := &labeller{}
+	ann.addPoints(x, y, vg.Points(sampleRadius))
+	var ar arrows
+	for k, a := range all {
+		ax, ay := a.u*stretch, a.w*stretch
+		ar.x, ar.y = append(ar.x, ax), append(ar.y, ay)
+		ann.arrows = append(ann.arrows, dataArrow{ax, ay})
+		if k < biplotLabels {
+			ann.names = append(ann.names, pointLabel{x: ax, y: ay, text: figureText(res.Table.Variables[a.j], maxLabelRunes), color: accent99, gap: vg.Points(1), outward: true})
+		}
+	}
+	pl.Add(ar)
+	total := len(all)
+	ann.note = func(named int) string {
+		if named == total {
+			return "Every arrow is named."
+		}
+		return fmt.Sprintf("The %d longest arrows are named; the table below lists the other %d variables, longest arrow first.", named, total-named)
+	}
+	dr := drawing{plot: pl, w: figWidth, h: figTall, equalAspect: true, ann: ann}
+	dr.table = func(named int) ([]string, [][]string) {
+		if named >= total {
+			return nil, nil
+		}
+		var rows [][]string
+		for _, a := range all[named:] {
+			rows = append(rows, []string{res.Table.Variables[a.j], g4(a.u), g4(a.w), g4(a.length)})
+		}
+		return []string{"Variable not named in the biplot", "PC1 arrow (loading × √λ)", "PC2 arrow (loading × √λ)", "Arrow length"}, rows
+	}
 	dr.leaveOut(left, "sample")
-	dr.leaveOut(p-len(ax), "variable")
+	dr.leaveOut(p-len(all), "variable")
 	return dr
 }
 
@@ -764,28 +846,17 @@ func t2qFigure(res *analysis.Result) drawing {
 	return t2qDrawing("Hotelling T² against Q residual", s.T2, s.Q, s.Limits, flaggedSamples(res), res.Table.IDs)
 }
 
-// t2qDrawing plots T² against Q with the 95 % and 99 % limits, flagged
-// samples marked and named.
+// t2qDrawing plots T² against Q with the 95 % and 99 % limits, each named,
+// flagged samples marked and the most extreme of them named.
 func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []int, ids []string) drawing {
 	pl := newPlot(title, "Hotelling T²", "Q residual")
 	pl.Add(guides{})
-	for _, r := range []refLine{
-		{vertical: true, at: l.T2_95, style: lineStyle(accent95, 1, 4, 2), label: "T² 95 %"},
-		{vertical: true, at: l.T2_99, style: lineStyle(accent99, 1), label: "T² 99 %"},
-	} {
-		if isFinite(r.at) {
-			pl.Add(r)
-		}
-	}
+	ann := &labeller{}
+	ann.addRef(pl, refLine{vertical: true, at: l.T2_95, style: lineStyle(accent95, 1, 4, 2), label: "T² 95 %"})
+	ann.addRef(pl, refLine{vertical: true, at: l.T2_99, style: lineStyle(accent99, 1), label: "T² 99 %"})
 	if l.QMethod != analysis.QNone {
-		for _, r := range []refLine{
-			{at: l.Q95, style: lineStyle(accent95, 1, 4, 2), label: "Q 95 %"},
-			{at: l.Q99, style: lineStyle(accent99, 1), label: "Q 99 %"},
-		} {
-			if isFinite(r.at) {
-				pl.Add(r)
-			}
-		}
+		ann.addRef(pl, refLine{at: l.Q95, style: lineStyle(accent95, 1, 4, 2), label: "Q 95 %"})
+		ann.addRef(pl, refLine{at: l.Q99, style: lineStyle(accent99, 1), label: "Q 99 %"})
 	}
 	flagged := map[int]bool{}
 	for _, i := range flaggedIdx {
@@ -801,11 +872,15 @@ func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []i
 	}
 	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the 99 % limits")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "beyond a 99 % limit")
-	if lab := labelPoints(ids, flaggedIdx, t2, q); lab != nil {
-		pl.Add(lab)
+	ann.addPoints(ix, iy, vg.Points(2.2))
+	ann.addPoints(fx, fy, vg.Points(3))
+	nameSamples(ann, ids, flaggedIdx, t2, q, "beyond a 99 % limit")
+	named := ann.note
+	ann.note = func(k int) string {
+		return "Hollow grey rings: samples within both 99 % limits; filled red triangles: samples beyond one. " + named(k)
 	}
 	pl.X.Min, pl.Y.Min = 0, 0
-	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann}
 	dr.leaveOut(left+l2, "sample")
 	return dr
 }
@@ -820,8 +895,9 @@ func influenceFigure(res *analysis.Result) drawing {
 	pl := newPlot("Influence of each sample on the retained subspace", "sample (input order)", "angle without the sample (°)")
 	pl.Add(guides{})
 	pl.X.Tick.Marker = integerTicks{}
+	ann := &labeller{}
 	if lim := analysis.InfluenceLimit(res.Stability); isFinite(lim) {
-		pl.Add(refLine{at: lim, style: lineStyle(accent95, 1, 4, 2), label: "bootstrap 95th percentile"})
+		ann.addRef(pl, refLine{at: lim, style: lineStyle(accent95, 1, 4, 2), label: "bootstrap 95th percentile"})
 	}
 	var flagged []int
 	var ix, iy, fx, fy []float64
@@ -838,11 +914,15 @@ func influenceFigure(res *analysis.Result) drawing {
 	slices.SortStableFunc(flagged, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
 	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the bootstrap's range")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "turns the model more")
-	if lab := labelPoints(res.Table.IDs, flagged, x, inf.Angle); lab != nil {
-		pl.Add(lab)
+	ann.addPoints(ix, iy, vg.Points(2.2))
+	ann.addPoints(fx, fy, vg.Points(3))
+	nameSamples(ann, res.Table.IDs, flagged, x, inf.Angle, "beyond their own yardstick")
+	named := ann.note
+	ann.note = func(k int) string {
+		return "Hollow grey rings: samples within the yardstick; filled red triangles: samples beyond it. " + named(k)
 	}
 	pl.Y.Min = 0
-	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann}
 	dr.leaveOut(left+l2, "sample")
 	return dr
 }
@@ -879,11 +959,12 @@ func congruenceFigure(res *analysis.Result) drawing {
 		pl.Add(b)
 	}
 	pl.NominalX(names...)
-	pl.Add(refLine{at: 0.95, style: lineStyle(accent95, 1, 4, 2), label: "0.95 equal"})
-	pl.Add(refLine{at: 0.85, style: lineStyle(accent99, 1), label: "0.85 fair"})
+	ann := &labeller{}
+	ann.addRef(pl, refLine{at: 0.95, style: lineStyle(accent95, 1, 4, 2), label: "0.95 equal"})
+	ann.addRef(pl, refLine{at: 0.85, style: lineStyle(accent99, 1), label: "0.85 fair"})
 	pl.Y.Min = math.Min(lo, 0.8) - 0.02
 	pl.Y.Max = 1.005
-	dr := drawing{plot: pl, w: figWidth, h: figHeight}
+	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann}
 	dr.leaveOut(left, "resample value")
 	return dr
 }

@@ -198,7 +198,11 @@ func renderTemplate(name string, data any) ([]byte, error) {
 				return "*" + escapeMarkdown(f.Omitted) + "*\n"
 			}
 			figureNo++
-			return fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
+			out := fmt.Sprintf("![%s](%s)\n\n*Figure %d. %s*\n", escapeMarkdown(f.Alt), f.PNG(), figureNo, escapeMarkdown(f.Caption))
+			if len(f.TableRows) > 0 {
+				out += "\n" + markdownTable(f.TableHeader, f.TableRows)
+			}
+			return out
 		},
 	}
 	// checks.md.tmpl defines the parts every report shares.

@@ -659,13 +659,13 @@ func scoresBlock(res *analysis.Result) ScoresBlock {
 	}
 	if res.Retained == 1 {
 		b.Figures = []Figure{{Stem: "scores-pc1", Alt: "PC1 scores in sample order",
-			Caption: fmt.Sprintf("Scores on PC1 in input order (%s), with the 95 %% Hotelling T² limit for one component; samples beyond a 99 %% limit of T² or Q are named.", group)}}
+			Caption: fmt.Sprintf("Scores on PC1 in input order (%s), with the 95 %% Hotelling T² limit for one component.", group)}}
 		b.Note = "Only one component is retained, so its scores are shown against the sample order."
 	}
 	for _, pr := range scorePairs(res.Retained) {
 		b.Figures = append(b.Figures, Figure{
 			Stem: fmt.Sprintf("scores-pc%d-pc%d", pr[0]+1, pr[1]+1), Alt: fmt.Sprintf("Scores, PC%d against PC%d", pr[1]+1, pr[0]+1),
-			Caption: fmt.Sprintf("Scores on PC%d and PC%d (%s) with the 95 %% Hotelling T² ellipse for these two components; samples beyond a 99 %% limit of T² or Q are named.", pr[0]+1, pr[1]+1, group),
+			Caption: fmt.Sprintf("Scores on PC%d and PC%d (%s) with the 95 %% Hotelling T² ellipse for these two components.", pr[0]+1, pr[1]+1, group),
 		})
 	}
 	if res.Retained >= 2 && res.Decomp.Vars <= biplotVariables {
@@ -694,11 +694,11 @@ func outliersBlock(res *analysis.Result) OutliersBlock {
 	b.Limits = fmt.Sprintf("Hotelling T² %s (95 %%) and %s (99 %%), beta form of Tracy, Young & Mason (1992) for the samples that built the model; %s; leverage %s = 3(k+1)/n.",
 		g4(l.T2_95), g4(l.T2_99), qText, g4(l.Leverage))
 	b.Figure = Figure{Stem: "t2-q", Alt: "Hotelling T² against Q residual",
-		Caption: "Hotelling T² (distance within the model) against the Q residual (distance from it), with the 95 % (dashed) and 99 % (solid) limits; samples beyond a 99 % limit are named."}
+		Caption: "Hotelling T² (distance within the model) against the Q residual (distance from it), with the 95 % (dashed) and 99 % (solid) limits."}
 	if s.Influence.Angle != nil {
 		yard := "no bootstrap line: the bootstrap was turned off"
 		if !math.IsNaN(analysis.InfluenceLimit(res.Stability)) {
-			yard = "dashed line: the 95th percentile of the bootstrap subspace angles; samples beyond the 95th percentile of the angles of the resamples that drew them are marked and named"
+			yard = "dashed line: the 95th percentile of the bootstrap subspace angles; each sample's own yardstick is the 95th percentile of the angles of the resamples that drew it"
 		}
 		b.Influence = &Figure{Stem: "influence", Alt: "Influence of each sample on the retained subspace",
 			Caption: "Influence: for each sample in input order, the largest principal angle (degrees) between the retained subspace and the one refitted without that sample, preprocessing included; " + yard + "."}

@@ -29,8 +29,9 @@ func (guides) Plot(c draw.Canvas, plt *plot.Plot) {
 	}
 }
 
-// refLine is a vertical or horizontal reference line across the data area,
-// with an optional label at its end.
+// refLine is a vertical or horizontal reference line across the data area.
+// Its name is placed by the figure's labeller (labeller.addRef), which
+// keeps it clear of the other names and inside the data area.
 type refLine struct {
 	vertical bool
 	at       float64
@@ -40,22 +41,13 @@ type refLine struct {
 
 func (r refLine) Plot(c draw.Canvas, plt *plot.Plot) {
 	trX, trY := plt.Transforms(&c)
-	ts := draw.TextStyle{Color: r.style.Color, Font: textFont(7, false), Handler: plot.DefaultTextHandler}
 	if r.vertical {
 		x := trX(r.at)
 		c.StrokeLine2(r.style, x, c.Min.Y, x, c.Max.Y)
-		if r.label != "" {
-			ts.XAlign, ts.YAlign = text.XLeft, text.YTop
-			c.FillText(ts, vg.Point{X: x + vg.Points(2), Y: c.Max.Y}, r.label)
-		}
 		return
 	}
 	y := trY(r.at)
 	c.StrokeLine2(r.style, c.Min.X, y, c.Max.X, y)
-	if r.label != "" {
-		ts.XAlign, ts.YAlign = text.XRight, text.YBottom
-		c.FillText(ts, vg.Point{X: c.Max.X, Y: y + vg.Points(1)}, r.label)
-	}
 }
 
 func (r refLine) DataRange() (xmin, xmax, ymin, ymax float64) {
@@ -141,35 +133,22 @@ func (h hbars) DataRange() (xmin, xmax, ymin, ymax float64) {
 	return xmin, xmax, -0.6, float64(len(h.values)) - 0.4
 }
 
-// arrows draws lines from the origin to each point, with a label at the tip.
+// arrows draws lines from the origin to each point, with a head at the
+// tip; the figure's labeller names them.
 type arrows struct {
-	x, y   []float64
-	labels []string
+	x, y []float64
 }
 
 func (a arrows) Plot(c draw.Canvas, plt *plot.Plot) {
 	trX, trY := plt.Transforms(&c)
 	ls := lineStyle(accent99, 0.8)
-	ts := draw.TextStyle{Color: accent99, Font: textFont(7, false), Handler: plot.DefaultTextHandler}
-	ox, oy := trX(0), trY(0)
+	o := vg.Point{X: trX(0), Y: trY(0)}
 	for i := range a.x {
-		tx, ty := trX(a.x[i]), trY(a.y[i])
-		c.StrokeLine2(ls, ox, oy, tx, ty)
-		// Arrow head: two short strokes back from the tip.
-		ang := math.Atan2(float64(ty-oy), float64(tx-ox))
-		for _, d := range []float64{0.45, -0.45} {
-			hx := tx - vg.Points(5)*vg.Length(math.Cos(ang+d))
-			hy := ty - vg.Points(5)*vg.Length(math.Sin(ang+d))
-			c.StrokeLine2(ls, tx, ty, hx, hy)
+		t := vg.Point{X: trX(a.x[i]), Y: trY(a.y[i])}
+		c.StrokeLine2(ls, o.X, o.Y, t.X, t.Y)
+		for _, h := range arrowHead(o, t) {
+			c.StrokeLine2(ls, t.X, t.Y, h.X, h.Y)
 		}
-		ts.XAlign, ts.YAlign = text.XLeft, text.YBottom
-		if a.x[i] < 0 {
-			ts.XAlign = text.XRight
-		}
-		if a.y[i] < 0 {
-			ts.YAlign = text.YTop
-		}
-		c.FillText(ts, vg.Point{X: tx, Y: ty}, a.labels[i])
 	}
 }
 
@@ -180,6 +159,59 @@ func (a arrows) DataRange() (xmin, xmax, ymin, ymax float64) {
 		xmin, xmax = math.Min(xmin, a.x[i]), math.Max(xmax, a.x[i])
 		ymin, ymax = math.Min(ymin, a.y[i]), math.Max(ymax, a.y[i])
 	}
-	padX, padY := 0.35*(xmax-xmin), 0.1*(ymax-ymin)
+	padX, padY := 0.35*(xmax-xmin), 0.15*(ymax-ymin)
 	return xmin - padX, xmax + padX, ymin - padY, ymax + padY
+}
+
+// filledGlyph is a filled polygon marker: a regular polygon of n corners
+// (the first at angle rot, in radians from the right), or, with inner > 0,
+// a star whose inner corners sit at inner times the radius. gonum/plot has
+// three filled markers only; the groups of a score plot need eight shapes
+// that all keep the one convention, filled.
+type filledGlyph struct {
+	n     int
+	rot   float64
+	scale float64 // radius relative to the style's, to match the circle's weight
+	inner float64
+}
+
+func (g filledGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r := float64(sty.Radius) * g.scale
+	corners := g.n
+	if g.inner > 0 {
+		corners *= 2
+	}
+	var p vg.Path
+	for k := 0; k < corners; k++ {
+		rk := r
+		if g.inner > 0 && k%2 == 1 {
+			rk = r * g.inner
+		}
+		th := g.rot + 2*math.Pi*float64(k)/float64(corners)
+		q := vg.Point{X: pt.X + vg.Length(rk*math.Cos(th)), Y: pt.Y + vg.Length(rk*math.Sin(th))}
+		if k == 0 {
+			p.Move(q)
+		} else {
+			p.Line(q)
+		}
+	}
+	p.Close()
+	c.Fill(p)
+}
+
+// crossGlyph is a filled Greek cross: two bars a third of its width thick.
+type crossGlyph struct{}
+
+func (crossGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r, t := sty.Radius*1.1, sty.Radius*0.4
+	var p vg.Path
+	for k, q := range [][2]vg.Length{{-t, r}, {t, r}, {t, t}, {r, t}, {r, -t}, {t, -t}, {t, -r}, {-t, -r}, {-t, -t}, {-r, -t}, {-r, t}, {-t, t}} {
+		if k == 0 {
+			p.Move(vg.Point{X: pt.X + q[0], Y: pt.Y + q[1]})
+		} else {
+			p.Line(vg.Point{X: pt.X + q[0], Y: pt.Y + q[1]})
+		}
+	}
+	p.Close()
+	c.Fill(p)
 }

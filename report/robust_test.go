@@ -145,7 +145,7 @@ func TestFiguresWithNonFiniteValues(t *testing.T) {
 		{"limits only", func(res *analysis.Result) {
 			res.Samples.Limits.T2_95, res.Samples.Limits.T2_99 = inf, nan
 			res.Samples.Limits.Q95, res.Samples.Limits.Q99 = nan, -inf
-		}, map[string]string{"t2-q": "samples beyond a 99 % limit are named."}, nil, Formats{Markdown: true}},
+		}, map[string]string{"t2-q": "99 % (solid) limits. Hollow grey rings"}, nil, Formats{Markdown: true}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -2,6 +2,7 @@ package report
 
 import (
 	"image/color"
+	"math"
 
 	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
@@ -42,9 +43,16 @@ var (
 		rgb(0x9B5A1E), // umber, mid-dark
 		rgb(0x7A8B8F), // slate, mid-light
 	}
+	// groupShapes are all filled: hollow marks mean something else in the
+	// figures (samples within the limits, training samples behind new
+	// ones), so every group keeps to the one convention.
 	groupShapes = []draw.GlyphDrawer{
-		draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.BoxGlyph{}, draw.RingGlyph{},
-		draw.PyramidGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}, draw.PlusGlyph{},
+		draw.CircleGlyph{}, draw.PyramidGlyph{}, draw.BoxGlyph{},
+		filledGlyph{n: 4, rot: math.Pi / 2, scale: 1.3},              // diamond
+		filledGlyph{n: 3, rot: -math.Pi / 2, scale: 1.3},             // triangle pointing down
+		filledGlyph{n: 5, rot: math.Pi / 2, scale: 1.5, inner: 0.45}, // star
+		crossGlyph{},
+		filledGlyph{n: 6, rot: 0, scale: 1.15}, // hexagon
 	}
 )
 
@@ -53,7 +61,8 @@ var (
 const maxColouredGroups = 16
 
 // groupStyle returns the glyph of group g: colour and shape cycle with
-// different periods, so the first 8 × 8 combinations are distinct.
+// different periods, so the first 8 × 8 combinations are distinct and the
+// first 8 groups differ in shape as well as colour (TestGroupStylesDiffer).
 func groupStyle(g int) draw.GlyphStyle {
 	return draw.GlyphStyle{
 		Color:  groupPalette[g%len(groupPalette)],
