@@ -521,7 +521,7 @@ func componentsBlock(res *analysis.Result) ComponentsBlock {
 		}
 		inForce := ""
 		if c.Rule == res.Rule.Kind {
-			inForce = "in force"
+			inForce = "yes"
 		}
 		b.Rules = append(b.Rules, []string{ruleName(c.Rule), count, note, inForce})
 	}
