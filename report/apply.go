@@ -512,19 +512,9 @@ func contributionFigure(app *analysis.Application, c analysis.Contribution) draw
 		names[row] = figureText(m.Variables[j], maxLabelRunes)
 	}
 	pl := newPlot("Contributions to the limits passed by "+figureText(app.Table.IDs[i], maxLabelRunes), "share of the sample's statistic", "")
-	if shown > 0 {
-		pl.Add(bars)
-		pl.NominalY(names...)
-	}
-	pl.Y.Tick.Label.Font = textFont(7.5, false)
-	pl.Y.LineStyle.Width = 0
-	pl.Y.Tick.LineStyle.Width = 0
 	pl.Legend.Add("share of Q", swatchThumb{mainColor})
 	pl.Legend.Add("share of T²", swatchThumb{accent95})
-	h := vg.Length(2.4+0.5*float64(shown)) * vg.Centimeter
-	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter)}
-	dr.leaveOut(left, "variable")
-	return dr
+	return namedBars(pl, bars, names, left, 2.4, 0.5)
 }
 
 // pairedBars draws two horizontal bars per row, the first above the second.

@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 
-	"gonum.org/v1/plot/vg"
 
 	"pcqc/analysis"
 )
@@ -28,17 +27,7 @@ func residualFigure(app *analysis.Application, c analysis.Contribution) drawing 
 		title += fmt.Sprintf(" (the %d largest of %d)", shown, finite)
 	}
 	pl := newPlot(title, residualUnit(app.Model.Scaling), "")
-	if shown > 0 {
-		pl.Add(bars)
-		pl.NominalY(names...)
-	}
-	pl.Y.Tick.Label.Font = textFont(7.5, false)
-	pl.Y.LineStyle.Width = 0
-	pl.Y.Tick.LineStyle.Width = 0
-	h := vg.Length(2.2+0.42*float64(shown)) * vg.Centimeter
-	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter)}
-	dr.leaveOut(left, "variable")
-	return dr
+	return namedBars(pl, bars, names, left, 2.2, 0.42)
 }
 
 // residualRows orders the finite residuals by size, largest first, and

@@ -537,14 +537,22 @@ func loadingsFigure(res *analysis.Result, a int) drawing {
 		title += fmt.Sprintf(" (the %d largest of %d)", shown, p)
 	}
 	pl := newPlot(title, "loading", "")
-	if shown > 0 {
+	return namedBars(pl, bars, names, left, 2.2, 0.42)
+}
+
+// namedBars finishes a figure of horizontal bars against named rows (the
+// variables of a loading, residual or contribution figure): the names on
+// the y axis without its line and ticks, a height of base + perRow
+// centimetres per row (at least 6 cm), and a note of the left rows.
+func namedBars(pl *plot.Plot, bars plot.Plotter, names []string, left int, base, perRow float64) drawing {
+	if len(names) > 0 {
 		pl.Add(bars)
 		pl.NominalY(names...)
 	}
 	pl.Y.Tick.Label.Font = textFont(7.5, false)
 	pl.Y.LineStyle.Width = 0
 	pl.Y.Tick.LineStyle.Width = 0
-	h := vg.Length(2.2+0.42*float64(shown)) * vg.Centimeter
+	h := vg.Length(base+perRow*float64(len(names))) * vg.Centimeter
 	dr := drawing{plot: pl, w: figWidth, h: max(h, 6*vg.Centimeter)}
 	dr.leaveOut(left, "variable")
 	return dr
