@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 
-
 	"pcqc/analysis"
 )
 
