@@ -375,7 +375,11 @@ func applyMethods(run ApplyRun, meta Meta) (string, []Reference) {
 		fmt.Fprintf(&b, " The new data lack the model variables %s, so no sample could be scored.", strings.Join(app.Missing, ", "))
 		return b.String(), c.references()
 	}
-	fmt.Fprintf(&b, " Values were preprocessed with the training means and scales, never re-estimated (%s), and projected on the training loadings.", transformText(m.Transform))
+	if m.Transform == analysis.TransformNone || m.Transform == "" {
+		b.WriteString(" Values were preprocessed with the training means and scales, never re-estimated, and projected on the training loadings.")
+	} else {
+		fmt.Fprintf(&b, " Values were transformed as in training (%s), preprocessed with the training means and scales, never re-estimated, and projected on the training loadings.", transformText(m.Transform))
+	}
 	l := app.Limits
 	fmt.Fprintf(&b, " Hotelling's T² (Hotelling 1931) was compared with the limit for new observations, k(n² − 1)/(n(n − k))·F(k, n − k) (Tracy et al. 1992; %s at 95 %%, %s at 99 %%), and the Q residual with the training limits (Jackson & Mudholkar 1979; %s and %s).",
 		g4(l.T2_95), g4(l.T2_99), g4(l.Q95), g4(l.Q99))
