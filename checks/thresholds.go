@@ -186,3 +186,17 @@ const (
 	// (common practice: the 3-sigma rule of control charts, Shewhart 1931).
 	ShiftLimit = 3.0
 )
+
+// Comparing two audits (pcqc compare).
+const (
+	// CompareCongruenceLimit is the congruence below which two paired
+	// components are not taken for the same when neither audit ran a
+	// bootstrap: Lorenzo-Seva & ten Berge (2006, Methodology 2:57–64) call
+	// 0.85–0.94 "fair similarity" and below 0.85 no similarity. With
+	// bootstraps in both audits the limit is resampling's own:
+	// 1 − φ ≈ θ²/2, and squared angles of two independent estimates add, so
+	// 1 − φ_limit = (1 − φ5_A) + (1 − φ5_B) from each audit's 5th
+	// percentile of bootstrap congruence (common practice of adding
+	// independent variances).
+	CompareCongruenceLimit = 0.85
+)
