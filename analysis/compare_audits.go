@@ -31,6 +31,10 @@ type SavedAudit struct {
 	// CongruenceP5 is, per retained component, the 5th percentile of the
 	// bootstrap congruence with the audit's own loadings; nil without one.
 	CongruenceP5 []float64
+	// AngleP95 is the 95th percentile of the bootstrap's largest principal
+	// angle to the audit's own retained subspace, in degrees; NaN without
+	// a bootstrap.
+	AngleP95 float64
 }
 
 // SavedCheck is one check's outcome as summary.json records it.
@@ -68,6 +72,9 @@ type savedSummary struct {
 			PercentHigh *float64 `json:"percent_ci_high"`
 		} `json:"eigenvalues"`
 	} `json:"stability"`
+	Limits *struct {
+		AngleP95 *float64 `json:"influence_p95_deg"`
+	} `json:"limits"`
 	Checks  []SavedCheck `json:"checks"`
 	Verdict string       `json:"verdict"`
 }
@@ -133,7 +140,10 @@ func LoadAudit(dir string) (*SavedAudit, error) {
 		}
 		seen[c.ID] = true
 	}
-	a := &SavedAudit{Dir: dir, Model: m, Verdict: s.Verdict, Checks: s.Checks}
+	a := &SavedAudit{Dir: dir, Model: m, Verdict: s.Verdict, Checks: s.Checks, AngleP95: math.NaN()}
+	if s.Limits != nil {
+		a.AngleP95 = orNaN(s.Limits.AngleP95)
+	}
 	if st := s.Stability; st != nil && len(st.Eigenvalues) == len(m.Eigenvalues) {
 		for _, e := range st.Eigenvalues {
 			a.Intervals = append(a.Intervals, SavedInterval{orNaN(e.Low), orNaN(e.High), orNaN(e.PercentLow), orNaN(e.PercentHigh)})
