@@ -18,7 +18,7 @@ type compareCheck struct {
 // CompareChecks lists the checks of pcqc compare in report order.
 var CompareChecks = []compareCheck{
 	{"compare-variables", "Both audits hold the same variables", "common practice (components over different variables are not the same components)", judgeCompareVariables},
-	{"compare-retained", "Both audits retain as many components", "common practice", judgeCompareRetained},
+	{"compare-retained", "Both audits retain as many components", "common practice: a different count counts when the boundary eigenvalues' bootstrap intervals do not overlap", judgeCompareRetained},
 	{"compare-components", "Paired components agree", "Lorenzo-Seva & ten Berge (2006) without bootstraps; with them, both audits' bootstrap congruence (common practice)", judgeCompareComponents},
 	{"compare-subspace", "The retained subspaces agree", "both audits' bootstrap subspace angles (Björck & Golub 1973; common practice of adding independent variances)", judgeCompareSubspace},
 	{"compare-checks", "No check passes in one audit and fails in the other", "common practice", judgeCompareChecks},
@@ -54,12 +54,32 @@ func judgeCompareVariables(c *analysis.AuditComparison) Result {
 	return Result{Status: Warn, Value: n, Limit: 0, Message: fmt.Sprintf("%d variables are in one audit only (%s). The components are compared over the %d common variables, but each audit's components were fitted with its own variables.", n, strings.Join(parts, "; "), len(c.Common))}
 }
 
+// judgeCompareRetained warns when the audits retain different numbers of
+// components, unless the components at the boundary are within sampling
+// of each other: for every component that one audit keeps and the other
+// drops, the two audits' bootstrap intervals for its eigenvalue overlap.
+// A rule such as parallel analysis then merely fell on different sides of
+// an eigenvalue both samples estimate alike.
 func judgeCompareRetained(c *analysis.AuditComparison) Result {
 	ka, kb := c.A.Model.Retained, c.B.Model.Retained
 	if ka == kb {
 		return Result{Status: Pass, Value: kb, Limit: ka, Message: fmt.Sprintf("Both audits retain %d components.", ka)}
 	}
-	return Result{Status: Warn, Value: kb, Limit: ka, Message: fmt.Sprintf("A retains %d components and B %d: the structure found differs in size, and the larger model has %s without a partner.", ka, kb, counted(max(ka, kb)-min(ka, kb), "component", "components"))}
+	var apart []string
+	for a := min(ka, kb); a < max(ka, kb); a++ {
+		if a >= len(c.A.Intervals) || a >= len(c.B.Intervals) {
+			apart = append(apart, fmt.Sprintf("PC%d (no bootstrap interval in one audit)", a+1))
+			continue
+		}
+		ia, ib := c.A.Intervals[a], c.B.Intervals[a]
+		if !(ia.Low <= ib.High && ib.Low <= ia.High) {
+			apart = append(apart, fmt.Sprintf("PC%d (eigenvalue intervals [%.3g, %.3g] and [%.3g, %.3g])", a+1, ia.Low, ia.High, ib.Low, ib.High))
+		}
+	}
+	if len(apart) == 0 {
+		return Result{Status: Pass, Value: kb, Limit: ka, Message: fmt.Sprintf("A retains %d components and B %d, but the bootstrap intervals of the eigenvalues the count rule split overlap: the counts differ within sampling. Compare the pairs that both retain.", ka, kb)}
+	}
+	return Result{Status: Warn, Value: kb, Limit: ka, Message: fmt.Sprintf("A retains %d components and B %d, and the eigenvalues of %s differ by more than the bootstraps explain: the structure found differs in size, and the larger model has %s without a partner.", ka, kb, strings.Join(apart, ", "), counted(max(ka, kb)-min(ka, kb), "component", "components"))}
 }
 
 // counted is n with the noun that fits it.
