@@ -20,7 +20,7 @@ var CompareChecks = []compareCheck{
 	{"compare-variables", "Both audits hold the same variables", "common practice (components over different variables are not the same components)", judgeCompareVariables},
 	{"compare-retained", "Both audits retain as many components", "common practice: a different count counts when the boundary eigenvalues' bootstrap intervals do not overlap", judgeCompareRetained},
 	{"compare-components", "Paired components agree", "Lorenzo-Seva & ten Berge (2006) without bootstraps; with them, both audits' bootstrap congruence (common practice)", judgeCompareComponents},
-	{"compare-subspace", "The retained subspaces agree", "both audits' bootstrap subspace angles (Björck & Golub 1973; common practice of adding independent variances)", judgeCompareSubspace},
+	{"compare-subspace", "The retained subspaces agree", "both audits' bootstrap subspace angles, added (the largest principal angle is a metric; common practice)", judgeCompareSubspace},
 	{"compare-checks", "No check passes in one audit and fails in the other", "common practice", judgeCompareChecks},
 }
 
@@ -92,7 +92,11 @@ func counted(n int, one, many string) string {
 func pairLimit(c *analysis.AuditComparison, p analysis.ComponentPair) (float64, bool) {
 	a, b := c.A.CongruenceP5, c.B.CongruenceP5
 	if p.A < len(a) && p.B < len(b) && !math.IsNaN(a[p.A]) && !math.IsNaN(b[p.B]) {
-		return 1 - ((1 - a[p.A]) + (1 - b[p.B])), true
+		// The angle between two unit vectors is a metric, so the angle
+		// between A's and B's estimates is at most the sum of each one's
+		// sampling angle.
+		angle := math.Acos(math.Min(1, a[p.A])) + math.Acos(math.Min(1, b[p.B]))
+		return math.Cos(math.Min(angle, math.Pi/2)), true
 	}
 	return CompareCongruenceLimit, false
 }
@@ -132,15 +136,17 @@ func judgeCompareSubspace(c *analysis.AuditComparison) Result {
 	if math.IsNaN(c.A.AngleP95) || math.IsNaN(c.B.AngleP95) {
 		return Result{Status: Skip, Value: angle, Message: fmt.Sprintf("The largest principal angle is %.2f°, but an audit ran no bootstrap, so there is no yardstick for it.", angle)}
 	}
-	// Independent estimates: squared angles add (see CompareCongruenceLimit).
-	limit := math.Hypot(c.A.AngleP95, c.B.AngleP95)
+	// The largest principal angle is a metric on subspaces of one
+	// dimension (see CompareCongruenceLimit): each audit's sampling angle
+	// bounds its share of the distance between them.
+	limit := c.A.AngleP95 + c.B.AngleP95
 	if c.A.Model.Retained != c.B.Model.Retained {
 		return Result{Status: Skip, Value: angle, Message: fmt.Sprintf("The audits retain different numbers of components; the largest principal angle between the smaller subspace and the larger is %.2f°.", angle)}
 	}
 	if angle <= limit {
 		return Result{Status: Pass, Value: angle, Limit: limit, Message: fmt.Sprintf("The largest principal angle between the retained subspaces is %.2f°, within the %.2f° both audits' bootstraps allow.", angle, limit)}
 	}
-	return Result{Status: Warn, Value: angle, Limit: limit, Message: fmt.Sprintf("The largest principal angle between the retained subspaces is %.2f°, beyond the %.2f° both audits' bootstraps allow (the 95th percentiles %.2f° and %.2f°, combined): the two audits span different structure.", angle, limit, c.A.AngleP95, c.B.AngleP95)}
+	return Result{Status: Warn, Value: angle, Limit: limit, Message: fmt.Sprintf("The largest principal angle between the retained subspaces is %.2f°, beyond the %.2f° both audits' bootstraps allow (the sum of their 95th percentiles, %.2f° and %.2f°): the two audits span different structure.", angle, limit, c.A.AngleP95, c.B.AngleP95)}
 }
 
 func judgeCompareChecks(c *analysis.AuditComparison) Result {

@@ -329,7 +329,7 @@ func compareMethods(run CompareRun, meta Meta) string {
 	fmt.Fprintf(&b, "pcqc %s compared two audits read from their folders (model.json and summary.json): A, of %s, and B, of %s.", meta.Version, c.A.Model.Input.File, c.B.Model.Input.File)
 	fmt.Fprintf(&b, " Variables were matched by name. Over the %d common variables, every retained component of A was compared with every one of B by Tucker's congruence coefficient φ (Tucker 1951), and the components were paired to maximise the total |φ| by the Hungarian method (Kuhn 1955), not one pair at a time; B's loadings were given the sign of their partners in A.", len(c.Common))
 	b.WriteString(" The principal angles between the two retained subspaces were computed from the singular values of the product of orthonormal bases, small angles from their sines (Björck & Golub 1973).")
-	b.WriteString(" A pair counts as the same component when φ is above the limit both audits' bootstraps allow, 1 − φ_limit = (1 − φ5_A) + (1 − φ5_B) from each audit's 5th percentile of bootstrap congruence, or above 0.85 without bootstraps (Lorenzo-Seva & ten Berge 2006); the subspaces agree when the largest angle is within √(θ_A² + θ_B²) of both audits' 95th percentiles of the bootstrap subspace angle.")
+	b.WriteString(" A pair counts as the same component when its angle, arccos φ, is within the sum of both audits' bootstrap angles (arccos of each audit's 5th percentile of bootstrap congruence), or when φ is above 0.85 without bootstraps (Lorenzo-Seva & ten Berge 2006); the subspaces agree when the largest principal angle is within the sum of both audits' 95th percentiles of the bootstrap subspace angle. Both angles are metrics, so the sums bound the distance between two samples of one structure.")
 	return b.String()
 }
 
