@@ -235,10 +235,20 @@ type CompareDocument struct {
 	Command                      string
 	Options                      [][2]string
 	Cautions                     []string
+
+	footerFile, footerHash string
 }
 
 func (d *CompareDocument) page() Page {
-	return Page{Title: d.Title, Author: d.Author, Date: d.Date, Version: d.Version}
+	return Page{Title: d.Title, Author: d.Author, Date: d.Date, Version: d.Version, File: d.footerFile, SHA256: d.footerHash}
+}
+
+// footerIdentity names both inputs in the page footer, which has room for
+// one file and 12 characters of hash: the two file names, and the first
+// five characters of each hash.
+func footerIdentity(a, b *analysis.Model) (file, hash string) {
+	five := func(h string) string { return h[:min(5, len(h))] }
+	return filepath.Base(a.Input.File) + " vs " + filepath.Base(b.Input.File), five(a.Input.SHA256) + "/" + five(b.Input.SHA256)
 }
 
 // interval formats a bootstrap interval, or a dash without one.
@@ -258,6 +268,7 @@ func BuildCompareDocument(run CompareRun, meta Meta, opt ReportOptions) *Compare
 		d.Title = "Comparison of the audits of " + filepath.Base(c.A.Model.Input.File) + " and " + filepath.Base(c.B.Model.Input.File)
 	}
 	d.Verdict, d.Checks = verdictBlock(run.Checks)
+	d.footerFile, d.footerHash = footerIdentity(c.A.Model, c.B.Model)
 	d.AuditHeader = []string{"", "Folder", "Data", "SHA-256", "Samples", "Retained", "Verdict"}
 	for i, a := range []*analysis.SavedAudit{c.A, c.B} {
 		m := a.Model
