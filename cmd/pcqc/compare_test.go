@@ -319,3 +319,39 @@ func TestCompareRefusesNonAudits(t *testing.T) {
 		})
 	}
 }
+
+// TestCompareReport renders the comparison of the wine halves: the report
+// names what differs, cites its methods with full references, and writes
+// every format.
+func TestCompareReport(t *testing.T) {
+	skipRenderingWhenShort(t)
+	dir := t.TempDir()
+	flags := []string{"--group", "cultivar", "--components", "3", "--permutations", "0", "--bootstrap", "0"}
+	a := auditOf(t, dir, "a", "../../testdata/compare/wine_a.csv", flags...)
+	b := auditOf(t, dir, "b", "../../testdata/compare/wine_b.csv", flags...)
+	out := filepath.Join(dir, "cmp")
+	if status, _, stderr := runPCQC(t, "compare", a, b, "--out", out, "--date", "2026-01-02"); status != exitOK {
+		t.Fatalf("status %d: %s", status, stderr)
+	}
+	md, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	bib, err := os.ReadFile(filepath.Join(out, "references.bib"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"**Only in A:** ash", "## Check statuses", "Kuhn, H. W. (1955)", "Björck, Å. & Golub, G. H. (1973)", "Tucker, L. R. (1951)", "Principal angles between the retained subspaces: 4.77°"} {
+		if !strings.Contains(string(md), want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	if !strings.Contains(string(bib), "@article{kuhn1955") {
+		t.Errorf("references.bib lacks kuhn1955")
+	}
+	for _, f := range []string{"report.pdf", "report.html"} {
+		if st, err := os.Stat(filepath.Join(out, f)); err != nil || st.Size() == 0 {
+			t.Errorf("%s missing or empty: %v", f, err)
+		}
+	}
+}
