@@ -54,6 +54,8 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{lange1989, author = {Lange, Kenneth L. and Little, Roderick J. A. and Taylor, Jeremy M. G.}, title = {Robust statistical modeling using the t distribution}, journal = {Journal of the American Statistical Association}, volume = {84}, number = {408}, pages = {881--896}, year = {1989}}`},
 	"embrechts1997": {Citation: "Embrechts, P., Klüppelberg, C. & Mikosch, T. (1997). Modelling Extremal Events for Insurance and Finance. Springer, Berlin.",
 		BibTeX: `@book{embrechts1997, author = {Embrechts, Paul and Kl{\"u}ppelberg, Claudia and Mikosch, Thomas}, title = {Modelling Extremal Events for Insurance and Finance}, publisher = {Springer}, address = {Berlin}, year = {1997}}`},
+	"kuhn1955": {Citation: "Kuhn, H. W. (1955). The Hungarian method for the assignment problem. Naval Research Logistics Quarterly 2: 83–97.",
+		BibTeX: `@article{kuhn1955, author = {Kuhn, Harold W.}, title = {The {H}ungarian method for the assignment problem}, journal = {Naval Research Logistics Quarterly}, volume = {2}, number = {1--2}, pages = {83--97}, year = {1955}}`},
 	"bjorck1973": {Citation: "Björck, Å. & Golub, G. H. (1973). Numerical methods for computing angles between linear subspaces. Mathematics of Computation 27: 579–594.",
 		BibTeX: `@article{bjorck1973, author = {Bj{\"o}rck, {\AA}ke and Golub, Gene H.}, title = {Numerical methods for computing angles between linear subspaces}, journal = {Mathematics of Computation}, volume = {27}, number = {123}, pages = {579--594}, year = {1973}}`},
 	"hoaglin1978": {Citation: "Hoaglin, D. C. & Welsch, R. E. (1978). The hat matrix in regression and ANOVA. The American Statistician 32: 17–22.",

@@ -9,5 +9,5 @@ import "embed"
 // saved model), checks.md.tmpl (the verdict banner, the Verdict section and
 // the appendix of checks, which both place) and page.html.tmpl.
 //
-//go:embed report.md.tmpl apply.md.tmpl checks.md.tmpl page.html.tmpl
+//go:embed report.md.tmpl apply.md.tmpl compare.md.tmpl checks.md.tmpl page.html.tmpl
 var FS embed.FS

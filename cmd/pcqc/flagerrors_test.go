@@ -206,7 +206,7 @@ func TestHelpFlags(t *testing.T) {
 		args []string
 		want []string
 	}{
-		{[]string{"help", "foo"}, []string{`pcqc help: unknown command "foo"; the commands are run, review, apply, demo, version, help`}},
+		{[]string{"help", "foo"}, []string{`pcqc help: unknown command "foo"; the commands are run, review, apply, compare, demo, version, help`}},
 		{[]string{"help", "rnu"}, []string{`unknown command "rnu"; did you mean run?`}},
 		{[]string{"hlep"}, []string{`pcqc: unknown command "hlep"; did you mean help?`}},
 		{[]string{"--verison"}, []string{"unknown flag --verison; did you mean --version?"}},

@@ -96,7 +96,7 @@ type command struct {
 var commands []*command
 
 func init() {
-	commands = []*command{runCommand, reviewCommand, applyCommand, demoCommand, versionCommand, helpCommand}
+	commands = []*command{runCommand, reviewCommand, applyCommand, compareCommand, demoCommand, versionCommand, helpCommand}
 }
 
 func lookupCommand(name string) *command {
