@@ -66,9 +66,13 @@ func contributionBlock(res *analysis.Result, rc analysis.RunContributions, b *Ou
 	for f := range b.Contributions {
 		con := rc.Contributions[f/2]
 		i := con.Sample
-		draw := func() drawing { return contributionBars(t.Variables, t.IDs[i], res.Samples.T2[i], res.Samples.Q[i], con) }
+		draw := func() drawing {
+			return contributionBars(t.Variables, t.IDs[i], res.Samples.T2[i], res.Samples.Q[i], con)
+		}
 		if f%2 == 1 {
-			draw = func() drawing { return residualBars(t.Variables, t.IDs[i], "signed residual ("+runResidualUnit(res.Prep.Scaling)+")", con.Residual) }
+			draw = func() drawing {
+				return residualBars(t.Variables, t.IDs[i], "signed residual ("+runResidualUnit(res.Prep.Scaling)+")", con.Residual)
+			}
 		}
 		jobs = append(jobs, figureJob{&b.Contributions[f], draw})
 	}
