@@ -242,10 +242,16 @@ func (app *Application) contribution(i int, v *mat.Dense) Contribution {
 // adds nothing to the T² contributions; nil live counts every component.
 func contributionOf(i int, z, t []float64, v *mat.Dense, eigenvalues []float64, live []bool) Contribution {
 	p := len(z)
-	resid := make([]float64, p)
-	c := Contribution{Sample: i, T2: make([]float64, p), Q: make([]float64, p), Residual: resid}
-	residuals(z, t, v, resid)
-	for j := 0; j < p; j++ {
+	c := Contribution{Sample: i, T2: make([]float64, p), Q: make([]float64, p), Residual: make([]float64, p)}
+	contributionInto(&c, z, t, v, eigenvalues, live)
+	return c
+}
+
+// contributionInto is contributionOf writing into c's slices (each of
+// length p), for callers that go through many samples.
+func contributionInto(c *Contribution, z, t []float64, v *mat.Dense, eigenvalues []float64, live []bool) {
+	residuals(z, t, v, c.Residual)
+	for j := range z {
 		w := 0.0
 		for a := range t {
 			if live == nil || live[a] {
@@ -253,9 +259,8 @@ func contributionOf(i int, z, t []float64, v *mat.Dense, eigenvalues []float64, 
 			}
 		}
 		c.T2[j] = z[j] * w
-		c.Q[j] = resid[j] * resid[j]
+		c.Q[j] = c.Residual[j] * c.Residual[j]
 	}
-	return c
 }
 
 // RankBeyond99 returns the indices of the samples whose Hotelling T² or Q

@@ -14,6 +14,16 @@ import (
 // 99 % limits on their contribution plots).
 const ContributionConf = Conf99
 
+// quantileCells bounds the T² contributions FlaggedContributions keeps for
+// their quantiles (32 MB), and quantileRowsMin is the fewest reference
+// samples it keeps however wide the table: 2000 samples leave 20 beyond
+// their 99th percentile, enough to place it (common practice). Variables,
+// not constants, so that a test can make the bound bite on a small table.
+var (
+	quantileCells   = 4_000_000
+	quantileRowsMin = 2000
+)
+
 // RunContributions are, for the samples an audit's outlier checks flag,
 // the per-variable contributions to their T² and Q, with per-variable
 // limits that say which contributions are unusual for that variable.
@@ -30,8 +40,7 @@ type RunContributions struct {
 	// of the reference samples):
 	//
 	//	T²: the empirical conf quantile of the reference contributions
-	//	    c_ij (linear interpolation between order statistics, as
-	//	    numpy.percentile); a normal approximation, mean + z·sd, was
+	//	    c_ij (predictionQuantile); a normal approximation, mean + z·sd, was
 	//	    passed by about 4 % of clean contributions at a nominal 1 %
 	//	    (TestContributionLimitRates), since c_ij = z_ij·w_ij is a
 	//	    product of correlated normals and skewed;
@@ -70,20 +79,31 @@ func FlaggedContributions(r *Result) RunContributions {
 	for _, i := range flagged {
 		skip[i] = true
 	}
-	// Welford's running moments for Q, one pass; the T² contributions are
-	// kept, variable by variable, for their quantiles.
+	// Welford's running moments for Q, in one pass over every reference
+	// sample. The T² contributions are kept for their quantiles, from
+	// every stride-th reference sample when keeping all of them would pass
+	// quantileCells values: the 99th percentile of tens of thousands is
+	// as good as that of millions, and memory stays bounded.
 	nRef := n - len(flagged)
-	t2Ref := make([]float64, p*nRef)
+	rowsCap := max(quantileRowsMin, quantileCells/max(p, 1))
+	stride := (nRef + rowsCap - 1) / max(rowsCap, 1)
+	stride = max(stride, 1)
+	kept := (nRef + stride - 1) / stride
+	t2Ref := make([]float64, p*kept)
 	qMean, qM2 := make([]float64, p), make([]float64, p)
+	c := Contribution{T2: make([]float64, p), Q: make([]float64, p), Residual: make([]float64, p)}
 	for i := 0; i < n; i++ {
 		if skip[i] {
 			continue
 		}
-		c := contributionOf(i, r.Z.RawRowView(i), r.Scores.RawRowView(i), v, eig, live)
+		contributionInto(&c, r.Z.RawRowView(i), r.Scores.RawRowView(i), v, eig, live)
+		ordinal := rc.Reference
 		rc.Reference++
 		m := float64(rc.Reference)
 		for j := 0; j < p; j++ {
-			t2Ref[j*nRef+rc.Reference-1] = c.T2[j]
+			if ordinal%stride == 0 {
+				t2Ref[j*kept+ordinal/stride] = c.T2[j]
+			}
 			d := c.Q[j] - qMean[j]
 			qMean[j] += d / m
 			qM2[j] += d * (c.Q[j] - qMean[j])
@@ -96,12 +116,36 @@ func FlaggedContributions(r *Result) RunContributions {
 			continue
 		}
 		df := float64(rc.Reference - 1)
-		ref := t2Ref[j*nRef : (j+1)*nRef]
+		ref := t2Ref[j*kept : (j+1)*kept]
 		slices.Sort(ref)
-		rc.T2Limit[j] = percentile(ref, 100*ContributionConf)
+		rc.T2Limit[j] = predictionQuantile(ref, ContributionConf)
 		rc.QLimit[j] = QContributionLimit(qMean[j], qM2[j]/df, ContributionConf)
 	}
 	return rc
+}
+
+// predictionQuantile returns the q quantile of sorted values as a limit
+// for a sample not among them: the order statistic of rank h = q(m+1),
+// interpolated linearly (Hyndman & Fan 1996, Amer. Statist. 50:361–365,
+// definition 6; numpy's method "weibull"). A new value from the same law
+// passes the r-th of m order statistics with probability 1 − r/(m+1), so
+// this rank makes that chance 1 − q; R's and numpy's default (definition
+// 7) passes about 2 % for q = 0.99 and m = 100. Ranks beyond the data
+// are clamped to the extreme values.
+func predictionQuantile(sorted []float64, q float64) float64 {
+	m := len(sorted)
+	if m == 0 {
+		return math.NaN()
+	}
+	h := q * float64(m+1)
+	lo := int(math.Floor(h))
+	switch {
+	case lo < 1:
+		return sorted[0]
+	case lo >= m:
+		return sorted[m-1]
+	}
+	return sorted[lo-1] + (h-float64(lo))*(sorted[lo]-sorted[lo-1])
 }
 
 // QContributionLimit is the conf quantile of the scaled χ² g·χ²(h) whose

@@ -1,7 +1,9 @@
 package analysis
 
 import (
+	"fmt"
 	"math"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -73,6 +75,27 @@ func TestContributionLimits(t *testing.T) {
 		if got := QContributionLimit(mv[0], mv[1], 0.99); !math.IsNaN(got) {
 			t.Errorf("QContributionLimit(%g, %g) = %g, want NaN (no spread to judge by)", mv[0], mv[1], got)
 		}
+	}
+}
+
+// predictionQuantile against numpy 1.24.2's percentile with method
+// "weibull" (testdata/contrib/limits.py, output in limits.out).
+func TestPredictionQuantile(t *testing.T) {
+	x := []float64{3.1, -0.4, 2.2, 7.9, 0.5, 1.0, 4.4, -2.0, 6.1, 0.0}
+	slices.Sort(x)
+	for _, tc := range []struct{ q, want float64 }{
+		{0.99, 7.9},               // numpy 1.24.2
+		{0.9, 7.720000000000001},  // numpy 1.24.2
+		{0.5, 1.6},                // numpy 1.24.2
+		{0.05, -2.0},              // numpy 1.24.2
+		{0.3, 0.1499999999999999}, // numpy 1.24.2
+	} {
+		if got := predictionQuantile(x, tc.q); math.Abs(got-tc.want) > 1e-12 {
+			t.Errorf("predictionQuantile(%g) = %.15g, want %.15g", tc.q, got, tc.want)
+		}
+	}
+	if got := predictionQuantile(nil, 0.99); !math.IsNaN(got) {
+		t.Errorf("predictionQuantile of nothing = %g, want NaN", got)
 	}
 }
 
@@ -169,6 +192,19 @@ func TestContributionLimitRates(t *testing.T) {
 		t.Skip("simulates several tables")
 	}
 	const n, p, seeds = 1000, 8, 4
+	for _, bound := range []struct{ cells, rowsMin int }{{quantileCells, quantileRowsMin}, {8 * 300, 300}} {
+		func() {
+			defer func(c, r int) { quantileCells, quantileRowsMin = c, r }(quantileCells, quantileRowsMin)
+			quantileCells, quantileRowsMin = bound.cells, bound.rowsMin
+			contributionRates(t, n, p, seeds, fmt.Sprintf("T² quantiles from at most %d samples", max(bound.rowsMin, bound.cells/p)))
+		}()
+	}
+}
+
+// contributionRates measures the share of clean reference contributions
+// beyond their 99 % limits over several seeds.
+func contributionRates(t *testing.T, n, p int, seeds uint64, what string) {
+	t.Helper()
 	var beyondQ, beyondT2, total int
 	for seed := uint64(1); seed <= seeds; seed++ {
 		res := plantedOutliers(t, 100+seed, n, p, -1, 0, -1)
@@ -195,11 +231,15 @@ func TestContributionLimitRates(t *testing.T) {
 		}
 	}
 	rateQ, rateT2 := float64(beyondQ)/float64(total), float64(beyondT2)/float64(total)
-	t.Logf("beyond the 99 %% contribution limits on clean tables: Q %.4f, T² %.4f of %d", rateQ, rateT2, total)
-	if rateT2 < 0.009 || rateT2 > 0.012 {
-		t.Errorf("T² contribution limits passed by %.4f of clean contributions, want 0.01 (their own 99th percentiles)", rateT2)
+	t.Logf("%s: beyond the 99 %% contribution limits on clean tables: Q %.4f, T² %.4f of %d", what, rateQ, rateT2, total)
+	// From all samples the T² limits are their own 99th percentiles (a
+	// rate just under 0.01 in-sample); from every 4th (250 per variable
+	// and seed) the rate is 0.01 on average, with a binomial spread of
+	// the limits' own estimation.
+	if rateT2 < 0.006 || rateT2 > 0.016 {
+		t.Errorf("%s: T² contribution limits passed by %.4f of clean contributions, want about 0.01", what, rateT2)
 	}
 	if rateQ < 0.004 || rateQ > 0.025 {
-		t.Errorf("Q contribution limits passed by %.4f of clean contributions, want about 0.01", rateQ)
+		t.Errorf("%s: Q contribution limits passed by %.4f of clean contributions, want about 0.01", what, rateQ)
 	}
 }
