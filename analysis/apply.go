@@ -233,21 +233,34 @@ func residuals(z, t []float64, v *mat.Dense, resid []float64) float64 {
 }
 
 func (app *Application) contribution(i int, v *mat.Dense) Contribution {
-	m := app.Model
-	p := len(m.Variables)
-	z, t := app.Z.RawRowView(i), app.Scores.RawRowView(i)
-	resid := make([]float64, p)
-	c := Contribution{Sample: i, T2: make([]float64, p), Q: make([]float64, p), Residual: resid}
-	residuals(z, t, v, resid)
-	for j := 0; j < p; j++ {
+	return contributionOf(i, app.Z.RawRowView(i), app.Scores.RawRowView(i), v, app.Model.Eigenvalues, nil)
+}
+
+// contributionOf breaks sample i's T² and Q down by variable, from its
+// preprocessed row z, its scores t, the retained loadings v (p × k) and the
+// eigenvalues. A component with live[a] false (a null one, left out of T²)
+// adds nothing to the T² contributions; nil live counts every component.
+func contributionOf(i int, z, t []float64, v *mat.Dense, eigenvalues []float64, live []bool) Contribution {
+	p := len(z)
+	c := Contribution{Sample: i, T2: make([]float64, p), Q: make([]float64, p), Residual: make([]float64, p)}
+	contributionInto(&c, z, t, v, eigenvalues, live)
+	return c
+}
+
+// contributionInto is contributionOf writing into c's slices (each of
+// length p), for callers that go through many samples.
+func contributionInto(c *Contribution, z, t []float64, v *mat.Dense, eigenvalues []float64, live []bool) {
+	residuals(z, t, v, c.Residual)
+	for j := range z {
 		w := 0.0
 		for a := range t {
-			w += v.At(j, a) * t[a] / m.Eigenvalues[a]
+			if live == nil || live[a] {
+				w += v.At(j, a) * t[a] / eigenvalues[a]
+			}
 		}
 		c.T2[j] = z[j] * w
-		c.Q[j] = resid[j] * resid[j]
+		c.Q[j] = c.Residual[j] * c.Residual[j]
 	}
-	return c
 }
 
 // RankBeyond99 returns the indices of the samples whose Hotelling T² or Q

@@ -200,6 +200,6 @@ var outliersQ = Check{
 			extra: componentNumbers(l.Components.ForQ(), l.QFamilyComponent)}
 		return limitCheck(s.Q, fl, in.Run.Table.IDs,
 			fmt.Sprintf("Q (%s)", method),
-			"These samples do not fit the correlation structure of the rest (a broken sensor, a unit error, a contamination, or a genuinely different kind of sample). Look at their residuals variable by variable.")
+			"These samples do not fit the correlation structure of the rest (a broken sensor, a unit error, a contamination, or a genuinely different kind of sample). Look at their residuals variable by variable: contributions.csv lists them, and the Outliers section plots the most extreme.")
 	},
 }

@@ -476,16 +476,21 @@ func (t plotThumb) Thumbnail(c *draw.Canvas) { c.DrawGlyph(t.style, c.Center()) 
 // contributionFigure shows, for one sample, each variable's share of its T²
 // and of its Q, the variables that contribute most at the top.
 func contributionFigure(app *analysis.Application, c analysis.Contribution) drawing {
-	m := app.Model
-	p := len(m.Variables)
 	i := c.Sample
+	return contributionBars(app.Model.Variables, app.Table.IDs[i], app.T2[i], app.Q[i], c)
+}
+
+// contributionBars draws c's shares of the sample's T² and Q (both given),
+// for an application or an audit alike.
+func contributionBars(variables []string, id string, t2, q float64, c analysis.Contribution) drawing {
+	p := len(variables)
 	t2Share, qShare := make([]float64, p), make([]float64, p)
 	for j := 0; j < p; j++ {
-		if app.T2[i] > 0 {
-			t2Share[j] = c.T2[j] / app.T2[i]
+		if t2 > 0 {
+			t2Share[j] = c.T2[j] / t2
 		}
-		if app.Q[i] > 0 {
-			qShare[j] = c.Q[j] / app.Q[i]
+		if q > 0 {
+			qShare[j] = c.Q[j] / q
 		}
 	}
 	order := make([]int, p)
@@ -513,9 +518,9 @@ func contributionFigure(app *analysis.Application, c analysis.Contribution) draw
 		j := order[r]
 		row := shown - 1 - r
 		bars.first[row], bars.second[row] = qShare[j], t2Share[j]
-		names[row] = figureText(m.Variables[j], maxLabelRunes)
+		names[row] = figureText(variables[j], maxLabelRunes)
 	}
-	pl := newPlot("Contributions to the limits passed by "+figureText(app.Table.IDs[i], maxLabelRunes), "share of the sample's statistic", "")
+	pl := newPlot("Contributions to the limits passed by "+figureText(id, maxLabelRunes), "share of the sample's statistic", "")
 	pl.Legend.Add("share of Q", swatchThumb{mainColor})
 	pl.Legend.Add("share of T²", swatchThumb{accent95})
 	return namedBars(pl, bars, names, left, 2.4, 0.5)

@@ -18,14 +18,20 @@ import (
 // model in that variable, which the squared contributions cannot. The
 // largest residuals are at the top and at most loadingsShown are drawn.
 func residualFigure(app *analysis.Application, c analysis.Contribution) drawing {
-	values, names, finite, left := residualRows(app.Model.Variables, c.Residual)
+	return residualBars(app.Model.Variables, app.Table.IDs[c.Sample], residualUnit(app.Model.Scaling), c.Residual)
+}
+
+// residualBars draws one sample's signed residuals, for an application or
+// an audit alike; unit labels the axis.
+func residualBars(variables []string, id, unit string, residual []float64) drawing {
+	values, names, finite, left := residualRows(variables, residual)
 	shown := len(values)
 	bars := hbars{fill: barColor, values: values}
-	title := "Residuals of " + figureText(app.Table.IDs[c.Sample], maxLabelRunes)
+	title := "Residuals of " + figureText(id, maxLabelRunes)
 	if shown < finite {
 		title += fmt.Sprintf(" (the %d largest of %d)", shown, finite)
 	}
-	pl := newPlot(title, residualUnit(app.Model.Scaling), "")
+	pl := newPlot(title, unit, "")
 	return namedBars(pl, bars, names, left, 2.2, 0.42)
 }
 

@@ -175,6 +175,11 @@ type OutliersBlock struct {
 	Rows      [][]string
 	Truncated string
 	None      string
+	// Contributions holds, for each of the most extreme samples beyond a
+	// family-wise limit, its contribution figure and then its residual
+	// figure (run_contributions.go).
+	Contributions     []Figure
+	ContributionsNote string
 }
 
 type StabilityBlock struct {
@@ -388,6 +393,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	if d.Outliers.Influence != nil {
 		d.figures = append(d.figures, figureJob{d.Outliers.Influence, func() drawing { return influenceFigure(res) }})
 	}
+	d.figures = append(d.figures, contributionBlock(res, runContributions(res), &d.Outliers)...)
 	if d.Stability.Enabled {
 		d.figures = append(d.figures,
 			figureJob{&d.Stability.Congruence, func() drawing { return congruenceFigure(res) }},

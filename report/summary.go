@@ -505,5 +505,8 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 	if err := writeSamples(join("samples.csv"), res); err != nil {
 		return err
 	}
+	if err := writeContributions(join("contributions.csv"), res, runContributions(res)); err != nil {
+		return err
+	}
 	return writeJSON(join("summary.json"), BuildSummary(audit, meta))
 }
