@@ -1,11 +1,11 @@
 package analysis
 
 import (
-	"math"
-	"slices"
 	"encoding/csv"
+	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
