@@ -635,36 +635,56 @@ func meanCov(s *mat.Dense, idx []int) ([]float64, *mat.SymDense) {
 	return mu, cov
 }
 
-// mahalanobis returns (sᵢ − μ)ᵀ Σ⁻¹ (sᵢ − μ) for every row, Σ given by its
-// Cholesky factor.
+// mahalanobis returns (sᵢ − μ)ᵀ Σ⁻¹ (sᵢ − μ) for every row, Σ = LLᵀ given
+// by its Cholesky factor: ‖L⁻¹(sᵢ − μ)‖², by forward substitution (k is
+// small, and this runs for every row in every concentration step).
 func mahalanobis(s *mat.Dense, mu []float64, ch *mat.Cholesky) []float64 {
 	n, k := s.Dims()
+	var l mat.TriDense
+	ch.LTo(&l)
+	raw := l.RawTriangular()
 	out := make([]float64, n)
-	c := mat.NewVecDense(k, nil)
-	var x mat.VecDense
+	y := make([]float64, k)
 	for i := 0; i < n; i++ {
-		for a, v := range s.RawRowView(i) {
-			c.SetVec(a, v-mu[a])
+		row := s.RawRowView(i)
+		d2 := 0.0
+		for a := 0; a < k; a++ {
+			v := row[a] - mu[a]
+			la := raw.Data[a*raw.Stride:]
+			for b := 0; b < a; b++ {
+				v -= la[b] * y[b]
+			}
+			y[a] = v / la[a]
+			d2 += y[a] * y[a]
 		}
-		if err := ch.SolveVecTo(&x, c); err != nil {
-			out[i] = math.Inf(1)
-			continue
-		}
-		out[i] = mat.Dot(c, &x)
+		out[i] = d2
 	}
 	return out
 }
 
 // smallest returns the indices of the h smallest values, ascending by index
-// (ties broken by index, so the subset is deterministic).
+// (ties at the h-th value broken by index, so the subset is deterministic).
 func smallest(v []float64, h int) []int {
-	idx := make([]int, len(v))
-	for i := range idx {
-		idx[i] = i
+	sorted := slices.Clone(v)
+	slices.Sort(sorted)
+	thr := sorted[h-1]
+	below := 0
+	for _, x := range sorted[:h] {
+		if x < thr {
+			below++
+		}
 	}
-	slices.SortStableFunc(idx, func(a, b int) int { return cmp.Compare(v[a], v[b]) })
-	out := slices.Clone(idx[:h])
-	slices.Sort(out)
+	ties := h - below // values equal to thr to take, the first by index
+	out := make([]int, 0, h)
+	for i, x := range v {
+		switch {
+		case x < thr:
+			out = append(out, i)
+		case x == thr && ties > 0:
+			out = append(out, i)
+			ties--
+		}
+	}
 	return out
 }
 
