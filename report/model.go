@@ -29,6 +29,7 @@ type Document struct {
 	Loadings   LoadingsBlock
 	Scores     ScoresBlock
 	Outliers   OutliersBlock
+	Robust     RobustBlock
 	Stability  StabilityBlock
 
 	Methods    string
@@ -355,6 +356,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	d.Loadings = loadingsBlock(res)
 	d.Scores = scoresBlock(res)
 	d.Outliers = outliersBlock(res)
+	d.Robust = robustBlock(res)
 	d.Stability = stabilityBlock(res)
 	d.Methods, d.References = methods(res, meta)
 	d.Options = optionRows(meta.Options)
@@ -387,6 +389,9 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	d.figures = append(d.figures, figureJob{&d.Outliers.Figure, func() drawing { return t2qFigure(res) }})
 	if d.Outliers.Influence != nil {
 		d.figures = append(d.figures, figureJob{d.Outliers.Influence, func() drawing { return influenceFigure(res) }})
+	}
+	if d.Robust.Enabled {
+		d.figures = append(d.figures, figureJob{&d.Robust.Figure, func() drawing { return robustFigure(res) }})
 	}
 	if d.Stability.Enabled {
 		d.figures = append(d.figures,
