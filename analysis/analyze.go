@@ -52,6 +52,7 @@ type Result struct {
 	Adequacy    Adequacy
 	Separation  []Separation
 	Stability   Stability
+	Robust      RobustFit // outlier-resistant fit of the same k components
 }
 
 // Analyze preprocesses the table and computes its PCA and diagnostics. The
@@ -120,6 +121,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	r.Separation = EigenvalueSeparation(d.Eigenvalues, n, k)
 	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
 	r.Samples.Influence.Limit = InfluenceLimits(r.Samples.Influence, r.Stability, opt.Seed)
+	r.Robust = FitRobust(z, d, k, opt.Seed, opt.Threads)
 	return r, nil
 }
 

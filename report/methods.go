@@ -108,6 +108,8 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{fisher1915, author = {Fisher, Ronald A.}, title = {Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population}, journal = {Biometrika}, volume = {10}, number = {4}, pages = {507--521}, year = {1915}}`},
 	"fisher1924": {Citation: "Fisher, R. A. (1924). The distribution of the partial correlation coefficient. Metron 3: 329–332.", // from memory
 		BibTeX: `@article{fisher1924, author = {Fisher, Ronald A.}, title = {The distribution of the partial correlation coefficient}, journal = {Metron}, volume = {3}, pages = {329--332}, year = {1924}}`},
+	"locantore1999": {Citation: "Locantore, N., Marron, J. S., Simpson, D. G., Tripoli, N., Zhang, J. T. & Cohen, K. L. (1999). Robust principal component analysis for functional data. Test 8: 1–73.", // from memory
+		BibTeX: `@article{locantore1999, author = {Locantore, N. and Marron, J. S. and Simpson, D. G. and Tripoli, N. and Zhang, J. T. and Cohen, K. L.}, title = {Robust principal component analysis for functional data}, journal = {Test}, volume = {8}, number = {1}, pages = {1--73}, year = {1999}}`},
 	"gabriel1971": {Citation: "Gabriel, K. R. (1971). The biplot graphic display of matrices with application to principal component analysis. Biometrika 58: 453–467.",
 		BibTeX: `@article{gabriel1971, author = {Gabriel, K. Ruben}, title = {The biplot graphic display of matrices with application to principal component analysis}, journal = {Biometrika}, volume = {58}, number = {3}, pages = {453--467}, year = {1971}}`},
 }

@@ -29,6 +29,7 @@ type Document struct {
 	Loadings   LoadingsBlock
 	Scores     ScoresBlock
 	Outliers   OutliersBlock
+	Robust     RobustBlock
 	Stability  StabilityBlock
 
 	Methods    string
@@ -360,6 +361,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	d.Loadings = loadingsBlock(res)
 	d.Scores = scoresBlock(res)
 	d.Outliers = outliersBlock(res)
+	d.Robust = robustBlock(res)
 	d.Stability = stabilityBlock(res)
 	d.Methods, d.References = methods(res, meta)
 	d.Options = optionRows(meta.Options)
@@ -394,6 +396,9 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 		d.figures = append(d.figures, figureJob{d.Outliers.Influence, func() drawing { return influenceFigure(res) }})
 	}
 	d.figures = append(d.figures, contributionBlock(res, runContributions(res), &d.Outliers)...)
+	if d.Robust.Enabled {
+		d.figures = append(d.figures, figureJob{&d.Robust.Figure, func() drawing { return robustFigure(res) }})
+	}
 	if d.Stability.Enabled {
 		d.figures = append(d.figures,
 			figureJob{&d.Stability.Congruence, func() drawing { return congruenceFigure(res) }},
