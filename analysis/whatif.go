@@ -35,9 +35,12 @@ type WhatIf struct {
 	// Angle is the largest principal angle, in degrees, between the full
 	// fit's retained subspace and the refit's first k components
 	// (Björck & Golub 1973); AngleLimit the yardstick of resampling, the
-	// 95th percentile of the bootstrap subspace angles (InfluenceLimit),
-	// NaN without the bootstrap.
+	// 95th percentile of the bootstrap subspace angles over the resamples
+	// that drew every flagged sample (setAngleLimit), NaN without enough
+	// of them.
 	Angle, AngleLimit float64
+	// AngleResamples is how many resamples set AngleLimit.
+	AngleResamples int
 }
 
 // FlaggedSamples returns the samples the outlier and influence checks
@@ -143,8 +146,48 @@ func RefitWithoutFlagged(r *Result) *WhatIf {
 		w.RefitShare = append(w.RefitShare, 100*refit.Decomp.Eigenvalues[j]/refitTotal)
 	}
 	w.Angle = LargestPrincipalAngle(a, b)
-	w.AngleLimit = InfluenceLimit(r.Stability)
+	w.AngleLimit, w.AngleResamples = setAngleLimit(r, w.Flagged)
 	return w
+}
+
+// MinAngleResamples is the fewest bootstrap resamples a 95th percentile is
+// taken over for the what-if yardstick: with fewer, the percentile rests
+// on one or two values (common practice: about 20 values per tail
+// percentile at 95 %).
+const MinAngleResamples = 20
+
+// setAngleLimit returns the yardstick of the refit's subspace angle: the
+// 95th percentile of the bootstrap subspace angles over the resamples that
+// drew every flagged sample, and how many there were. As for the influence
+// check (InfluenceLimits), the resamples that lose the flagged samples
+// would otherwise put their own effect into the yardstick: with two gross
+// outliers, one resample in seven draws neither, so the 95th percentile
+// of all angles is at least the angle of leaving both out. NaN when the
+// bootstrap did not run or fewer than MinAngleResamples drew them all.
+func setAngleLimit(r *Result, flagged []int) (float64, int) {
+	n := r.Table.Rows()
+	var drawn []float64
+	for b, angle := range r.Stability.SubspaceAngles {
+		if math.IsNaN(angle) {
+			continue
+		}
+		c := bootstrapDraw(r.Options.Seed, b, n)
+		all := true
+		for _, i := range flagged {
+			if c[i] == 0 {
+				all = false
+				break
+			}
+		}
+		if all {
+			drawn = append(drawn, angle)
+		}
+	}
+	if len(drawn) < MinAngleResamples {
+		return math.NaN(), len(drawn)
+	}
+	slices.Sort(drawn)
+	return percentile(drawn, 95), len(drawn)
 }
 
 func sum(x []float64) float64 {

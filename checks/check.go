@@ -160,6 +160,7 @@ var Registry = []Check{
 	outliersQ,
 	influence,
 	dominance,
+	withoutFlagged,
 	// Stability: would the loadings come out the same on another sample?
 	loadingStability,
 	// Apply mode: new samples against a saved model.
