@@ -92,16 +92,17 @@ func ResolveExclusions(t *Table, entries []ExcludeEntry) ([]int, error) {
 		for i, e := range unknown {
 			quoted[i] = strconv.Quote(e.ID)
 		}
-		what := "--exclude names"
+		file, what := t.File, "--exclude names"
 		if unknown[0].File != "" {
-			what = "the exclusion list names"
+			file, what = unknown[0].File, "the exclusion list names"
+			column += " of " + t.File
 		}
 		noun := "a sample id"
 		if len(unknown) > 1 {
 			noun = fmt.Sprintf("%d sample ids", len(unknown))
 		}
-		return nil, &InputError{File: unknown[0].File, Line: unknown[0].Line,
-			Reason: fmt.Sprintf("%s %s not in %s of %s: %s", what, noun, column, t.File, strings.Join(quoted, ", "))}
+		return nil, &InputError{File: file, Line: unknown[0].Line,
+			Reason: fmt.Sprintf("%s %s not in %s: %s", what, noun, column, strings.Join(quoted, ", "))}
 	}
 	slices.Sort(out)
 	if left := t.Rows() - len(out); left < 3 {

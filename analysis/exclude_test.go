@@ -139,8 +139,8 @@ func TestResolveExclusions(t *testing.T) {
 		{"one id", []ExcludeEntry{{ID: "y"}}, []int{1}, "", 0},
 		{"an id held twice excludes both rows", []ExcludeEntry{{ID: "x"}}, []int{0, 4}, "", 0},
 		{"repeated entries count once", []ExcludeEntry{{ID: "z"}, {ID: "z"}}, []int{2}, "", 0},
-		{"unknown ids listed", []ExcludeEntry{{ID: "q"}, {ID: "y"}, {ID: "r"}}, nil, `--exclude names 2 sample ids not in the id column "name" of t.csv: "q", "r"`, 0},
-		{"unknown id from a file", []ExcludeEntry{{ID: "y", File: "ex.txt", Line: 1}, {ID: "v", File: "ex.txt", Line: 3}}, nil, `the exclusion list names a sample id not in`, 3},
+		{"unknown ids listed", []ExcludeEntry{{ID: "q"}, {ID: "y"}, {ID: "r"}}, nil, `t.csv: --exclude names 2 sample ids not in the id column "name": "q", "r"`, 0},
+		{"unknown id from a file", []ExcludeEntry{{ID: "y", File: "ex.txt", Line: 1}, {ID: "v", File: "ex.txt", Line: 3}}, nil, `ex.txt:3: the exclusion list names a sample id not in the id column "name" of t.csv: "v"`, 3},
 		{"too few left", []ExcludeEntry{{ID: "x"}, {ID: "y"}}, nil, "leaves 2, and a PCA needs at least 3", 0},
 	}
 	for _, tc := range cases {
