@@ -14,7 +14,7 @@ import (
 var withoutFlagged = Check{
 	ID:     withoutFlaggedID,
 	Title:  "The components hold without the flagged samples",
-	Source: "refit without the samples the outlier and influence checks name; each retained component paired with the refit's by the optimal assignment (Kuhn 1955) on |Tucker congruence|, which must stay ≥ 0.95 (Lorenzo-Seva & ten Berge 2006); the largest principal angle between the retained subspaces (Björck & Golub 1973) against the 95th percentile of the bootstrap subspace angles (common practice); and the retained count",
+	Source: "refit without the samples the outlier and influence checks name; each retained component paired with the refit's by the optimal (Hungarian) assignment on |Tucker congruence|, which must stay ≥ 0.95 (Lorenzo-Seva & ten Berge 2006); the largest principal angle between the retained subspaces (Björck & Golub 1973) against the 95th percentile of the bootstrap subspace angles (common practice); and the retained count",
 	judge: func(in Input) Result {
 		w := in.Run.WhatIf
 		switch {

@@ -30,6 +30,8 @@ type Document struct {
 	Scores     ScoresBlock
 	Outliers   OutliersBlock
 	Stability  StabilityBlock
+	Excluded   *ExcludedBlock // nil when no sample was excluded
+	WhatIf     *WhatIfBlock   // nil when no sample is flagged
 
 	Methods    string
 	References []Reference
@@ -355,6 +357,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	d.Loadings = loadingsBlock(res)
 	d.Scores = scoresBlock(res)
 	d.Outliers = outliersBlock(res)
+	d.Excluded, d.WhatIf = excludedBlock(res), whatIfBlock(res)
 	d.Stability = stabilityBlock(res)
 	d.Methods, d.References = methods(res, meta)
 	d.Options = optionRows(meta.Options)
