@@ -7,6 +7,10 @@ import (
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+
 	"pcqc/analysis"
 )
 
@@ -156,7 +160,7 @@ func excludedBlock(res *analysis.Result) *ExcludedBlock {
 	app := res.Excluded.Application
 	n := len(app.Table.IDs)
 	b := &ExcludedBlock{
-		Text: fmt.Sprintf("At the analyst's request (--exclude), %s left out of the fit and projected onto the model as new samples are in apply: training means and scales, the retained loadings, T² against the limit for new observations (%s at 99 %%) and Q against the model's (%s at 99 %%). The score plots mark them with open squares.",
+		Text: fmt.Sprintf("At the analyst's request, %s left out of the fit and projected onto the model as new samples are in apply: training means and scales, the retained loadings, T² against the limit for new observations (%s at 99 %%) and Q against the model's (%s at 99 %%). The score plots mark them with open squares.",
 			countNoun(n, "sample")+" "+was(n), g4(app.Limits.T2_99), g4(app.Limits.Q99)),
 		Header: []string{"Sample", "Line", "T²", "Q", "Beyond"},
 	}
@@ -249,4 +253,41 @@ func whatIfMethodSentence(res *analysis.Result) string {
 	}
 	return fmt.Sprintf("The analysis was refitted without the %s the outlier and influence checks flagged; components were paired by the optimal assignment on the absolute Tucker congruence (Tucker 1951), judged against 0.95 (Lorenzo-Seva & ten Berge 2006), and the retained subspaces compared by their largest principal angle (Björck & Golub 1973).",
 		countNoun(len(w.Flagged), "sample"))
+}
+
+// addExcludedScores draws the excluded samples on a score plot as open
+// squares, a marker no fitted sample uses, at their projected scores on
+// components a and b. With b < 0 (the one-component plot against sample
+// order) they are placed after the fitted samples, in their input order.
+func addExcludedScores(p *plot.Plot, ann *labeller, res *analysis.Result, a, b int) {
+	if res.Excluded == nil {
+		return
+	}
+	app := res.Excluded.Application
+	m := len(app.Table.IDs)
+	x, y := make([]float64, m), make([]float64, m)
+	for e := 0; e < m; e++ {
+		if b < 0 {
+			x[e], y[e] = float64(res.Decomp.Rows+e+1), app.Scores.At(e, a)
+		} else {
+			x[e], y[e] = app.Scores.At(e, a), app.Scores.At(e, b)
+		}
+	}
+	addScatter(p, x, y, draw.GlyphStyle{Color: accent99, Shape: draw.SquareGlyph{}, Radius: vg.Points(3.5)}, "excluded, projected")
+	ann.addPoints(x, y, vg.Points(3))
+}
+
+// noteExcluded adds to the score plots' captions what the open squares are.
+func noteExcluded(b *ScoresBlock, res *analysis.Result) {
+	if res.Excluded == nil {
+		return
+	}
+	note := " Open squares: the samples excluded from the fit at the analyst's request, projected onto the model."
+	for i := range b.Figures {
+		if b.Figures[i].Stem == "scores-pc1" {
+			b.Figures[i].Caption += " The excluded samples (open squares) follow the fitted ones, at their projected PC1 scores."
+			continue
+		}
+		b.Figures[i].Caption += note
+	}
 }

@@ -675,6 +675,7 @@ func scoresBlock(res *analysis.Result) ScoresBlock {
 		b.Biplot = &Figure{Stem: "biplot", Alt: "Biplot of PC1 and PC2",
 			Caption: "Biplot (Gabriel 1971), column-metric form: samples at their standardised scores, variables as arrows to loading × √eigenvalue, stretched by one common factor. Angles between arrows approximate correlations."}
 	}
+	noteExcluded(&b, res)
 	return b
 }
 
