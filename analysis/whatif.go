@@ -102,17 +102,28 @@ func RefitWithoutFlagged(r *Result) *WhatIf {
 		return w
 	}
 	kept, _ := splitRows(r.Table, w.Flagged)
+	if j := constantColumn(kept); j >= 0 {
+		w.Skipped = fmt.Sprintf("without them the variable %s takes a single value, so the other samples cannot be analysed alone with the same variables", kept.Variables[j])
+		return w
+	}
 	opt := r.Options
 	opt.Exclude, opt.InPlace, opt.Progress = nil, true, nil
 	opt.Bootstrap = 0
 	opt.noWhatIf = true
 	refit, err := Analyze(kept, opt)
 	if err != nil {
-		w.Skipped = "the refit without them failed: " + err.Error()
+		// The error names a cell of the whole table, which would mislead
+		// here; what matters is that the other samples do not stand alone.
+		w.Skipped = "the other samples cannot be analysed as a table of their own"
 		return w
 	}
 	if refit.Decomp.Components() < k {
 		w.Skipped = fmt.Sprintf("the refit has %d components, fewer than the %d retained", refit.Decomp.Components(), k)
+		return w
+	}
+	refitTotal := sum(refit.Decomp.Eigenvalues)
+	if !(refitTotal > 0) || math.IsInf(refitTotal, 0) {
+		w.Skipped = "without them the other samples have no variance to decompose"
 		return w
 	}
 	w.Refit = refit
@@ -137,7 +148,7 @@ func RefitWithoutFlagged(r *Result) *WhatIf {
 		}
 	}
 	w.Match = AssignMaximum(phi)
-	total, refitTotal := sum(r.Decomp.Eigenvalues), sum(refit.Decomp.Eigenvalues)
+	total := sum(r.Decomp.Eigenvalues)
 	for i, j := range w.Match {
 		w.Congruence = append(w.Congruence, phi[i][j])
 		w.Eigenvalue = append(w.Eigenvalue, r.Decomp.Eigenvalues[i])
@@ -146,6 +157,12 @@ func RefitWithoutFlagged(r *Result) *WhatIf {
 		w.RefitShare = append(w.RefitShare, 100*refit.Decomp.Eigenvalues[j]/refitTotal)
 	}
 	w.Angle = LargestPrincipalAngle(a, b)
+	for i := range w.Congruence {
+		if math.IsNaN(w.Congruence[i]) || math.IsNaN(w.RefitShare[i]) || math.IsNaN(w.Angle) {
+			*w = WhatIf{Flagged: w.Flagged, Why: w.Why, Skipped: "the refit's components cannot be compared with these (a congruence, share or angle is not a number)"}
+			return w
+		}
+	}
 	w.AngleLimit, w.AngleResamples = setAngleLimit(r, w.Flagged)
 	return w
 }
@@ -257,4 +274,20 @@ func AssignMaximum(w [][]float64) []int {
 		out[match[j]-1] = j - 1
 	}
 	return out
+}
+
+// constantColumn returns the first variable of t that takes a single
+// value (exactly: such a column has no spread to scale by), or −1.
+func constantColumn(t *Table) int {
+	n, p := t.X.Dims()
+	for j := 0; j < p; j++ {
+		first, same := t.X.At(0, j), true
+		for i := 1; i < n && same; i++ {
+			same = t.X.At(i, j) == first
+		}
+		if same {
+			return j
+		}
+	}
+	return -1
 }
