@@ -111,8 +111,12 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 
 	verdict := checks.Verdict(results)
 	level, _ := job.flags.failLevel()
-	fmt.Fprintf(stdout, "pcqc: %d samples × %d variables, %d component%s retained (%s); verdict %s\n",
-		res.Table.Rows(), len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
+	excluded := ""
+	if n := len(res.Excluded.IDs()); n > 0 {
+		excluded = fmt.Sprintf(" (%d excluded)", n)
+	}
+	fmt.Fprintf(stdout, "pcqc: %d samples%s × %d variables, %d component%s retained (%s); verdict %s\n",
+		res.Table.Rows(), excluded, len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
 	reportWritten(stdout, stderr, out)
 	if level != "" && checks.Reached(results, level) {
 		return exitChecks, nil

@@ -29,7 +29,7 @@ func TestRunExcludesSamples(t *testing.T) {
 	if status != exitOK {
 		t.Fatalf("status %d: %s", status, stderr)
 	}
-	if !strings.Contains(stdout, "47 samples") {
+	if !strings.Contains(stdout, "47 samples (3 excluded)") {
 		t.Errorf("stdout does not report the 47 fitted samples: %q", stdout)
 	}
 	m := readSummaryFile[struct {
