@@ -23,6 +23,13 @@ type Options struct {
 	// InPlace preprocesses the table's matrix in place, saving one copy of
 	// the data: afterwards Table.X holds the preprocessed matrix (Result.Z).
 	InPlace bool
+	// Exclude lists rows of the table (ascending, see ResolveExclusions)
+	// left out of the fit and projected onto it afterwards
+	// (Result.Excluded).
+	Exclude []int
+	// noWhatIf leaves out the refit without the flagged samples: the
+	// refit itself must not refit again.
+	noWhatIf bool
 }
 
 // Defaults for Options.
@@ -53,6 +60,12 @@ type Result struct {
 	Separation  []Separation
 	Stability   Stability
 	Robust      RobustFit // outlier-resistant fit of the same k components
+	// Excluded holds the samples Options.Exclude left out, projected onto
+	// the model; nil when none were.
+	Excluded *Exclusion
+	// WhatIf is the refit without the samples the outlier and influence
+	// checks flag (RefitWithoutFlagged).
+	WhatIf *WhatIf
 }
 
 // Analyze preprocesses the table and computes its PCA and diagnostics. The
@@ -63,6 +76,10 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	}
 	if opt.Components.Kind == "" {
 		opt.Components = DefaultComponentRule
+	}
+	var excluded *Table
+	if len(opt.Exclude) > 0 {
+		t, excluded = splitRows(t, opt.Exclude)
 	}
 	pp, err := FitPreprocessing(t.X, t.Transform, opt.Scaling)
 	if err != nil {
@@ -122,6 +139,12 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 	r.Stability = Bootstrap(r, opt.Bootstrap, opt.Seed, opt.Threads, opt.Progress)
 	r.Samples.Influence.Limit = InfluenceLimits(r.Samples.Influence, r.Stability, opt.Seed)
 	r.Robust = FitRobust(z, d, k, opt.Seed, opt.Threads)
+	if excluded != nil {
+		r.Excluded = projectExcluded(r, opt.Exclude, excluded)
+	}
+	if !opt.noWhatIf {
+		r.WhatIf = RefitWithoutFlagged(r)
+	}
 	return r, nil
 }
 

@@ -161,6 +161,7 @@ var Registry = []Check{
 	influence,
 	dominance,
 	robustAgreement,
+	withoutFlagged,
 	// Stability: would the loadings come out the same on another sample?
 	loadingStability,
 	// Apply mode: new samples against a saved model.

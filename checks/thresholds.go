@@ -214,3 +214,14 @@ const (
 	// bootstrap underestimates the spread at small n/p.
 	CompareCongruenceLimit = 0.85
 )
+
+// The refit without the flagged samples (without-flagged).
+const (
+	// WithoutFlaggedCongruence is the least |Tucker congruence| a
+	// component may keep when the flagged samples are left out: 0.95 and
+	// above means the components can be considered equal, 0.85–0.94 only
+	// "fair similarity" (Lorenzo-Seva & ten Berge 2006, Methodology
+	// 2:57–64). The subspace angle is held against the 95th percentile of
+	// the bootstrap subspace angles (common practice, as for influence).
+	WithoutFlaggedCongruence = 0.95
+)

@@ -724,6 +724,7 @@ func scoresFigure(res *analysis.Result, a, b int) drawing {
 	left := addGroupedPoints(p, res.Table, x, y)
 	ann := &labeller{}
 	ann.addPoints(x, y, vg.Points(sampleRadius))
+	addExcludedScores(p, ann, res, a, b)
 	nameSamples(ann, res.Table.IDs, flaggedSamples(res), x, y, beyond99)
 	groupNote(ann, res.Table)
 	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann}
@@ -747,6 +748,7 @@ func indexScoresFigure(res *analysis.Result) drawing {
 	}
 	left := addGroupedPoints(p, res.Table, x, y)
 	ann.addPoints(x, y, vg.Points(sampleRadius))
+	addExcludedScores(p, ann, res, 0, -1)
 	nameSamples(ann, res.Table.IDs, flaggedSamples(res), x, y, beyond99)
 	groupNote(ann, res.Table)
 	dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann}

@@ -160,7 +160,7 @@ func TestHostileNamesStayLiteral(t *testing.T) {
 	// report.md: exactly the template's sections.
 	md, _ := os.ReadFile(filepath.Join(dir, "report.md"))
 	want := []string{"1 " + title, "2 Verdict", "3 What the checks that did not pass found", "2 Data", "2 Components", "2 Loadings", "2 Scores",
-		"2 Outliers", "2 Robust cross-check", "2 Stability", "2 Methods", "3 References", "2 Reproduce", "2 Cautions", "2 Appendix: every check", "3 What each check found"}
+		"2 Outliers", "2 Without the flagged samples", "2 Robust cross-check", "2 Stability", "2 Methods", "3 References", "2 Reproduce", "2 Cautions", "2 Appendix: every check", "3 What each check found"}
 	if got := headings(t, md); strings.Join(got, "\n") != strings.Join(want, "\n") {
 		t.Errorf("report.md headings:\n%s\nwant:\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
 	}

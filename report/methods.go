@@ -160,12 +160,13 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 		}
 	}
 	add(dataSentence(res, meta))
-	add(rowsSentence(res.Table))
+	add(rowsSentence(res.Table), exclusionMethodSentence(res))
 	add(exclusionSentences(res.Table.DroppedVariables)...)
 	add(preprocessingSentence(res), imputationSentence(res.Table))
 	add(decompositionSentence(res), verificationSentence(res))
 	add(componentSentences(res)...)
 	add(outlierSentences(res)...)
+	add(whatIfMethodSentence(res))
 	add(adequacySentence(res))
 	add(stabilitySentences(res)...)
 	add(fmt.Sprintf("Random streams were seeded with %d.", res.Options.Seed))

@@ -31,6 +31,8 @@ type Document struct {
 	Outliers   OutliersBlock
 	Robust     RobustBlock
 	Stability  StabilityBlock
+	Excluded   *ExcludedBlock // nil when no sample was excluded
+	WhatIf     *WhatIfBlock   // nil when no sample is flagged
 
 	Methods    string
 	References []Reference
@@ -362,6 +364,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 	d.Scores = scoresBlock(res)
 	d.Outliers = outliersBlock(res)
 	d.Robust = robustBlock(res)
+	d.Excluded, d.WhatIf = excludedBlock(res), whatIfBlock(res)
 	d.Stability = stabilityBlock(res)
 	d.Methods, d.References = methods(res, meta)
 	d.Options = optionRows(meta.Options)
@@ -683,6 +686,7 @@ func scoresBlock(res *analysis.Result) ScoresBlock {
 		b.Biplot = &Figure{Stem: "biplot", Alt: "Biplot of PC1 and PC2",
 			Caption: "Biplot (Gabriel 1971), column-metric form: samples at their standardised scores, variables as arrows to loading × √eigenvalue, stretched by one common factor. Angles between arrows approximate correlations."}
 	}
+	noteExcluded(&b, res)
 	return b
 }
 

@@ -53,16 +53,19 @@ func (o Options) MarshalJSON() ([]byte, error) {
 
 // Summary is the content of summary.json.
 type Summary struct {
-	Tool       ToolInfo        `json:"tool"`
-	Input      InputInfo       `json:"input"`
-	Options    Options         `json:"options"`
-	Components ComponentsInfo  `json:"components"`
-	Limits     LimitsInfo      `json:"limits"`
-	Stability  *StabilityInfo  `json:"stability"`
-	Adequacy   AdequacyInfo    `json:"adequacy"`
-	Review     *ReviewInfo     `json:"review,omitempty"`
-	Checks     []checks.Result `json:"checks"`
-	Verdict    checks.Status   `json:"verdict"`
+	Tool       ToolInfo       `json:"tool"`
+	Input      InputInfo      `json:"input"`
+	Options    Options        `json:"options"`
+	Components ComponentsInfo `json:"components"`
+	Limits     LimitsInfo     `json:"limits"`
+	Stability  *StabilityInfo `json:"stability"`
+	Adequacy   AdequacyInfo   `json:"adequacy"`
+	Review     *ReviewInfo    `json:"review,omitempty"`
+	// Excluded and WithoutFlagged: see exclude.go.
+	Excluded       *ExcludedInfo   `json:"excluded,omitempty"`
+	WithoutFlagged *WhatIfInfo     `json:"without_flagged,omitempty"`
+	Checks         []checks.Result `json:"checks"`
+	Verdict        checks.Status   `json:"verdict"`
 }
 
 type ToolInfo struct {
@@ -449,11 +452,13 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			QFamily:          Number(lim.QFamily),
 			Influence95:      Number(analysis.InfluenceLimit(res.Stability)),
 		},
-		Stability: stabilityInfo(res),
-		Adequacy:  adequacyInfo(res),
-		Review:    reviewInfo(audit.Review, results),
-		Checks:    jsonChecks(results),
-		Verdict:   checks.Verdict(results),
+		Stability:      stabilityInfo(res),
+		Adequacy:       adequacyInfo(res),
+		Review:         reviewInfo(audit.Review, results),
+		Excluded:       excludedInfo(res),
+		WithoutFlagged: whatIfInfo(res),
+		Checks:         jsonChecks(results),
+		Verdict:        checks.Verdict(results),
 	}
 }
 

@@ -136,13 +136,19 @@ func PressRows(res *analysis.Result) [][]string {
 func writeSamples(path string, res *analysis.Result) error {
 	s := res.Samples
 	header := []string{IDHeader(res.Table), "t2", "q", "leverage", "beyond", "influence_deg", "eigenvalue_change"}
+	header = append(header, excludedColumns(res)...)
 	inf := s.Influence
-	return streamCSV(path, header, len(res.Table.IDs), func(i int, dst []string) []string {
+	n := len(res.Table.IDs)
+	return streamCSV(path, header, samplesRowCount(res), func(i int, dst []string) []string {
+		if i >= n {
+			return excludedSampleRow(res, i-n, dst)
+		}
 		angle, change := "", ""
 		if inf.Angle != nil {
 			angle, change = num(inf.Angle[i]), num(largestChange(inf.EigenChange[i]))
 		}
-		return append(dst, res.Table.IDs[i], num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " "), angle, change)
+		dst = append(dst, res.Table.IDs[i], num(s.T2[i]), num(s.Q[i]), num(s.Leverage[i]), strings.Join(s.Beyond(i), " "), angle, change)
+		return fittedScoreCells(res, i, dst)
 	})
 }
 

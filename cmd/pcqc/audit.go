@@ -45,6 +45,11 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 	if job.adjust != nil {
 		job.adjust(&opt)
 	}
+	rows, excludeOption, err := job.flags.exclude.resolve(job.table)
+	if err != nil {
+		return 0, err
+	}
+	opt.Exclude = rows
 	formats, ropt, err := job.flags.reportOptions(time.Now())
 	if err != nil {
 		return 0, err
@@ -66,6 +71,9 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 		Version: Version,
 		Command: job.command,
 		Options: job.flags.effective(job.read, job.table),
+	}
+	if job.flags.set["exclude"] || job.flags.set["exclude-file"] {
+		meta.Options = append(meta.Options, excludeOption)
 	}
 
 	out, err := job.flags.beginOutput(job.reads)
@@ -103,8 +111,12 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 
 	verdict := checks.Verdict(results)
 	level, _ := job.flags.failLevel()
-	fmt.Fprintf(stdout, "pcqc: %d samples × %d variables, %d component%s retained (%s); verdict %s\n",
-		job.table.Rows(), len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
+	excluded := ""
+	if n := len(res.Excluded.IDs()); n > 0 {
+		excluded = fmt.Sprintf(" (%d excluded)", n)
+	}
+	fmt.Fprintf(stdout, "pcqc: %d samples%s × %d variables, %d component%s retained (%s); verdict %s\n",
+		res.Table.Rows(), excluded, len(job.table.Variables), res.Retained, plural(res.Retained), res.Rule, verdict)
 	reportWritten(stdout, stderr, out)
 	if level != "" && checks.Reached(results, level) {
 		return exitChecks, nil

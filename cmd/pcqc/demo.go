@@ -31,7 +31,7 @@ The table is written to demo-data.csv inside the output folder (default
 pcqc-demo). Demo takes run's flags; --id and --group default to sample_id and
 station.
 
-` + auditFlagHelp,
+` + auditFlagHelp + excludeFlagHelp,
 	run: runDemo,
 }
 
@@ -39,6 +39,7 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
 	var f auditFlags
 	f.register(fs, "pcqc-demo")
+	f.exclude.register(fs)
 	if _, helped, err := parseCommand("demo", fs, &f, args, 0, "no arguments", stdout); helped || err != nil {
 		return exitOK, err
 	}
@@ -48,7 +49,7 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 	if !f.set["group"] {
 		f.group = demo.Station
 	}
-	read, err := f.validate()
+	read, err := f.validate(f.exclude.reads(nil)...)
 	if err != nil {
 		return 0, err
 	}
@@ -63,6 +64,7 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 		read:    read,
 		table:   t,
 		command: append([]string{"pcqc", "demo"}, args...),
+		reads:   f.exclude.reads(nil),
 		extra:   map[string][]byte{demoDataName: data},
 		extend: func(dir string, res *analysis.Result, meta report.Meta, formats report.Formats, ropt report.ReportOptions) error {
 			return demoLaterBatch(dir, res, &f, read, meta, formats, ropt, stdout)

@@ -27,6 +27,8 @@ var flagValues = map[string]string{
 	"group":         "a column name",
 	"columns":       "column names, comma-separated",
 	"drop":          "column names, comma-separated",
+	"exclude":       "sample ids, comma-separated",
+	"exclude-file":  "a file",
 	"missing":       "one of fail, drop, mean",
 	"delim":         "one of auto, ',', ';', tab",
 	"decimal":       "one of point, comma",

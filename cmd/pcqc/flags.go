@@ -43,6 +43,8 @@ type auditFlags struct {
 	author       string
 	date         string
 
+	exclude excludeFlags // run and demo only (see exclude.go)
+
 	set map[string]bool // flags given on the command line
 }
 

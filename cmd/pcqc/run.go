@@ -29,7 +29,7 @@ outputs are written), 2 usage or input error (nothing is written), 3 the
 file system refused the outputs, 70 an internal error (a bug; please
 report it), 129/130/143 interrupted.
 
-` + auditFlagHelp,
+` + auditFlagHelp + excludeFlagHelp,
 	run: runRun,
 }
 
@@ -37,6 +37,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	fs := flag.NewFlagSet("run", flag.ContinueOnError)
 	var f auditFlags
 	f.register(fs, "")
+	f.exclude.register(fs)
 	pos, helped, err := parseCommand("run", fs, &f, args, 1, "one data file", stdout)
 	if helped || err != nil {
 		return exitOK, err
@@ -45,7 +46,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	if f.out == "" {
 		f.out = analysis.StemName(data) + "-pcqc"
 	}
-	read, err := f.validate(data)
+	read, err := f.validate(f.exclude.reads([]string{data})...)
 	if err != nil {
 		return 0, err
 	}
@@ -56,7 +57,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
-	return runAudit(auditJob{flags: &f, read: read, table: t, reads: []string{data}, command: append([]string{"pcqc", "run"}, args...)}, stdout, stderr)
+	return runAudit(auditJob{flags: &f, read: read, table: t, reads: f.exclude.reads([]string{data}), command: append([]string{"pcqc", "run"}, args...)}, stdout, stderr)
 }
 
 func pathReason(err error) string {
