@@ -216,64 +216,19 @@ func sum(x []float64) float64 {
 }
 
 // AssignMaximum returns the assignment of rows to columns of the square
-// matrix w that maximises the summed weight: out[i] is row i's column. It
-// is the Hungarian method (Kuhn 1955, Naval Res. Logist. Q. 2:83–97) with
-// potentials, O(k³), so that pairing components is optimal rather than
-// greedy (a greedy pairing can give the best match to the wrong row).
+// matrix w that maximises the summed weight: out[i] is row i's column, so
+// that pairing components is optimal rather than greedy (a greedy pairing
+// can give the best match to the wrong row). It is Assignment (the
+// Hungarian method) on the negated weights.
 func AssignMaximum(w [][]float64) []int {
-	k := len(w)
-	// Minimise cost = −w over 1-based arrays; u, v are the potentials,
-	// way the augmenting path, match[j] the row holding column j.
-	inf := math.Inf(1)
-	u, v := make([]float64, k+1), make([]float64, k+1)
-	match, way := make([]int, k+1), make([]int, k+1)
-	for i := 1; i <= k; i++ {
-		match[0] = i
-		j0 := 0
-		minv := make([]float64, k+1)
-		used := make([]bool, k+1)
-		for j := range minv {
-			minv[j] = inf
-		}
-		for {
-			used[j0] = true
-			i0, delta, j1 := match[j0], inf, 0
-			for j := 1; j <= k; j++ {
-				if used[j] {
-					continue
-				}
-				cur := -w[i0-1][j-1] - u[i0] - v[j]
-				if cur < minv[j] {
-					minv[j], way[j] = cur, j0
-				}
-				if minv[j] < delta {
-					delta, j1 = minv[j], j
-				}
-			}
-			for j := 0; j <= k; j++ {
-				if used[j] {
-					u[match[j]] += delta
-					v[j] -= delta
-				} else {
-					minv[j] -= delta
-				}
-			}
-			j0 = j1
-			if match[j0] == 0 {
-				break
-			}
-		}
-		for j0 != 0 {
-			j1 := way[j0]
-			match[j0] = match[j1]
-			j0 = j1
+	cost := make([][]float64, len(w))
+	for i, row := range w {
+		cost[i] = make([]float64, len(row))
+		for j, x := range row {
+			cost[i][j] = -x
 		}
 	}
-	out := make([]int, k)
-	for j := 1; j <= k; j++ {
-		out[match[j]-1] = j - 1
-	}
-	return out
+	return Assignment(cost)
 }
 
 // constantColumn returns the first variable of t that takes a single
