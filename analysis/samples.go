@@ -2,6 +2,7 @@ package analysis
 
 import (
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/mathext"
@@ -260,7 +261,16 @@ func (l *Limits) judgeT2(scores mat.Matrix, live []bool, t2 []float64, phase Ree
 	floor := math.NaN()
 	if l.T2Family > l.T2FamilyNormal {
 		floor = l.T2Family
+		// Start from the first run's set as well as from the samples
+		// beyond the raised limit: samples that pull a component of their
+		// own have an in-sample T² near n/2 at most, below a raised limit,
+		// and only the re-estimation shows how far out they are.
 		_, start := CountAbove(t2, l.T2Family)
+		for _, i := range phase.SetAside {
+			if !slices.Contains(start, i) {
+				start = append(start, i)
+			}
+		}
 		phase = ReestimateT2(scores, live, l.FamilyConf, floor, start)
 	}
 	l.T2Phase = phase

@@ -69,8 +69,8 @@ type ScoreTail struct {
 // Fitted reports whether the fit found a tail heavier than the Gaussian.
 func (f ScoreTail) Fitted() bool { return f.DF > 0 && !math.IsInf(f.DF, 1) }
 
-// FitScoreTail fits σ·t_ν to the standardised scores t_ia/√λ_a of the
-// retained components (the columns of scores, eigenvalues λ_a) whose
+// FitScoreTail fits σ·t_ν to the standardised scores of the retained
+// components (the columns of scores, eigenvalues λ_a) whose
 // eigenvalue is not null, over the rows not marked in skip (the candidate
 // outliers, which would otherwise widen the limits meant to catch them).
 func FitScoreTail(scores mat.Matrix, eigenvalues []float64, skip []bool) ScoreTail {
@@ -97,10 +97,26 @@ func FitScoreTail(scores mat.Matrix, eigenvalues []float64, skip []bool) ScoreTa
 		}
 		rows = kept
 	}
+	// Each component is standardised by the root mean square of its
+	// scores over the rows kept, not by its eigenvalue: samples left out
+	// as candidate outliers inflate the eigenvalue of the component they
+	// pull, and pooling components standardised to unequal scales would
+	// make a scale mixture, a heavy tail of the fit's own making.
+	scale := make([]float64, len(live))
+	for c, a := range live {
+		ss := 0.0
+		for _, i := range rows {
+			x := scores.At(i, a)
+			ss += x * x
+		}
+		scale[c] = math.Sqrt(ss / float64(len(rows)))
+	}
 	u := make([]float64, 0, len(rows)*len(live))
 	for _, i := range rows {
-		for _, a := range live {
-			u = append(u, scores.At(i, a)/math.Sqrt(eigenvalues[a]))
+		for c, a := range live {
+			if scale[c] > 0 {
+				u = append(u, scores.At(i, a)/scale[c])
+			}
 		}
 	}
 	return fitStudentT(u)

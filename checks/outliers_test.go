@@ -126,3 +126,30 @@ func skipSimulationWhenShort(t *testing.T) {
 		t.Skip("simulation over many tables; run without -short")
 	}
 }
+
+// TestOutliersThatMakeAComponentAreNamed: two gross outliers (±15 on three
+// of eight variables) pull a component of their own, so their in-sample T²
+// is near n/2 and the other samples' scores on it are small. The tail fit
+// must not read the kept samples' unequal scales as a heavy tail (it once
+// raised the limit to 468 and named neither), and outliers-t2 must name
+// both on every seed.
+func TestOutliersThatMakeAComponentAreNamed(t *testing.T) {
+	const n, p = 120, 8
+	for seed := uint64(1); seed <= 6; seed++ {
+		x, _ := synth.LowRank(synth.RNG(seed, 91), n, p, []float64{3}, 1)
+		for _, i := range []int{10, 40} {
+			sign := 1.0
+			if i == 10 {
+				sign = -1
+			}
+			for _, j := range []int{5, 6, 7} {
+				x.Set(i, j, x.At(i, j)+sign*15)
+			}
+		}
+		res := analyseFixed(t, x, 2, 0)
+		r := outliersT2.Run(Input{Run: res})
+		if r.Status != Warn || !mentions(r.Message, res.Table.IDs[10]) || !mentions(r.Message, res.Table.IDs[40]) {
+			t.Errorf("seed %d: outliers-t2 %s: %s", seed, r.Status, r.Message)
+		}
+	}
+}
