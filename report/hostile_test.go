@@ -177,7 +177,7 @@ func TestHostileNamesStayLiteral(t *testing.T) {
 		dir      string
 		h2, pre  int
 		sections []string
-	}{{dir, 12, 1, want}, {applyDir, 9, 1, wantApply}} {
+	}{{dir, 13, 1, want}, {applyDir, 9, 1, wantApply}} {
 		elements, images, text := htmlReport(t, filepath.Join(c.dir, "report.html"))
 		for _, tag := range []string{"script", "a", "ol", "h4", "b", "iframe", "img"} {
 			if elements[tag] > 0 {
