@@ -269,10 +269,6 @@ func contributionInto(c *Contribution, z, t []float64, v *mat.Dense, eigenvalues
 // is zero or not a number is ignored; a T² or Q that is not a finite number
 // ranks first.
 func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
-	type ranked struct {
-		i     int
-		score float64
-	}
 	var out []ranked
 	for i := range t2 {
 		score := 0.0
@@ -291,6 +287,27 @@ func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
 			out = append(out, ranked{i, score})
 		}
 	}
+	return worstFirst(out)
+}
+
+// Beyond lists the limits sample i passes, as SampleStats.Beyond does.
+func (app *Application) Beyond(i int) []string {
+	s := SampleStats{T2: app.T2, Q: app.Q, Leverage: app.Leverage,
+		Limits: Limits{T2_95: app.Limits.T2_95, T2_99: app.Limits.T2_99, Q95: app.Limits.Q95, Q99: app.Limits.Q99,
+			QMethod: app.Limits.QMethod, Leverage: LeverageFactor * float64(app.Model.Retained+1) / float64(app.Model.Input.Rows),
+			FamilyConf: app.FamilyConf, T2Family: app.T2Family, QFamily: app.QFamily}}
+	return s.Beyond(i)
+}
+
+// ranked is a sample and how far beyond its limits it lies.
+type ranked struct {
+	i     int
+	score float64
+}
+
+// worstFirst returns the samples of out ordered by score, largest first,
+// ties in their given order.
+func worstFirst(out []ranked) []int {
 	slices.SortStableFunc(out, func(a, b ranked) int {
 		switch {
 		case a.score > b.score:
@@ -305,13 +322,4 @@ func RankBeyond99(t2, q []float64, t2Limit99, qLimit99 float64) []int {
 		idx[j] = r.i
 	}
 	return idx
-}
-
-// Beyond lists the limits sample i passes, as SampleStats.Beyond does.
-func (app *Application) Beyond(i int) []string {
-	s := SampleStats{T2: app.T2, Q: app.Q, Leverage: app.Leverage,
-		Limits: Limits{T2_95: app.Limits.T2_95, T2_99: app.Limits.T2_99, Q95: app.Limits.Q95, Q99: app.Limits.Q99,
-			QMethod: app.Limits.QMethod, Leverage: LeverageFactor * float64(app.Model.Retained+1) / float64(app.Model.Input.Rows),
-			FamilyConf: app.FamilyConf, T2Family: app.T2Family, QFamily: app.QFamily}}
-	return s.Beyond(i)
 }

@@ -182,10 +182,6 @@ func familyFlagged(s SampleStats) []int {
 		}
 	}
 	hasQ := l.QMethod != QNone && l.QFamily > 0
-	type ranked struct {
-		i     int
-		score float64
-	}
 	var out []ranked
 	for i := range s.T2 {
 		inT2, inQ := t2Set[i], hasQ && i < len(s.Q) && above(s.Q[i], l.QFamily)
@@ -204,18 +200,5 @@ func familyFlagged(s SampleStats) []int {
 		}
 		out = append(out, ranked{i, score})
 	}
-	slices.SortStableFunc(out, func(a, b ranked) int {
-		switch {
-		case a.score > b.score:
-			return -1
-		case a.score < b.score:
-			return 1
-		}
-		return 0
-	})
-	idx := make([]int, len(out))
-	for j, r := range out {
-		idx[j] = r.i
-	}
-	return idx
+	return worstFirst(out)
 }
