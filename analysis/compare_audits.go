@@ -262,7 +262,7 @@ func CompareAudits(a, b *SavedAudit) *AuditComparison {
 		}
 	}
 	match := Assignment(cost)
-	pa, pb := percentOfTotal(a.Model.Eigenvalues), percentOfTotal(b.Model.Eigenvalues)
+	pa, pb := PercentOfTotal(a.Model.Eigenvalues), PercentOfTotal(b.Model.Eigenvalues)
 	pairedB := make([]bool, kb)
 	for i, j := range match {
 		if j < 0 {
@@ -345,8 +345,8 @@ func checkChanges(a, b []SavedCheck) []CheckChange {
 	return out
 }
 
-// percentOfTotal returns each eigenvalue as a percentage of their sum.
-func percentOfTotal(eigen []float64) []float64 {
+// PercentOfTotal returns each eigenvalue as a percentage of their sum.
+func PercentOfTotal(eigen []float64) []float64 {
 	total := 0.0
 	for _, l := range eigen {
 		total += l

@@ -165,15 +165,7 @@ func largestChange(c []float64) float64 {
 
 // Percentages returns each eigenvalue as a percentage of their sum.
 func Percentages(eigenvalues []float64) []float64 {
-	total := 0.0
-	for _, l := range eigenvalues {
-		total += l
-	}
-	out := make([]float64, len(eigenvalues))
-	for a, l := range eigenvalues {
-		out[a] = 100 * l / total
-	}
-	return out
+	return analysis.PercentOfTotal(eigenvalues)
 }
 
 // LoadingsRows builds loadings.csv for the retained components.
