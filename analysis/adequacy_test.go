@@ -9,12 +9,13 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
-func analyzeFile(t *testing.T, file string, opt ReadOptions, scaling Scaling) *Result {
+func analyzeFile(t *testing.T, file string, opt intake.ReadOptions, scaling Scaling) *Result {
 	t.Helper()
-	tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", file), opt)
+	tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", file), opt)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -30,11 +31,11 @@ func TestSkewnessMatchesPandas(t *testing.T) {
 	// values also recalled from common tutorials (from memory) for iris.
 	cases := []struct {
 		file string
-		opt  ReadOptions
+		opt  intake.ReadOptions
 		want []float64
 	}{
-		{"iris.csv", ReadOptions{GroupColumn: "species"}, []float64{0.314911, 0.318966, -0.274884, -0.102967}},
-		{"usarrests.csv", ReadOptions{}, []float64{0.393956, 0.234410, -0.226009, 0.801200}},
+		{"iris.csv", intake.ReadOptions{GroupColumn: "species"}, []float64{0.314911, 0.318966, -0.274884, -0.102967}},
+		{"usarrests.csv", intake.ReadOptions{}, []float64{0.393956, 0.234410, -0.226009, 0.801200}},
 	}
 	for _, c := range cases {
 		res := analyzeFile(t, c.file, c.opt, ScaleUnit)
@@ -51,14 +52,14 @@ func TestBartlettAndKMOMatchReference(t *testing.T) {
 	// (np.corrcoef, np.linalg.det, np.linalg.inv, scipy.stats.chi2.sf).
 	cases := []struct {
 		file        string
-		opt         ReadOptions
+		opt         intake.ReadOptions
 		chi2, p     float64
 		kmo         float64
 		perVariable []float64
 	}{
-		{"usarrests.csv", ReadOptions{}, 88.28814686595527, 6.868423073358567e-17, 0.6538150062740203,
+		{"usarrests.csv", intake.ReadOptions{}, 88.28814686595527, 6.868423073358567e-17, 0.6538150062740203,
 			[]float64{0.61715082, 0.64338319, 0.50238628, 0.77835578}},
-		{"iris.csv", ReadOptions{GroupColumn: "species"}, 706.9592430234756, 1.9226796044143468e-149, 0.5400766750097211,
+		{"iris.csv", intake.ReadOptions{GroupColumn: "species"}, 706.9592430234756, 1.9226796044143468e-149, 0.5400766750097211,
 			[]float64{0.58406029, 0.26957462, 0.53074842, 0.63420655}},
 	}
 	for _, c := range cases {
@@ -107,7 +108,7 @@ func TestBartlettNullUniformity(t *testing.T) {
 }
 
 func centred(x *mat.Dense) *mat.Dense {
-	pp, _ := FitPreprocessing(x, TransformNone, ScaleNone)
+	pp, _ := FitPreprocessing(x, intake.TransformNone, ScaleNone)
 	return pp.Apply(nil, x)
 }
 
@@ -133,7 +134,7 @@ func TestKMORangeAndFactorData(t *testing.T) {
 }
 
 func TestDuplicateAndNearConstantDetection(t *testing.T) {
-	tab := read(t, "id,a,b,c\nw,1,2,5\nx,3,4,5\ny,1,2,5\nz,5,7,5\nv,3,4,5.1\nu,9,1,5\n", ReadOptions{})
+	tab := read(t, "id,a,b,c\nw,1,2,5\nx,3,4,5\ny,1,2,5\nz,5,7,5\nv,3,4,5.1\nu,9,1,5\n", intake.ReadOptions{})
 	res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}})
 	if err != nil {
 		t.Fatal(err)

@@ -5,6 +5,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // Options are the analysis choices made after the table is read.
@@ -23,7 +25,7 @@ type Options struct {
 	// InPlace preprocesses the table's matrix in place, saving one copy of
 	// the data: afterwards Table.X holds the preprocessed matrix (Result.Z).
 	InPlace bool
-	// Exclude lists rows of the table (ascending, see ResolveExclusions)
+	// Exclude lists rows of the table (ascending, see intake.ResolveExclusions)
 	// left out of the fit and projected onto it afterwards
 	// (Result.Excluded).
 	Exclude []int
@@ -42,7 +44,7 @@ const (
 // decomposition, the retained components and their scores, and the measured
 // properties and diagnostics of the result.
 type Result struct {
-	Table    *Table
+	Table    *intake.Table
 	Options  Options
 	Prep     Preprocessing
 	Z        *mat.Dense // n × p preprocessed matrix
@@ -70,14 +72,14 @@ type Result struct {
 
 // Analyze preprocesses the table and computes its PCA and diagnostics. The
 // table's matrix is not modified.
-func Analyze(t *Table, opt Options) (*Result, error) {
+func Analyze(t *intake.Table, opt Options) (*Result, error) {
 	if opt.Scaling == "" {
 		opt.Scaling = ScaleUnit
 	}
 	if opt.Components.Kind == "" {
 		opt.Components = DefaultComponentRule
 	}
-	var excluded *Table
+	var excluded *intake.Table
 	if len(opt.Exclude) > 0 {
 		t, excluded = splitRows(t, opt.Exclude)
 	}
@@ -154,7 +156,7 @@ func Analyze(t *Table, opt Options) (*Result, error) {
 // data to order one, so mostly --scale none meets this, but Pareto scaling
 // of values near 1e300 leaves them near 1e150. The error names the cell
 // with the largest preprocessed value.
-func checkMagnitude(t *Table, pp Preprocessing, z *mat.Dense) error {
+func checkMagnitude(t *intake.Table, pp Preprocessing, z *mat.Dense) error {
 	n, p := z.Dims()
 	big, bi, bj := 0.0, 0, 0
 	for i := 0; i < n; i++ {
@@ -194,7 +196,7 @@ func checkMagnitude(t *Table, pp Preprocessing, z *mat.Dense) error {
 // overflow: values near the largest double (1.8e308) are finite one by one,
 // but their sum is not. The error names the largest value of the first
 // such column.
-func checkPreprocessing(t *Table, pp Preprocessing) error {
+func checkPreprocessing(t *intake.Table, pp Preprocessing) error {
 	finite := func(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 	n, _ := t.X.Dims()
 	for j := range pp.Means {

@@ -8,6 +8,8 @@ import (
 	"strconv"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // Application is a saved model applied to new samples: their preprocessing
@@ -17,7 +19,7 @@ import (
 // out.
 type Application struct {
 	Model *Model
-	Table *Table // the new samples; its variables are the model's that it has
+	Table *intake.Table // the new samples; its variables are the model's that it has
 
 	// Missing lists model variables the new data lack; nothing is scored
 	// then. Extra lists columns of the new data that are not in the model.
@@ -75,7 +77,7 @@ func ColumnKey(name string) string { return norm.NFC.String(name) }
 
 // modelColumns returns, for each model variable, its column in t, or −1
 // when t lacks it.
-func modelColumns(m *Model, t *Table) []int {
+func modelColumns(m *Model, t *intake.Table) []int {
 	have := map[string]int{}
 	for j, v := range t.Variables {
 		have[ColumnKey(v)] = j
@@ -97,7 +99,7 @@ func modelColumns(m *Model, t *Table) []int {
 // 1e160 where the training data held tens makes T² overflow to +Inf). The
 // error names the first such cell in file order: its line, column, variable
 // and value. Variables the table lacks are Apply's business, not this one's.
-func CheckNewValues(m *Model, t *Table) error {
+func CheckNewValues(m *Model, t *intake.Table) error {
 	idx := modelColumns(m, t)
 	n := t.Rows()
 	for i := 0; i < n; i++ {
@@ -122,8 +124,8 @@ func CheckNewValues(m *Model, t *Table) error {
 
 // cellError reports the value of variable c of sample i of t, named by its
 // line and column in the file where the table records them.
-func cellError(t *Table, i, c int, value, reason string) *InputError {
-	e := &InputError{File: t.File, Name: t.Variables[c], Text: value, Reason: reason}
+func cellError(t *intake.Table, i, c int, value, reason string) *intake.InputError {
+	e := &intake.InputError{File: t.File, Name: t.Variables[c], Text: value, Reason: reason}
 	if i < len(t.Lines) {
 		e.Line = t.Lines[i]
 	}
@@ -136,13 +138,13 @@ func cellError(t *Table, i, c int, value, reason string) *InputError {
 // rawValue writes a transformed value back in the units of the file, for
 // messages: exactly when there is no transform and v is exact, to six
 // digits otherwise.
-func rawValue(tr Transform, v float64, exact bool) string {
+func rawValue(tr intake.Transform, v float64, exact bool) string {
 	switch tr {
-	case TransformLog:
+	case intake.TransformLog:
 		v = math.Exp(v)
-	case TransformLog10:
+	case intake.TransformLog10:
 		v = math.Pow(10, v)
-	case TransformLog1p:
+	case intake.TransformLog1p:
 		v = math.Expm1(v)
 	default:
 		if exact {
@@ -157,7 +159,7 @@ func rawValue(tr Transform, v float64, exact bool) string {
 // Values are expected to have passed CheckNewValues; if one has not, its
 // sample's T² or Q may come out infinite, and such a sample is ranked as
 // the worst (RankBeyond99) rather than dropped.
-func Apply(m *Model, t *Table) *Application {
+func Apply(m *Model, t *intake.Table) *Application {
 	app := &Application{Model: m, Table: t, Limits: m.Limits}
 	idx := modelColumns(m, t)
 	for j, v := range m.Variables {

@@ -12,6 +12,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -22,12 +23,12 @@ func TestApplyReproducesTraining(t *testing.T) {
 		x, _ := synth.LowRank(synth.RNG(3, 70), 200, 8, []float64{4, 2, 1}, 0.5)
 		synth.Stretch(synth.RNG(4, 70), x)
 		raw := mat.DenseCopyOf(x)
-		res, err := Analyze(TableFromMatrix("train", x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+		res, err := Analyze(intake.TableFromMatrix("train", x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
 		if err != nil {
 			t.Fatal(err)
 		}
 		m := NewModel(res, "test")
-		app := Apply(m, TableFromMatrix("again", raw, nil, nil))
+		app := Apply(m, intake.TableFromMatrix("again", raw, nil, nil))
 		if len(app.Missing) > 0 {
 			t.Fatalf("missing %v", app.Missing)
 		}
@@ -66,12 +67,12 @@ func TestApplyLimitCalibration(t *testing.T) {
 		beyond, total := 0, 0
 		for rep := 0; rep < 10; rep++ {
 			train := synth.WithCovariance(rng, n0, cov)
-			res, err := Analyze(TableFromMatrix("train", train, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+			res, err := Analyze(intake.TableFromMatrix("train", train, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
 			if err != nil {
 				t.Fatal(err)
 			}
 			m := NewModel(res, "test")
-			app := Apply(m, TableFromMatrix("new", synth.WithCovariance(rng, n/10, cov), nil, nil))
+			app := Apply(m, intake.TableFromMatrix("new", synth.WithCovariance(rng, n/10, cov), nil, nil))
 			for _, v := range app.T2 {
 				if v > m.Limits.T2_95 {
 					beyond++
@@ -91,7 +92,7 @@ func TestApplyLimitCalibration(t *testing.T) {
 // contributions of the flagged samples; a missing variable is reported.
 func TestApplyBlamesTheShiftedVariable(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(5, 72), 300, 8, []float64{3, 2}, 0.5)
-	res, err := Analyze(TableFromMatrix("train", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+	res, err := Analyze(intake.TableFromMatrix("train", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -103,7 +104,7 @@ func TestApplyBlamesTheShiftedVariable(t *testing.T) {
 	for i := 30; i < 60; i++ {
 		newX.Set(i, shifted, newX.At(i, shifted)+4*sd)
 	}
-	app := Apply(m, TableFromMatrix("new", newX, nil, nil))
+	app := Apply(m, intake.TableFromMatrix("new", newX, nil, nil))
 	if len(app.Flagged) < 20 {
 		t.Fatalf("only %d samples flagged", len(app.Flagged))
 	}
@@ -149,7 +150,7 @@ func TestApplyBlamesTheShiftedVariable(t *testing.T) {
 	}
 	// Drop a model variable from the new data.
 	names := []string{"v1", "v2", "v3", "v4", "v5", "v6", "v7", "w8"}
-	app = Apply(m, TableFromMatrix("new", newX, names, nil))
+	app = Apply(m, intake.TableFromMatrix("new", newX, names, nil))
 	if !reflect.DeepEqual(app.Missing, []string{"v8"}) || !reflect.DeepEqual(app.Extra, []string{"w8"}) || app.Scores != nil {
 		t.Errorf("missing %v extra %v", app.Missing, app.Extra)
 	}
@@ -169,7 +170,7 @@ func argmax(x []float64) int {
 // format is refused with a clear message.
 func TestModelRoundTrip(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(6, 73), 80, 5, []float64{2, 1}, 0.5)
-	res, err := Analyze(TableFromMatrix("train", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+	res, err := Analyze(intake.TableFromMatrix("train", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -237,22 +238,22 @@ func TestCheckNewValues(t *testing.T) {
 	}
 	cases := []struct {
 		name      string
-		transform Transform
+		transform intake.Transform
 		value     float64 // placed at row 2, variable v3
 		want      string  // "" when the value passes
 	}{
-		{"ordinary", TransformNone, 3, ""},
-		{"large but fine", TransformNone, 1e90, ""},
-		{"1e160", TransformNone, 1e160, `new.csv:4:5 (v3): after the training centring and scaling this value is`},
-		{"1e308", TransformNone, 1e308, `"1e+308"`},
-		{"minus 1e200", TransformNone, -1e200, `"-1e+200"`},
-		{"log of the largest double", TransformLog, 1.7e308, ""},
+		{"ordinary", intake.TransformNone, 3, ""},
+		{"large but fine", intake.TransformNone, 1e90, ""},
+		{"1e160", intake.TransformNone, 1e160, `new.csv:4:5 (v3): after the training centring and scaling this value is`},
+		{"1e308", intake.TransformNone, 1e308, `"1e+308"`},
+		{"minus 1e200", intake.TransformNone, -1e200, `"-1e+200"`},
+		{"log of the largest double", intake.TransformLog, 1.7e308, ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			train := TableFromMatrix("train.csv", mat.DenseCopyOf(x), nil, nil)
+			train := intake.TableFromMatrix("train.csv", mat.DenseCopyOf(x), nil, nil)
 			train.Transform = c.transform
-			if c.transform == TransformLog {
+			if c.transform == intake.TransformLog {
 				for i := 0; i < 60; i++ {
 					for j := 0; j < 4; j++ {
 						train.X.Set(i, j, math.Log(train.X.At(i, j)))
@@ -266,12 +267,12 @@ func TestCheckNewValues(t *testing.T) {
 			m := NewModel(res, "test")
 			newX := mat.DenseCopyOf(x.Slice(0, 5, 0, 4))
 			v, _ := c.transform.Apply(c.value)
-			if c.transform == TransformNone {
+			if c.transform == intake.TransformNone {
 				v = c.value
 			}
 			newX.Set(2, 2, v)
 			// The file's columns: id, then v1 … v4 from column 2 on.
-			tab := TableFromMatrix("new.csv", newX, nil, nil)
+			tab := intake.TableFromMatrix("new.csv", newX, nil, nil)
 			tab.Transform = c.transform
 			tab.Columns = []int{2, 3, 5, 6}
 			err = CheckNewValues(m, tab)
@@ -287,7 +288,7 @@ func TestCheckNewValues(t *testing.T) {
 				}
 				return
 			}
-			var ie *InputError
+			var ie *intake.InputError
 			if !errors.As(err, &ie) || ie.Line != 4 || ie.Column != 5 || ie.Name != "v3" || !strings.Contains(err.Error(), c.want) {
 				t.Fatalf("got %v, want an input error at line 4, column 5 holding %q", err, c.want)
 			}
@@ -299,13 +300,13 @@ func TestCheckNewValues(t *testing.T) {
 // the sample is then ranked first, not lost.
 func TestApplyRanksNonFiniteFirst(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(9, 75), 50, 4, []float64{2, 1}, 0.5)
-	res, err := Analyze(TableFromMatrix("train", mat.DenseCopyOf(x), nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+	res, err := Analyze(intake.TableFromMatrix("train", mat.DenseCopyOf(x), nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
 	}
 	newX := mat.DenseCopyOf(x.Slice(0, 4, 0, 4))
 	newX.Set(1, 0, 1e200)
-	app := Apply(NewModel(res, "test"), TableFromMatrix("new", newX, nil, nil))
+	app := Apply(NewModel(res, "test"), intake.TableFromMatrix("new", newX, nil, nil))
 	if !math.IsInf(app.T2[1], 1) && !math.IsNaN(app.T2[1]) {
 		t.Fatalf("T² of the overflowing sample is %g; the test needs it infinite", app.T2[1])
 	}

@@ -6,6 +6,7 @@ import (
 	"os"
 	"testing"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -101,7 +102,7 @@ func TestBCaCoverageOfEigenvalues(t *testing.T) {
 	var bcaTop, bcaLast, pctTop, pctLast int
 	for s := 0; s < seeds; s++ {
 		x := synth.WithCovariance(synth.RNG(uint64(s+1), 62), n, cov)
-		res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}})
+		res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}})
 		if err != nil {
 			t.Fatal(err)
 		}

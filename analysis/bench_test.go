@@ -4,6 +4,7 @@ import (
 	"os"
 	"testing"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -11,7 +12,7 @@ import (
 // foundation issue: tall 20,000 × 50 and wide 100 × 20,000.
 func benchmarkDecompose(b *testing.B, n, p int) {
 	x, _ := synth.LowRank(synth.RNG(1, 1), n, p, []float64{3, 2, 1.5}, 1)
-	pp, err := FitPreprocessing(x, TransformNone, ScaleUnit)
+	pp, err := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -33,7 +34,7 @@ func BenchmarkDecomposeWide100x20000(b *testing.B) { benchmarkDecompose(b, 100, 
 // times the whole process against the numpy reference.
 func benchmarkAudit(b *testing.B, n, p int) {
 	x, _ := synth.LowRank(synth.RNG(1, 1), n, p, []float64{3, 2, 1.5}, 1)
-	tab := TableFromMatrix("bench", x, nil, nil)
+	tab := intake.TableFromMatrix("bench", x, nil, nil)
 	opt := Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}, Permutations: 50, Bootstrap: 200, Seed: 1}
 	b.ResetTimer()
 	for b.Loop() {
@@ -59,7 +60,7 @@ func BenchmarkReadTableFile(b *testing.B) {
 	}
 	b.SetBytes(st.Size())
 	for b.Loop() {
-		if _, err := ReadTable(path, ReadOptions{}); err != nil {
+		if _, err := intake.ReadTable(path, intake.ReadOptions{}); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -25,7 +26,7 @@ func directResample(t *testing.T, x *mat.Dense, counts []int32, scaling Scaling,
 			r++
 		}
 	}
-	ref, err := FitPreprocessing(x, TransformNone, scaling)
+	ref, err := FitPreprocessing(x, intake.TransformNone, scaling)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -37,7 +38,7 @@ func directResample(t *testing.T, x *mat.Dense, counts []int32, scaling Scaling,
 func directPipeline(t *testing.T, xb *mat.Dense, ref Preprocessing, scaling Scaling, k int) ([]float64, *mat.Dense) {
 	t.Helper()
 	_, p := xb.Dims()
-	pp, err := FitPreprocessing(xb, TransformNone, scaling)
+	pp, err := FitPreprocessing(xb, intake.TransformNone, scaling)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -81,7 +82,7 @@ func TestBootstrapFastPathsAreExact(t *testing.T) {
 				x.Set(3, sh.p-1, 1)
 				x.Set(17, sh.p-1, 1)
 			}
-			res, err := Analyze(TableFromMatrix(name, x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+			res, err := Analyze(intake.TableFromMatrix(name, x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -139,7 +140,7 @@ func TestBootstrapFastPathsAreExact(t *testing.T) {
 func TestBootstrapIndependentOfThreads(t *testing.T) {
 	for _, sh := range []struct{ n, p int }{{150, 10}, {20, 200}} {
 		x, _ := synth.LowRank(synth.RNG(8, 51), sh.n, sh.p, []float64{4, 2}, 0.5)
-		res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+		res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -169,7 +170,7 @@ func TestBootstrapCoverageOnPlantedData(t *testing.T) {
 	covered, total := 0, 0
 	for rep := 0; rep < reps; rep++ {
 		x := synth.WithCovariance(synth.RNG(uint64(rep+1), 53), n, cov)
-		res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: k}})
+		res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: k}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -214,7 +215,7 @@ func TestBootstrapDetectsMixingPair(t *testing.T) {
 			x.Set(i, j, 0.4*x.At(i, j)+sd*f.At(i, j/4))
 		}
 	}
-	res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+	res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -245,7 +246,7 @@ func TestBootstrapKeepsConstantVariableResamples(t *testing.T) {
 		x.Set(i, p-1, v)
 	}
 	for _, sc := range []Scaling{ScaleUnit, ScalePareto, ScaleRange} {
-		res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}, Bootstrap: B})
+		res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}, Bootstrap: B})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -270,7 +271,7 @@ func TestBootstrapKeepsConstantVariableResamples(t *testing.T) {
 
 func TestBootstrapOff(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(2, 55), 50, 5, []float64{2}, 1)
-	res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}})
+	res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // Variant is one plausible preprocessing of the raw data, recomputed to see
@@ -114,7 +116,7 @@ var reviewVariants = func() []Variant {
 // CompareReview recomputes the analysis of the table under every plausible
 // preprocessing and measures how another person's tables relate to it. The
 // table must hold exactly the variables their loadings cover, in data order.
-func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVariance, claimed Scaling) (*Review, error) {
+func CompareReview(t *intake.Table, l *TheirLoadings, s *TheirScores, variance *TheirVariance, claimed Scaling) (*Review, error) {
 	r := &Review{Loadings: l, Scores: s, Variance: variance, ClaimedScale: claimed}
 	if variance != nil {
 		r.VarianceValues = variance.Values
@@ -131,7 +133,7 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVa
 			return nil, err
 		}
 		if d.Components() < k {
-			return nil, &InputError{File: l.File, Reason: "more components in the loadings than the data can have"}
+			return nil, &intake.InputError{File: l.File, Reason: "more components in the loadings than the data can have"}
 		}
 		v.z = z
 		v.Eigenvalues = d.Eigenvalues
@@ -272,7 +274,7 @@ func CompareReview(t *Table, l *TheirLoadings, s *TheirScores, variance *TheirVa
 // variantMatrix preprocesses x (n × p) with or without centring and with the
 // given scaling; scales are computed around the mean either way.
 func variantMatrix(x *mat.Dense, centred bool, scaling Scaling) (*mat.Dense, error) {
-	pp, err := FitPreprocessing(x, TransformNone, scaling)
+	pp, err := FitPreprocessing(x, intake.TransformNone, scaling)
 	if err != nil {
 		return nil, err
 	}
@@ -433,7 +435,7 @@ func (r *Review) ScoreColumnsNamedAlike() bool {
 		return false
 	}
 	for a, b := range r.ScoreColumnOf {
-		if nameKey(r.Scores.Columns[a]) != nameKey(r.Loadings.Components[b]) {
+		if intake.NameKey(r.Scores.Columns[a]) != intake.NameKey(r.Loadings.Components[b]) {
 			return false
 		}
 	}
@@ -478,31 +480,4 @@ func meanSD(t mat.Matrix, a int) (mean, sd float64) {
 		ss += d * d
 	}
 	return mean, math.Sqrt(ss / float64(n-1))
-}
-
-// Subset returns the table restricted to the given variables (indices into
-// Variables, ascending); rows and provenance are shared.
-func (t *Table) Subset(vars []int) *Table {
-	n := t.Rows()
-	x := mat.NewDense(n, len(vars), nil)
-	names := make([]string, len(vars))
-	for c, j := range vars {
-		names[c] = t.Variables[j]
-		for i := 0; i < n; i++ {
-			x.Set(i, c, t.X.At(i, j))
-		}
-	}
-	out := *t
-	out.X, out.Variables = x, names
-	keep := map[int]bool{}
-	for _, j := range vars {
-		keep[j] = true
-	}
-	out.DroppedVariables = append([]DroppedVariable(nil), t.DroppedVariables...)
-	for j, name := range t.Variables {
-		if !keep[j] {
-			out.DroppedVariables = append(out.DroppedVariables, DroppedVariable{Name: name, Reason: "not in the reviewed loadings"})
-		}
-	}
-	return &out
 }

@@ -11,11 +11,13 @@ import (
 	"sort"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // SummaryFile is an audit folder's summary.json, read by compare. It holds
 // a few p-long lists and per-check text; a model's cap is ample.
-var SummaryFile = FileKind{What: "the summary", Max: 256 << 20}
+var SummaryFile = intake.FileKind{What: "the summary", Max: 256 << 20}
 
 // SavedAudit is what compare reads of an audit folder: the model (variables,
 // retained loadings, every eigenvalue) and, from summary.json, the check
@@ -86,26 +88,26 @@ type savedSummary struct {
 func LoadAudit(dir string) (*SavedAudit, error) {
 	st, err := os.Stat(dir)
 	if err != nil {
-		return nil, &InputError{File: dir, Reason: "no such audit folder"}
+		return nil, &intake.InputError{File: dir, Reason: "no such audit folder"}
 	}
 	if !st.IsDir() {
-		return nil, &InputError{File: dir, Reason: "not a folder; give an audit folder written by pcqc run"}
+		return nil, &intake.InputError{File: dir, Reason: "not a folder; give an audit folder written by pcqc run"}
 	}
 	modelPath := filepath.Join(dir, "model.json")
 	if _, err := os.Stat(modelPath); errors.Is(err, fs.ErrNotExist) {
-		return nil, &InputError{File: dir, Reason: "not a pcqc audit folder: it holds no model.json (is this a folder written by pcqc run?)"}
+		return nil, &intake.InputError{File: dir, Reason: "not a pcqc audit folder: it holds no model.json (is this a folder written by pcqc run?)"}
 	}
 	m, err := LoadModel(modelPath)
 	if err != nil {
 		return nil, err
 	}
 	path := filepath.Join(dir, "summary.json")
-	b, err := ReadRegular(path, SummaryFile)
+	b, err := intake.ReadRegular(path, SummaryFile)
 	if err != nil {
 		return nil, err
 	}
 	damaged := func(line, col int, reason string) error {
-		return &InputError{File: path, Line: line, Column: col, Reason: "damaged audit summary: " + reason}
+		return &intake.InputError{File: path, Line: line, Column: col, Reason: "damaged audit summary: " + reason}
 	}
 	var s savedSummary
 	if err := json.Unmarshal(b, &s); err != nil {

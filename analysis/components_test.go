@@ -4,6 +4,7 @@ import (
 	"math"
 	"testing"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -77,7 +78,7 @@ func TestParallelAnalysisOnNoise(t *testing.T) {
 	zero := 0
 	for seed := uint64(1); seed <= 10; seed++ {
 		x := synth.Gaussian(synth.RNG(seed, 20), 200, 10)
-		res, err := Analyze(TableFromMatrix("noise", x, nil, nil), Options{Scaling: ScaleUnit, Permutations: 100, Seed: seed})
+		res, err := Analyze(intake.TableFromMatrix("noise", x, nil, nil), Options{Scaling: ScaleUnit, Permutations: 100, Seed: seed})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -107,7 +108,7 @@ func TestParallelAnalysisRecoversPlantedRank(t *testing.T) {
 	for _, c := range cases {
 		for seed := uint64(1); seed <= 3; seed++ {
 			x, _ := synth.LowRank(synth.RNG(seed, 21), c.n, c.p, c.sd, 1)
-			res, err := Analyze(TableFromMatrix("planted", x, nil, nil), Options{Scaling: ScaleUnit, Permutations: 100, Seed: seed})
+			res, err := Analyze(intake.TableFromMatrix("planted", x, nil, nil), Options{Scaling: ScaleUnit, Permutations: 100, Seed: seed})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -121,7 +122,7 @@ func TestParallelAnalysisRecoversPlantedRank(t *testing.T) {
 func TestParallelAnalysisIndependentOfThreads(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(9, 22), 150, 30, []float64{3, 2}, 1)
 	z := func(threads int) []float64 {
-		pp, _ := FitPreprocessing(x, TransformNone, ScaleUnit)
+		pp, _ := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
 		zz := pp.Apply(nil, x)
 		d, _ := Decompose(zz)
 		return ParallelAnalysis(zz, d.Eigenvalues, 40, 5, threads, nil).P95
@@ -139,7 +140,7 @@ func TestParallelAnalysisIndependentOfThreads(t *testing.T) {
 // exceedance shares equal a direct count over the permutations run.
 func TestAdaptiveParallelAnalysisSettles(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(4, 23), 300, 10, []float64{4, 3}, 1)
-	pp, _ := FitPreprocessing(x, TransformNone, ScaleUnit)
+	pp, _ := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
 	z := pp.Apply(nil, x)
 	d, _ := Decompose(z)
 	pa := ParallelAnalysis(z, d.Eigenvalues, 2000, 1, 2, nil)
@@ -151,7 +152,7 @@ func TestAdaptiveParallelAnalysisSettles(t *testing.T) {
 	}
 
 	noise := synth.Gaussian(synth.RNG(5, 23), 200, 8)
-	pp, _ = FitPreprocessing(noise, TransformNone, ScaleUnit)
+	pp, _ = FitPreprocessing(noise, intake.TransformNone, ScaleUnit)
 	zn := pp.Apply(nil, noise)
 	dn, _ := Decompose(zn)
 	// Direct count: the same permutations, one at a time (cap = batch).
@@ -219,7 +220,7 @@ func TestSettleDecisions(t *testing.T) {
 // exceedance share is about 5 %.
 func TestParallelAnalysisBorderlineAtCap(t *testing.T) {
 	noise := synth.Gaussian(synth.RNG(6, 23), 150, 8)
-	pp, _ := FitPreprocessing(noise, TransformNone, ScaleUnit)
+	pp, _ := FitPreprocessing(noise, intake.TransformNone, ScaleUnit)
 	z := pp.Apply(nil, noise)
 	d, _ := Decompose(z)
 	first := ParallelAnalysis(z, d.Eigenvalues, 400, 7, 2, nil)

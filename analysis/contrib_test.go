@@ -8,6 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -114,7 +115,7 @@ func plantedOutliers(t *testing.T, seed uint64, n, p int, qRow, qVar, t2Row int)
 			x.Set(t2Row, j, x.At(t2Row, j)+60*load.At(j, 0))
 		}
 	}
-	res, err := Analyze(TableFromMatrix("planted.csv", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}, Seed: seed, NoCrossValidation: true})
+	res, err := Analyze(intake.TableFromMatrix("planted.csv", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}, Seed: seed, NoCrossValidation: true})
 	if err != nil {
 		t.Fatal(err)
 	}

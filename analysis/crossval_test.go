@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -145,7 +146,7 @@ func TestCrossValidationRecoversPlantedRank(t *testing.T) {
 			} else {
 				x, _ = synth.LowRank(synth.RNG(seed, 31), c.n, c.p, c.sd, 1)
 			}
-			pp, _ := FitPreprocessing(x, TransformNone, ScaleUnit)
+			pp, _ := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
 			z := pp.Apply(nil, x)
 			cv := CrossValidate(z, pp, seed, 1, nil)
 			if cv.Count == len(c.sd) {

@@ -1,5 +1,5 @@
 // Package analysis turns a data table into the numbers an audit of a
-// principal component analysis needs: it reads and validates the table,
+// principal component analysis needs: given a table read by package intake, it
 // preprocesses it (transform, centring, scaling), decomposes it, decides how
 // many components to keep, and computes the per-sample and resampling
 // statistics that the checks judge.

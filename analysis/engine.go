@@ -5,6 +5,8 @@ import (
 	"runtime"
 	"sync"
 	"sync/atomic"
+
+	"pcqc/internal/workgroup"
 )
 
 // Random streams. Every resample and permutation draws from its own PCG
@@ -37,12 +39,12 @@ func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W
 	threads = max(1, min(threads, count))
 	var next, done atomic.Int64
 	var wg sync.WaitGroup
-	var failed workerPanic
+	var failed workgroup.Panic
 	for t := 0; t < threads; t++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			defer failed.catch(func() { next.Store(int64(count)) })
+			defer failed.Catch(func() { next.Store(int64(count)) })
 			w := newWorkspace()
 			for {
 				i := int(next.Add(1) - 1)
@@ -58,30 +60,7 @@ func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W
 		}()
 	}
 	wg.Wait()
-	failed.raise()
-}
-
-// workerPanic keeps the first panic of a group of workers.
-type workerPanic struct {
-	once  sync.Once
-	value any
-	set   bool
-}
-
-// catch, deferred in a worker, records a panic and calls stop, which
-// should make the other workers run out of tasks.
-func (p *workerPanic) catch(stop func()) {
-	if r := recover(); r != nil {
-		p.once.Do(func() { p.value, p.set = r, true })
-		stop()
-	}
-}
-
-// raise panics again with the recorded value, in the caller's goroutine.
-func (p *workerPanic) raise() {
-	if p.set {
-		panic(p.value)
-	}
+	failed.Raise()
 }
 
 // percentile returns the q-th percentile (0 ≤ q ≤ 100) of sorted values by

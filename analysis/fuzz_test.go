@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"pcqc/analysis/intake"
 	"pcqc/internal/safetext"
 	"slices"
 	"strings"
@@ -47,7 +48,7 @@ func lineCount(b []byte) int {
 // within the input (or none), and a reason.
 func checkInputError(t *testing.T, err error, input []byte) {
 	t.Helper()
-	var ie *InputError
+	var ie *intake.InputError
 	if !errors.As(err, &ie) {
 		t.Fatalf("error %v (%T) is not an InputError", err, err)
 	}
@@ -75,9 +76,9 @@ func checkInputError(t *testing.T, err error, input []byte) {
 func FuzzReadTable(f *testing.F) {
 	addSeeds(f, "../testdata/fuzz/table/*", "../testdata/bad/*", "../testdata/datasets/*.csv")
 	f.Fuzz(func(t *testing.T, data []byte) {
-		for _, opt := range []ReadOptions{{}, {Missing: MissingMean, Decimal: ','}, {Missing: MissingDrop, Transform: TransformLog1p},
-			{Encoding: EncodingLatin1, Delimiter: ';'}, {Encoding: EncodingCP1252, Missing: MissingMean}} {
-			tab, err := ReadTableFrom("fuzz.csv", bytes.NewReader(data), opt)
+		for _, opt := range []intake.ReadOptions{{}, {Missing: intake.MissingMean, Decimal: ','}, {Missing: intake.MissingDrop, Transform: intake.TransformLog1p},
+			{Encoding: intake.EncodingLatin1, Delimiter: ';'}, {Encoding: intake.EncodingCP1252, Missing: intake.MissingMean}} {
+			tab, err := intake.ReadTableFrom("fuzz.csv", bytes.NewReader(data), opt)
 			if err != nil {
 				checkInputError(t, err, data)
 				continue
@@ -110,10 +111,10 @@ func FuzzReadReviewTables(f *testing.F) {
 	variables := []string{"Murder", "Assault", "UrbanPop", "Rape"}
 	ids := []string{"Alabama", "Alaska", "Arizona", "Arkansas"}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		if _, err := ReadLooseTableFrom("their.csv", bytes.NewReader(data), EncodingCP1252); err != nil {
+		if _, err := intake.ReadLooseTableFrom("their.csv", bytes.NewReader(data), intake.EncodingCP1252); err != nil {
 			checkInputError(t, err, data)
 		}
-		lt, err := ReadLooseTableFrom("their.csv", bytes.NewReader(data))
+		lt, err := intake.ReadLooseTableFrom("their.csv", bytes.NewReader(data))
 		if err != nil {
 			checkInputError(t, err, data)
 			return
@@ -155,7 +156,7 @@ func FuzzLoadModel(f *testing.F) {
 		m, err := decodeModel("model.json", data)
 		if err != nil {
 			checkInputError(t, err, data)
-			var ie *InputError
+			var ie *intake.InputError
 			errors.As(err, &ie)
 			if !strings.HasPrefix(ie.Reason, "damaged model: ") && !strings.Contains(ie.Reason, "newer than the format") {
 				t.Fatalf("refused without saying the model is damaged: %v", err)
@@ -178,7 +179,7 @@ func FuzzLoadModel(f *testing.F) {
 				x.Set(i, j, m.Means[j]+u*float64(j%3+1)*m.Scales[j])
 			}
 		}
-		app := Apply(m, TableFromMatrix("new.csv", x, slices.Clone(m.Variables), nil))
+		app := Apply(m, intake.TableFromMatrix("new.csv", x, slices.Clone(m.Variables), nil))
 		if len(app.Missing) > 0 || len(app.T2) != len(steps) || len(app.Q) != len(steps) {
 			t.Fatalf("apply on the model's own variables: missing %v, %d T², %d Q", app.Missing, len(app.T2), len(app.Q))
 		}
@@ -236,13 +237,13 @@ func FuzzReviewFiles(f *testing.F) {
 		f.Fatal(err)
 	}
 	lines := bytes.SplitAfter(b, []byte{'\n'})
-	tab, err := ReadTableFrom("usarrests.csv", bytes.NewReader(bytes.Join(lines[:13], nil)), ReadOptions{})
+	tab, err := intake.ReadTableFrom("usarrests.csv", bytes.NewReader(bytes.Join(lines[:13], nil)), intake.ReadOptions{})
 	if err != nil {
 		f.Fatal(err)
 	}
 	f.Fuzz(func(t *testing.T, loadings, scores, variance []byte) {
-		read := func(name string, b []byte) *LooseTable {
-			lt, err := ReadLooseTableFrom(name, bytes.NewReader(b))
+		read := func(name string, b []byte) *intake.LooseTable {
+			lt, err := intake.ReadLooseTableFrom(name, bytes.NewReader(b))
 			if err != nil {
 				checkInputError(t, err, b)
 				return nil
@@ -297,7 +298,7 @@ func FuzzReviewFiles(f *testing.F) {
 		finite("score residuals", rv.ScoreResiduals...)
 		finite("variance", rv.VariancePercent...)
 		finite("variance difference", rv.VarianceDiff...)
-		if rv.Loadings.Decimals < 0 || rv.Loadings.Decimals > maxDecimals {
+		if rv.Loadings.Decimals < 0 || rv.Loadings.Decimals > intake.MaxDecimals {
 			t.Fatalf("%d decimals", rv.Loadings.Decimals)
 		}
 	})

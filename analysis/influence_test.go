@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -22,7 +23,7 @@ func bruteLeaveOut(t *testing.T, x *mat.Dense, scaling Scaling, i, k int) (*mat.
 			r++
 		}
 	}
-	pp, err := FitPreprocessing(rest, TransformNone, scaling)
+	pp, err := FitPreprocessing(rest, intake.TransformNone, scaling)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -53,7 +54,7 @@ func TestLeaveOneOutMatchesRefitting(t *testing.T) {
 		x.Set(3, 1, x.At(3, 1)+25)
 		for _, scaling := range Scalings {
 			t.Run(fmt.Sprintf("%s/%s", shape.name, scaling), func(t *testing.T) {
-				pp, err := FitPreprocessing(x, TransformNone, scaling)
+				pp, err := FitPreprocessing(x, intake.TransformNone, scaling)
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -111,7 +112,7 @@ func TestLargestPrincipalAngleKnownRotation(t *testing.T) {
 
 func TestLeaveOneOutSkips(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(1, 1), 20, 4, []float64{2}, 0.5)
-	pp, _ := FitPreprocessing(x, TransformNone, ScaleUnit)
+	pp, _ := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
 	z := pp.Apply(nil, x)
 	d, _ := Decompose(z)
 	if inf := LeaveOneOut(z, pp, d.Loadings, d.Eigenvalues, 1); inf.Skipped == "" || inf.Angle != nil {
@@ -130,7 +131,7 @@ func TestLeaveOneOutSkips(t *testing.T) {
 // trade): the bootstrap's subspace angles must agree with its congruences.
 func TestBootstrapSubspaceAnglesMatchCongruence(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(4, 4), 80, 6, []float64{3}, 1)
-	r, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}, Bootstrap: 50, Seed: 2})
+	r, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}, Bootstrap: 50, Seed: 2})
 	if err != nil {
 		t.Fatal(err)
 	}

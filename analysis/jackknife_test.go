@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -25,7 +26,7 @@ func TestJackknifeEigenvaluesAreExact(t *testing.T) {
 				x.Set(i, sh.p-1, 0)
 			}
 			x.Set(9, sh.p-1, 1)
-			res, err := Analyze(TableFromMatrix(name, x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
+			res, err := Analyze(intake.TableFromMatrix(name, x, nil, nil), Options{Scaling: sc, Components: ComponentRule{Kind: RuleFixed, Fixed: 2}})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -5,6 +5,7 @@ import (
 	"slices"
 	"testing"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -107,7 +108,7 @@ func TestLimitsCalibratedOnGaussianData(t *testing.T) {
 		rng := synth.RNG(seed, 10)
 		cov, _ := synth.SpectrumCovariance(rng, spectrum)
 		x := synth.WithCovariance(rng, n, cov)
-		res, err := Analyze(TableFromMatrix("gauss", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: k}})
+		res, err := Analyze(intake.TableFromMatrix("gauss", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: k}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -144,7 +145,7 @@ func TestSampleStatsDefinitions(t *testing.T) {
 	// Facts of the trade: Σ_i T²_i = (n−1)k for the model's own samples,
 	// Σ_i Q_i = (n−1) Σ_{a>k} λ_a, and leverage = 1/n + T²/(n−1).
 	x, _ := synth.LowRank(synth.RNG(4, 4), 300, 9, []float64{4, 2, 1}, 0.7)
-	res, err := Analyze(TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
+	res, err := Analyze(intake.TableFromMatrix("t", x, nil, nil), Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -16,6 +16,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // ModelFormat is the version of model.json this pcqc writes and reads.
@@ -28,19 +30,19 @@ const ModelFormat = 1
 // scales, the retained loadings, every eigenvalue, the number of training
 // samples and the control limits. It is written to model.json by run.
 type Model struct {
-	Format      int         `json:"format"`
-	Tool        ModelTool   `json:"tool"`
-	Input       ModelInput  `json:"input"`
-	Variables   []string    `json:"variables"`
-	Transform   Transform   `json:"transform"`
-	Scaling     Scaling     `json:"scaling"`
-	Means       []float64   `json:"means"`  // of the transformed training values
-	Scales      []float64   `json:"scales"` // the divisors used
-	SDs         []float64   `json:"sds"`    // training standard deviations of the transformed values
-	Retained    int         `json:"retained"`
-	Loadings    [][]float64 `json:"loadings"` // p rows of k values
-	Eigenvalues []float64   `json:"eigenvalues"`
-	Limits      ModelLimits `json:"limits"`
+	Format      int              `json:"format"`
+	Tool        ModelTool        `json:"tool"`
+	Input       ModelInput       `json:"input"`
+	Variables   []string         `json:"variables"`
+	Transform   intake.Transform `json:"transform"`
+	Scaling     Scaling          `json:"scaling"`
+	Means       []float64        `json:"means"`  // of the transformed training values
+	Scales      []float64        `json:"scales"` // the divisors used
+	SDs         []float64        `json:"sds"`    // training standard deviations of the transformed values
+	Retained    int              `json:"retained"`
+	Loadings    [][]float64      `json:"loadings"` // p rows of k values
+	Eigenvalues []float64        `json:"eigenvalues"`
+	Limits      ModelLimits      `json:"limits"`
 }
 
 // ModelTool names the software that wrote the model.
@@ -115,9 +117,9 @@ func (m *Model) Save(path string) error {
 // rule of validate is refused with an InputError whose reason begins
 // "damaged model: "; a model of a newer format is refused as such.
 func LoadModel(path string) (*Model, error) {
-	b, err := ReadRegular(path, ModelFile)
+	b, err := intake.ReadRegular(path, intake.ModelFile)
 	if err != nil {
-		var ie *InputError
+		var ie *intake.InputError
 		if _, serr := os.Stat(path); errors.Is(serr, fs.ErrNotExist) && errors.As(err, &ie) {
 			ie.Reason += " (is this a folder written by pcqc run?)"
 		}
@@ -130,7 +132,7 @@ func LoadModel(path string) (*Model, error) {
 // messages.
 func decodeModel(name string, b []byte) (*Model, error) {
 	damaged := func(line, col int, reason string) error {
-		return &InputError{File: name, Line: line, Column: col, Reason: "damaged model: " + reason}
+		return &intake.InputError{File: name, Line: line, Column: col, Reason: "damaged model: " + reason}
 	}
 	var probe struct {
 		Format int `json:"format"`
@@ -139,7 +141,7 @@ func decodeModel(name string, b []byte) (*Model, error) {
 		return nil, damaged(jsonErrorPosition(b, err))
 	}
 	if probe.Format > ModelFormat {
-		return nil, &InputError{File: name, Reason: fmt.Sprintf("the model is in format %d, newer than the format %d this pcqc reads; apply it with the pcqc version that wrote it or a later one", probe.Format, ModelFormat)}
+		return nil, &intake.InputError{File: name, Reason: fmt.Sprintf("the model is in format %d, newer than the format %d this pcqc reads; apply it with the pcqc version that wrote it or a later one", probe.Format, ModelFormat)}
 	}
 	if probe.Format < 1 {
 		return nil, damaged(0, 0, "no format number (is this a model.json written by pcqc run?)")
@@ -244,7 +246,7 @@ func (m *Model) checkShape() error {
 			return fmt.Errorf("variable %d has no name", j+1)
 		}
 		if i, dup := seen[v]; dup {
-			return fmt.Errorf("variable %s is listed twice (variables %d and %d)", quoteText(v), i+1, j+1)
+			return fmt.Errorf("variable %s is listed twice (variables %d and %d)", intake.QuoteText(v), i+1, j+1)
 		}
 		seen[v] = j
 	}
@@ -268,7 +270,7 @@ func (m *Model) checkShape() error {
 	}
 	for j, row := range m.Loadings {
 		if len(row) != k {
-			return fmt.Errorf("the loadings of %s have %d values for %d retained components", quoteText(m.Variables[j]), len(row), k)
+			return fmt.Errorf("the loadings of %s have %d values for %d retained components", intake.QuoteText(m.Variables[j]), len(row), k)
 		}
 	}
 	return nil
@@ -280,11 +282,11 @@ func (m *Model) checkShape() error {
 // what the scaling makes of the standard deviations (1, sd or √sd; a range
 // cannot be checked without the data).
 func (m *Model) checkPreprocessing() error {
-	if _, ok := ParseEncoding(m.Input.Encoding); !ok && m.Input.Encoding != "" {
-		return fmt.Errorf("input encoding %s is not utf-8, latin1 or cp1252", quoteText(m.Input.Encoding))
+	if _, ok := intake.ParseEncoding(m.Input.Encoding); !ok && m.Input.Encoding != "" {
+		return fmt.Errorf("input encoding %s is not utf-8, latin1 or cp1252", intake.QuoteText(m.Input.Encoding))
 	}
-	if !slices.Contains(Transforms, m.Transform) {
-		return fmt.Errorf("transform %q is not one of %v", m.Transform, Transforms)
+	if !slices.Contains(intake.Transforms, m.Transform) {
+		return fmt.Errorf("transform %q is not one of %v", m.Transform, intake.Transforms)
 	}
 	if !slices.Contains(Scalings, m.Scaling) {
 		return fmt.Errorf("scaling %q is not one of %v", m.Scaling, Scalings)
@@ -292,13 +294,13 @@ func (m *Model) checkPreprocessing() error {
 	for j, v := range m.Variables {
 		mean, scale, sd := m.Means[j], m.Scales[j], m.SDs[j]
 		if !isFinite(mean) {
-			return fmt.Errorf("the mean of %s is %v", quoteText(v), mean)
+			return fmt.Errorf("the mean of %s is %v", intake.QuoteText(v), mean)
 		}
 		if !isFinite(sd) || sd <= 0 {
-			return fmt.Errorf("the standard deviation of %s is %v; it must be finite and > 0", quoteText(v), sd)
+			return fmt.Errorf("the standard deviation of %s is %v; it must be finite and > 0", intake.QuoteText(v), sd)
 		}
 		if !isFinite(scale) || scale <= 0 {
-			return fmt.Errorf("the scale of %s is %v; it must be finite and > 0", quoteText(v), scale)
+			return fmt.Errorf("the scale of %s is %v; it must be finite and > 0", intake.QuoteText(v), scale)
 		}
 		want := math.NaN()
 		switch m.Scaling {
@@ -310,7 +312,7 @@ func (m *Model) checkPreprocessing() error {
 			want = math.Sqrt(sd)
 		}
 		if !math.IsNaN(want) && math.Abs(scale-want) > agreeTol*want {
-			return fmt.Errorf("the scale of %s is %v, but %s makes it %v", quoteText(v), scale, ScalingName(m.Scaling), want)
+			return fmt.Errorf("the scale of %s is %v, but %s makes it %v", intake.QuoteText(v), scale, ScalingName(m.Scaling), want)
 		}
 	}
 	return nil
@@ -359,7 +361,7 @@ func (m *Model) checkLoadings() error {
 	for j, row := range m.Loadings {
 		for a, v := range row {
 			if !isFinite(v) {
-				return fmt.Errorf("the loading of %s on component %d is %v", quoteText(m.Variables[j]), a+1, v)
+				return fmt.Errorf("the loading of %s on component %d is %v", intake.QuoteText(m.Variables[j]), a+1, v)
 			}
 		}
 	}
@@ -438,20 +440,20 @@ func ReadTrainingScores(path string, m *Model) (*mat.Dense, error) {
 	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
 		return nil, nil
 	}
-	r, err := OpenRegular(path, TrainingScoresFile)
+	r, err := intake.OpenRegular(path, intake.TrainingScoresFile)
 	if err != nil {
 		return nil, err
 	}
 	defer r.Close()
 	damaged := func(line, col int, name, text, reason string) error {
-		return &InputError{File: path, Line: line, Column: col, Name: name, Text: text, Reason: "damaged audit folder: " + reason}
+		return &intake.InputError{File: path, Line: line, Column: col, Name: name, Text: text, Reason: "damaged audit folder: " + reason}
 	}
 	br := bufio.NewReaderSize(r, 1<<20)
 	peek, _ := br.Peek(br.Size())
 	if i := bytes.IndexByte(peek, '\n'); i >= 0 {
 		peek = peek[:i+1]
 	}
-	header, err := newRecordReader(bufio.NewReader(bytes.NewReader(peek)), ',').read()
+	header, err := intake.SplitHeader(peek, ',')
 	if err != nil {
 		return nil, damaged(1, 0, "", "", "scores.csv has no header of the id and PC1, PC2, …")
 	}
@@ -463,9 +465,9 @@ func ReadTrainingScores(path string, m *Model) (*mat.Dense, error) {
 			return nil, damaged(1, 0, "", "", fmt.Sprintf("scores.csv has no %s column after its id column, though the model retains %d components", name, m.Retained))
 		}
 	}
-	t, err := ReadTableFrom(path, br, ReadOptions{Delimiter: ',', Columns: want, MinRows: 1, KeepConstant: true})
+	t, err := intake.ReadTableFrom(path, br, intake.ReadOptions{Delimiter: ',', Columns: want, MinRows: 1, KeepConstant: true})
 	if err != nil {
-		var ie *InputError
+		var ie *intake.InputError
 		if errors.As(err, &ie) {
 			// The reader's advice (flags such as --drop) is for data
 			// tables; what remains says what is wrong with the file.

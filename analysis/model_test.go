@@ -11,14 +11,15 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
 // trainedModel builds the model pcqc run would write for seeded data.
-func trainedModel(t *testing.T, n, p, k int, scaling Scaling, transform Transform) *Model {
+func trainedModel(t *testing.T, n, p, k int, scaling Scaling, transform intake.Transform) *Model {
 	t.Helper()
 	x, _ := synth.LowRank(synth.RNG(uint64(n*p+k), 74), n, p, []float64{5, 3, 2}, 0.5)
-	if transform != TransformNone {
+	if transform != intake.TransformNone {
 		// Positive values, so that every transform applies.
 		for i := 0; i < n; i++ {
 			for j := 0; j < p; j++ {
@@ -26,9 +27,9 @@ func trainedModel(t *testing.T, n, p, k int, scaling Scaling, transform Transfor
 			}
 		}
 	}
-	tab := TableFromMatrix("train.csv", x, nil, nil)
+	tab := intake.TableFromMatrix("train.csv", x, nil, nil)
 	tab.Transform = transform
-	if transform != TransformNone {
+	if transform != intake.TransformNone {
 		raw := tab.X.RawMatrix().Data
 		for i, v := range raw {
 			raw[i], _ = transform.Apply(v)
@@ -50,18 +51,18 @@ func TestWrittenModelsValidate(t *testing.T) {
 		name    string
 		n, p, k int
 		scaling Scaling
-		tf      Transform
+		tf      intake.Transform
 	}{
-		{"unit", 60, 6, 2, ScaleUnit, TransformNone},
-		{"none", 60, 6, 2, ScaleNone, TransformNone},
-		{"pareto", 60, 6, 3, ScalePareto, TransformNone},
-		{"range", 60, 6, 1, ScaleRange, TransformNone},
-		{"log unit", 40, 5, 2, ScaleUnit, TransformLog},
-		{"log1p none", 40, 5, 2, ScaleNone, TransformLog1p},
-		{"wide", 12, 40, 3, ScaleUnit, TransformNone},
-		{"wide none", 12, 40, 11, ScaleNone, TransformNone},
-		{"n = k+1", 4, 6, 3, ScaleUnit, TransformNone},
-		{"all retained", 30, 4, 4, ScaleUnit, TransformNone},
+		{"unit", 60, 6, 2, ScaleUnit, intake.TransformNone},
+		{"none", 60, 6, 2, ScaleNone, intake.TransformNone},
+		{"pareto", 60, 6, 3, ScalePareto, intake.TransformNone},
+		{"range", 60, 6, 1, ScaleRange, intake.TransformNone},
+		{"log unit", 40, 5, 2, ScaleUnit, intake.TransformLog},
+		{"log1p none", 40, 5, 2, ScaleNone, intake.TransformLog1p},
+		{"wide", 12, 40, 3, ScaleUnit, intake.TransformNone},
+		{"wide none", 12, 40, 11, ScaleNone, intake.TransformNone},
+		{"n = k+1", 4, 6, 3, ScaleUnit, intake.TransformNone},
+		{"all retained", 30, 4, 4, ScaleUnit, intake.TransformNone},
 	}
 	for _, c := range cases {
 		m := trainedModel(t, c.n, c.p, c.k, c.scaling, c.tf)
@@ -84,7 +85,7 @@ func TestWrittenModelsValidate(t *testing.T) {
 // is wrong, and a model of a newer format with its own message. Mutations
 // start from a model pcqc wrote (unit scaling, 5 variables, 2 components).
 func TestDamagedModelsAreRefused(t *testing.T) {
-	base := trainedModel(t, 50, 5, 2, ScaleUnit, TransformNone)
+	base := trainedModel(t, 50, 5, 2, ScaleUnit, intake.TransformNone)
 	good, err := json.MarshalIndent(base, "", "  ")
 	if err != nil {
 		t.Fatal(err)
@@ -182,7 +183,7 @@ func TestDamagedModelsAreRefused(t *testing.T) {
 	}
 	for _, c := range cases {
 		_, err := decodeModel("model.json", []byte(c.model))
-		var ie *InputError
+		var ie *intake.InputError
 		if !errors.As(err, &ie) || ie.File != "model.json" || !strings.Contains(ie.Error(), c.want) {
 			t.Errorf("%s: got %v, want an input error with %q", c.name, err, c.want)
 			continue
@@ -210,7 +211,7 @@ func TestDamagedModelNamesThePosition(t *testing.T) {
 	}
 	for _, c := range cases {
 		_, err := decodeModel("model.json", []byte(c.text))
-		var ie *InputError
+		var ie *intake.InputError
 		if !errors.As(err, &ie) || ie.Line != c.line || ie.Column != c.col {
 			t.Errorf("%q: got %v (line %d, column %d), want line %d column %d", c.text, err, ie.Line, ie.Column, c.line, c.col)
 		}
@@ -233,9 +234,9 @@ func TestLoadModelRefusesWhatIsNotAModelFile(t *testing.T) {
 // Apply on a validated model gives finite statistics: the validation leaves
 // no zero divisor and no non-orthonormal projection behind.
 func TestValidatedModelAppliesFinitely(t *testing.T) {
-	m := trainedModel(t, 50, 5, 2, ScaleUnit, TransformNone)
+	m := trainedModel(t, 50, 5, 2, ScaleUnit, intake.TransformNone)
 	x := mat.NewDense(3, 5, []float64{0, 1, 2, 3, 4, -5, 0, 5, 0, -5, 1e6, 0, 0, 0, 0})
-	app := Apply(m, TableFromMatrix("new.csv", x, nil, nil))
+	app := Apply(m, intake.TableFromMatrix("new.csv", x, nil, nil))
 	for i := range app.T2 {
 		if !isFinite(app.T2[i]) || !isFinite(app.Q[i]) {
 			t.Errorf("sample %d: T² %v, Q %v", i, app.T2[i], app.Q[i])

@@ -5,55 +5,9 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
-
-// Transform is an element-wise transform applied to every variable cell
-// before centring and scaling.
-type Transform string
-
-const (
-	TransformNone  Transform = "none"
-	TransformLog   Transform = "log"   // natural logarithm; values must be > 0
-	TransformLog10 Transform = "log10" // base-10 logarithm; values must be > 0
-	TransformLog1p Transform = "log1p" // log(1 + x); values must be > −1
-)
-
-// Transforms lists the accepted transforms, for flag validation and help.
-var Transforms = []Transform{TransformNone, TransformLog, TransformLog10, TransformLog1p}
-
-func (t Transform) apply(v float64) (float64, bool) {
-	switch t {
-	case TransformLog:
-		if v <= 0 {
-			return 0, false
-		}
-		return math.Log(v), true
-	case TransformLog10:
-		if v <= 0 {
-			return 0, false
-		}
-		return math.Log10(v), true
-	case TransformLog1p:
-		if v <= -1 {
-			return 0, false
-		}
-		return math.Log1p(v), true
-	}
-	return v, true
-}
-
-// Apply transforms one raw value; ok is false outside the transform's domain.
-func (t Transform) Apply(v float64) (float64, bool) { return t.apply(v) }
-
-func (t Transform) domain() string {
-	switch t {
-	case TransformLog, TransformLog10:
-		return "values must be greater than 0"
-	case TransformLog1p:
-		return "values must be greater than −1"
-	}
-	return "any finite value"
-}
 
 // Scaling is the per-variable divisor applied after centring.
 type Scaling string
@@ -78,7 +32,7 @@ var Scalings = []Scaling{ScaleUnit, ScalePareto, ScaleRange, ScaleNone}
 // the decomposition: z = (x − Means) / Scales, column by column. Centring is
 // not optional; Means always holds the column means.
 type Preprocessing struct {
-	Transform Transform
+	Transform intake.Transform
 	Scaling   Scaling
 	Means     []float64 // per variable, of the transformed values
 	Scales    []float64 // per variable divisor; 1 for ScaleNone
@@ -126,7 +80,7 @@ func centredNorm(raw []float64, stride, n, j int, m float64) float64 {
 
 // FitPreprocessing computes the column means and the divisors that the chosen
 // scaling needs from the transformed table x (n × p, n ≥ 2).
-func FitPreprocessing(x *mat.Dense, transform Transform, scaling Scaling) (Preprocessing, error) {
+func FitPreprocessing(x *mat.Dense, transform intake.Transform, scaling Scaling) (Preprocessing, error) {
 	n, p := x.Dims()
 	if n < 2 {
 		return Preprocessing{}, fmt.Errorf("preprocessing needs at least 2 rows, have %d", n)

@@ -6,13 +6,14 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
 // randomTable builds an n×p table of standard normal values with the given
 // rank (rank ≥ min(n, p) means full rank), offset and stretched per column so
 // that centring and scaling have real work to do.
-func randomTable(seed uint64, n, p, rank int) *Table {
+func randomTable(seed uint64, n, p, rank int) *intake.Table {
 	rng := synth.RNG(seed, 1)
 	var x *mat.Dense
 	if rank >= min(n, p) {
@@ -25,7 +26,7 @@ func randomTable(seed uint64, n, p, rank int) *Table {
 		x, _ = synth.LowRank(rng, n, p, sd, 0)
 	}
 	synth.Stretch(rng, x)
-	return TableFromMatrix("random", x, nil, nil)
+	return intake.TableFromMatrix("random", x, nil, nil)
 }
 
 // Shapes exercised by the property tests: tall, wide (p = 50 n), square and

@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // referenceCase is a published PCA: eigenvalues and loadings computed outside
@@ -13,7 +15,7 @@ import (
 type referenceCase struct {
 	name        string
 	file        string
-	read        ReadOptions
+	read        intake.ReadOptions
 	scaling     Scaling
 	eigenvalues []float64
 	// eigenTol is the allowed |got − want|: relTol·want, or absTol where the
@@ -43,7 +45,7 @@ var referenceCases = []referenceCase{
 		// R 4.2.2 stats::prcomp(iris[,1:4]) on R's datasets::iris.
 		name:        "iris covariance PCA",
 		file:        "iris.csv",
-		read:        ReadOptions{GroupColumn: "species"},
+		read:        intake.ReadOptions{GroupColumn: "species"},
 		scaling:     ScaleNone,
 		absTol:      0.5e-8, // half a unit of the 8th decimal printed by R
 		eigenvalues: []float64{4.22824171, 0.24267075, 0.07820950, 0.02383509},
@@ -59,7 +61,7 @@ var referenceCases = []referenceCase{
 func TestReferenceDatasets(t *testing.T) {
 	for _, tc := range referenceCases {
 		t.Run(tc.name, func(t *testing.T) {
-			tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
+			tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -101,7 +103,7 @@ func assertLoadingsMatch(t *testing.T, got *mat.Dense, want [][]float64, tol flo
 
 func TestReferencePropertiesHold(t *testing.T) {
 	for _, tc := range referenceCases {
-		tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
+		tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -6,6 +6,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // Their loadings, scores and variance: the tables another person reports,
@@ -38,12 +40,12 @@ var nonComponentNames = []string{"mean", "sd", "std", "stdev", "scale", "communa
 // ParseLoadings reads a loadings table against the data's variables. The
 // layout is found by where the variable names are: in a column (variables as
 // rows) or in the header (variables as columns).
-func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
-	m := newNameMatcher(variables)
+func ParseLoadings(t *intake.LooseTable, variables []string) (*TheirLoadings, error) {
+	m := intake.NewNameMatcher(variables)
 	countMatches := func(cells []string) int {
 		n := 0
 		for _, c := range cells {
-			if _, ok := m.find(c); ok {
+			if _, ok := m.Find(c); ok {
 				n++
 			}
 		}
@@ -65,7 +67,7 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 	}
 	inHeader := countMatches(t.Header)
 	if bestRows == 0 && inHeader == 0 {
-		return nil, &InputError{File: t.Name, Line: 1, Reason: fmt.Sprintf("no variable name in common with the data (the data's variables are %s); check that these are loadings of this data set", listNames(variables, 8))}
+		return nil, &intake.InputError{File: t.Name, Line: 1, Reason: fmt.Sprintf("no variable name in common with the data (the data's variables are %s); check that these are loadings of this data set", intake.ListNames(variables, 8))}
 	}
 	l := &TheirLoadings{File: t.Name}
 	type entry struct {
@@ -82,37 +84,37 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 			switch {
 			case j == bestCol:
 			case !t.NumericColumn(j):
-				text = append(text, quoteText(h))
+				text = append(text, intake.QuoteText(h))
 			case slices.Contains(nonComponentNames, strings.ToLower(h)):
-				summaries = append(summaries, quoteText(h))
+				summaries = append(summaries, intake.QuoteText(h))
 			default:
 				compCols = append(compCols, j)
 				l.Components = append(l.Components, h)
 			}
 		}
 		if len(text) > 0 {
-			l.Notes = append(l.Notes, ignoredNote(text, "column", "columns", "is not numeric", "are not numeric"))
+			l.Notes = append(l.Notes, intake.IgnoredNote(text, "column", "columns", "is not numeric", "are not numeric"))
 		}
 		if len(summaries) > 0 {
-			l.Notes = append(l.Notes, ignoredNote(summaries, "column", "columns", "is a summary, not a component,", "are summaries, not components,"))
+			l.Notes = append(l.Notes, intake.IgnoredNote(summaries, "column", "columns", "is a summary, not a component,", "are summaries, not components,"))
 		}
 		if len(compCols) == 0 {
-			return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric component column beside the variable names"}
+			return nil, &intake.InputError{File: t.Name, Line: 1, Reason: "no numeric component column beside the variable names"}
 		}
 		seen := map[int]bool{}
 		for i, r := range t.Rows {
-			v, ok := m.find(r[bestCol])
+			v, ok := m.Find(r[bestCol])
 			if !ok {
-				unmatched = append(unmatched, fmt.Sprintf("%s (line %d)", quoteText(r[bestCol]), t.Lines[i]))
+				unmatched = append(unmatched, fmt.Sprintf("%s (line %d)", intake.QuoteText(r[bestCol]), t.Lines[i]))
 				continue
 			}
 			if seen[v] {
-				return nil, &InputError{File: t.Name, Line: t.Lines[i], Column: bestCol + 1, Text: r[bestCol], Reason: "variable listed twice:"}
+				return nil, &intake.InputError{File: t.Name, Line: t.Lines[i], Column: bestCol + 1, Text: r[bestCol], Reason: "variable listed twice:"}
 			}
 			seen[v] = true
 			e := entry{variable: v}
 			for _, j := range compCols {
-				x, err := t.value(i, j, "loading")
+				x, err := t.Value(i, j, "loading")
 				if err != nil {
 					return nil, err
 				}
@@ -122,7 +124,7 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 			entries = append(entries, e)
 		}
 		if len(unmatched) > 0 {
-			l.Notes = append(l.Notes, ignoredNote(unmatched, "row", "rows", "names no data variable", "name no data variable"))
+			l.Notes = append(l.Notes, intake.IgnoredNote(unmatched, "row", "rows", "names no data variable", "name no data variable"))
 		}
 	} else {
 		l.Layout = LayoutVariableColumns
@@ -131,7 +133,7 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 		seen := map[int]bool{}
 		nameCol := -1
 		for j, h := range t.Header {
-			if v, ok := m.find(h); ok && !seen[v] {
+			if v, ok := m.Find(h); ok && !seen[v] {
 				seen[v] = true
 				varCols = append(varCols, j)
 				continue
@@ -140,10 +142,10 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 				nameCol = j
 				continue
 			}
-			unmatched = append(unmatched, quoteText(h))
+			unmatched = append(unmatched, intake.QuoteText(h))
 		}
 		if len(unmatched) > 0 {
-			l.Notes = append(l.Notes, ignoredNote(unmatched, "column", "columns", "names no data variable", "name no data variable"))
+			l.Notes = append(l.Notes, intake.IgnoredNote(unmatched, "column", "columns", "names no data variable", "name no data variable"))
 		}
 		var compRows []int
 		for i, r := range t.Rows {
@@ -152,19 +154,19 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 				name = r[nameCol]
 			}
 			if slices.Contains(nonComponentNames, strings.ToLower(name)) {
-				summaries = append(summaries, fmt.Sprintf("%s (line %d)", quoteText(name), t.Lines[i]))
+				summaries = append(summaries, fmt.Sprintf("%s (line %d)", intake.QuoteText(name), t.Lines[i]))
 				continue
 			}
 			compRows = append(compRows, i)
 			l.Components = append(l.Components, name)
 		}
 		if len(summaries) > 0 {
-			l.Notes = append(l.Notes, ignoredNote(summaries, "row", "rows", "is a summary, not a component,", "are summaries, not components,"))
+			l.Notes = append(l.Notes, intake.IgnoredNote(summaries, "row", "rows", "is a summary, not a component,", "are summaries, not components,"))
 		}
 		values := make([][]float64, len(varCols))
 		for _, i := range compRows {
 			for c, j := range varCols {
-				x, err := t.value(i, j, "loading")
+				x, err := t.Value(i, j, "loading")
 				if err != nil {
 					return nil, err
 				}
@@ -173,16 +175,16 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 			}
 		}
 		for c, j := range varCols {
-			v, _ := m.find(t.Header[j])
+			v, _ := m.Find(t.Header[j])
 			entries = append(entries, entry{variable: v, values: values[c]})
 		}
 	}
 	if len(entries) < 2 {
-		return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("the loadings cover %d data variable; at least 2 are needed", len(entries))}
+		return nil, &intake.InputError{File: t.Name, Reason: fmt.Sprintf("the loadings cover %d data variable; at least 2 are needed", len(entries))}
 	}
 	k := len(l.Components)
 	if k == 0 || k >= len(entries) {
-		return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("%d components for %d variables: a loadings table has fewer components than variables", k, len(entries))}
+		return nil, &intake.InputError{File: t.Name, Reason: fmt.Sprintf("%d components for %d variables: a loadings table has fewer components than variables", k, len(entries))}
 	}
 	slices.SortFunc(entries, func(a, b entry) int { return a.variable - b.variable })
 	l.V = mat.NewDense(len(entries), k, nil)
@@ -193,7 +195,7 @@ func ParseLoadings(t *LooseTable, variables []string) (*TheirLoadings, error) {
 	if missing := len(variables) - len(entries); missing > 0 {
 		l.Notes = append(l.Notes, fmt.Sprintf("the loadings cover %d of the data's %d variables; the review uses those %d", len(entries), len(variables), len(entries)))
 	}
-	l.Decimals = decimals(cells)
+	l.Decimals = intake.Decimals(cells)
 	return l, nil
 }
 
@@ -209,14 +211,14 @@ type TheirScores struct {
 
 // ParseScores reads a scores table and matches its rows to the data's
 // samples: by id when a column holds the sample ids, otherwise by row order.
-func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
+func ParseScores(t *intake.LooseTable, ids []string, k int) (*TheirScores, error) {
 	n := len(ids)
-	m := newNameMatcher(ids)
+	m := intake.NewNameMatcher(ids)
 	idCol, best := -1, 0
 	for j := range t.Header {
 		hits := 0
 		for _, r := range t.Rows {
-			if _, ok := m.exact[r[j]]; ok {
+			if _, ok := m.Exact(r[j]); ok {
 				hits++
 			}
 		}
@@ -238,7 +240,7 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 	indexCol := -1
 	if len(t.Header) > 1 && t.NumericColumn(0) && isRowIndex(t, 0) {
 		first, _ := t.Number(t.Rows[0][0])
-		_, idZero := m.exact["0"]
+		_, idZero := m.Exact("0")
 		switch {
 		case idCol == 0 && first == 0 && !idZero:
 			idCol, indexCol = -1, 0
@@ -251,7 +253,7 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 		if name == "" {
 			name = "(unnamed)"
 		}
-		s.Notes = append(s.Notes, fmt.Sprintf("column %s counts the rows and was read as an index", quoteText(name)))
+		s.Notes = append(s.Notes, fmt.Sprintf("column %s counts the rows and was read as an index", intake.QuoteText(name)))
 	}
 	var scoreCols []int
 	var text []string
@@ -259,16 +261,16 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 		switch {
 		case j == idCol, j == indexCol:
 		case !t.NumericColumn(j):
-			text = append(text, quoteText(h))
+			text = append(text, intake.QuoteText(h))
 		default:
 			scoreCols = append(scoreCols, j)
 		}
 	}
 	if len(text) > 0 {
-		s.Notes = append(s.Notes, ignoredNote(text, "column", "columns", "is not numeric", "are not numeric"))
+		s.Notes = append(s.Notes, intake.IgnoredNote(text, "column", "columns", "is not numeric", "are not numeric"))
 	}
 	if len(scoreCols) == 0 {
-		return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric score column"}
+		return nil, &intake.InputError{File: t.Name, Line: 1, Reason: "no numeric score column"}
 	}
 	if len(scoreCols) > k {
 		s.Notes = append(s.Notes, fmt.Sprintf("%d score columns for %d loadings components; the first %d are used", len(scoreCols), k, k))
@@ -287,17 +289,17 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 		filled := make([]bool, n)
 		var unknown []string
 		for i, r := range t.Rows {
-			row, ok := m.exact[r[idCol]]
+			row, ok := m.Exact(r[idCol])
 			if !ok {
-				unknown = append(unknown, fmt.Sprintf("%s (line %d)", quoteText(r[idCol]), t.Lines[i]))
+				unknown = append(unknown, fmt.Sprintf("%s (line %d)", intake.QuoteText(r[idCol]), t.Lines[i]))
 				continue
 			}
 			if filled[row] {
-				return nil, &InputError{File: t.Name, Line: t.Lines[i], Column: idCol + 1, Text: r[idCol], Reason: "sample listed twice:"}
+				return nil, &intake.InputError{File: t.Name, Line: t.Lines[i], Column: idCol + 1, Text: r[idCol], Reason: "sample listed twice:"}
 			}
 			filled[row] = true
 			for c, j := range scoreCols {
-				v, err := t.value(i, j, "score")
+				v, err := t.Value(i, j, "score")
 				if err != nil {
 					return nil, err
 				}
@@ -306,7 +308,7 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 			}
 		}
 		if len(unknown) > 0 {
-			s.Notes = append(s.Notes, ignoredNote(unknown, "sample", "samples", "is not in the data", "are not in the data"))
+			s.Notes = append(s.Notes, intake.IgnoredNote(unknown, "sample", "samples", "is not in the data", "are not in the data"))
 		}
 		if missing := slices.Index(filled, false); missing >= 0 {
 			count := 0
@@ -315,16 +317,16 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 					count++
 				}
 			}
-			return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("scores are missing for %d of the %d samples (the first is %q)", count, n, ids[missing])}
+			return nil, &intake.InputError{File: t.Name, Reason: fmt.Sprintf("scores are missing for %d of the %d samples (the first is %q)", count, n, ids[missing])}
 		}
 	} else {
 		if len(t.Rows) != n {
-			return nil, &InputError{File: t.Name, Reason: fmt.Sprintf("%d score rows for %d samples in the data, and no column of sample ids to match them by", len(t.Rows), n)}
+			return nil, &intake.InputError{File: t.Name, Reason: fmt.Sprintf("%d score rows for %d samples in the data, and no column of sample ids to match them by", len(t.Rows), n)}
 		}
 		s.MatchedBy = "by row order (no column holds the sample ids)"
 		for i, r := range t.Rows {
 			for c, j := range scoreCols {
-				v, err := t.value(i, j, "score")
+				v, err := t.Value(i, j, "score")
 				if err != nil {
 					return nil, err
 				}
@@ -333,6 +335,6 @@ func ParseScores(t *LooseTable, ids []string, k int) (*TheirScores, error) {
 			}
 		}
 	}
-	s.Decimals = decimals(cells)
+	s.Decimals = intake.Decimals(cells)
 	return s, nil
 }

@@ -14,10 +14,11 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	. "pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/internal/fixture"
 )
 
-func computeOther(t *testing.T, tab *Table, centred bool, scaling Scaling, k int) fixture.Other {
+func computeOther(t *testing.T, tab *intake.Table, centred bool, scaling Scaling, k int) fixture.Other {
 	t.Helper()
 	o, err := fixture.Compute(tab, centred, scaling, k)
 	if err != nil {
@@ -26,25 +27,25 @@ func computeOther(t *testing.T, tab *Table, centred bool, scaling Scaling, k int
 	return o
 }
 
-func loose(t *testing.T, name, text string) *LooseTable {
+func loose(t *testing.T, name, text string) *intake.LooseTable {
 	t.Helper()
-	lt, err := ReadLooseTableFrom(name, strings.NewReader(text))
+	lt, err := intake.ReadLooseTableFrom(name, strings.NewReader(text))
 	if err != nil {
 		t.Fatal(err)
 	}
 	return lt
 }
 
-func usarrests(t *testing.T) *Table {
+func usarrests(t *testing.T) *intake.Table {
 	t.Helper()
-	tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", "usarrests.csv"), ReadOptions{})
+	tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", "usarrests.csv"), intake.ReadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	return tab
 }
 
-func review(t *testing.T, tab *Table, loadings, scores, variance string, claimed Scaling) *Review {
+func review(t *testing.T, tab *intake.Table, loadings, scores, variance string, claimed Scaling) *Review {
 	t.Helper()
 	l, err := ParseLoadings(loose(t, "loadings.csv", loadings), tab.Variables)
 	if err != nil {
@@ -203,7 +204,7 @@ func TestReviewRejectsMismatchedTables(t *testing.T) {
 	tab := usarrests(t)
 	o := computeOther(t, tab, true, ScaleUnit, 2)
 	_, err := ParseLoadings(loose(t, "l.csv", "var,PC1,PC2\nfoo,0.1,0.2\nbar,0.3,0.4\n"), tab.Variables)
-	var ie *InputError
+	var ie *intake.InputError
 	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "no variable name in common") {
 		t.Errorf("no names in common: %v", err)
 	}
@@ -228,8 +229,8 @@ func TestLooseTableEncoding(t *testing.T) {
 		{"binary", "PK\x03\x04\x00\x00\x08\x00\x00\x00xl/workbook.xml\x00", "binary"},
 	}
 	for _, c := range cases {
-		_, err := ReadLooseTableFrom(c.name, strings.NewReader(c.text))
-		var ie *InputError
+		_, err := intake.ReadLooseTableFrom(c.name, strings.NewReader(c.text))
+		var ie *intake.InputError
 		if !errors.As(err, &ie) || !strings.Contains(ie.Reason, c.reason) {
 			t.Errorf("%s: got %v, want an input error about %s", c.name, err, c.reason)
 		}
@@ -321,13 +322,13 @@ func TestPrincipalAnglesFromSines(t *testing.T) {
 // where the values are, its header or content what they are.
 func TestReviewReadsVarianceFileShapes(t *testing.T) {
 	dir := filepath.Join("..", "testdata", "review")
-	wine, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	wine, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), intake.ReadOptions{GroupColumn: "cultivar"})
 	if err != nil {
 		t.Fatal(err)
 	}
 	cases := []struct {
 		file, loadings string
-		tab            *Table
+		tab            *intake.Table
 		kind           VarianceKind
 		from, why      string
 		ambiguous      bool
@@ -419,7 +420,7 @@ func TestVarianceReadingAmbiguity(t *testing.T) {
 // 3 …) against data with named samples would make the index a component.
 // Both are read as an index, rows in data order.
 func TestReviewScoresWithRowIndex(t *testing.T) {
-	wine, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	wine, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), intake.ReadOptions{GroupColumn: "cultivar"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -445,7 +446,7 @@ func TestReviewScoresWithRowIndex(t *testing.T) {
 	usScores := o.ScoresCSV(false, fixture.Identity(50))
 	cases := []struct {
 		name             string
-		tab              *Table
+		tab              *intake.Table
 		loadings, scores string
 	}{
 		{"pandas index from 0, row-number ids", wine, read("sklearn-wine-loadings.csv"), read("sklearn-wine-scores-indexed.csv")},

@@ -5,6 +5,8 @@ import (
 	"math"
 	"slices"
 	"strings"
+
+	"pcqc/analysis/intake"
 )
 
 // Their variance table: the size of each component as another person wrote
@@ -108,7 +110,7 @@ func varianceLabelRank(k VarianceKind) int {
 // ParseVariance reads another person's variance table in any of the shapes
 // above. A value used that is not a finite number within ±MaxMagnitude is an
 // InputError naming its cell.
-func ParseVariance(t *LooseTable) (*TheirVariance, error) {
+func ParseVariance(t *intake.LooseTable) (*TheirVariance, error) {
 	v := &TheirVariance{File: t.Name}
 	noHeader := headerless(t)
 	// A file whose first line is all numbers has no header (numpy's
@@ -133,7 +135,7 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 		}
 	}
 	if len(numeric) == 0 {
-		return nil, &InputError{File: t.Name, Line: 1, Reason: "no numeric column of variances"}
+		return nil, &intake.InputError{File: t.Name, Line: 1, Reason: "no numeric column of variances"}
 	}
 	// Components across the columns: one row of values (components in the
 	// header), or rows named by what they hold (R's summary importance).
@@ -142,7 +144,7 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 			row = 0
 		}
 		for _, j := range numeric {
-			x, err := t.value(row, j, "variance")
+			x, err := t.Value(row, j, "variance")
 			if err != nil {
 				return nil, err
 			}
@@ -151,7 +153,7 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 		if len(text) > 0 {
 			v.Label = t.Rows[row][text[0]]
 			v.LabelKind = varianceLabelKind(v.Label)
-			v.From = fmt.Sprintf("row %s (line %d)", quoteText(v.Label), t.Lines[row])
+			v.From = fmt.Sprintf("row %s (line %d)", intake.QuoteText(v.Label), t.Lines[row])
 			if others := len(t.Rows) - 1; others > 0 {
 				v.Notes = append(v.Notes, fmt.Sprintf("the other %s not used", countRows(others)))
 			}
@@ -171,7 +173,7 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 		if name == "" {
 			name = "(unnamed)"
 		}
-		v.Notes = append(v.Notes, fmt.Sprintf("column %s counts the rows and was read as an index", quoteText(name)))
+		v.Notes = append(v.Notes, fmt.Sprintf("column %s counts the rows and was read as an index", intake.QuoteText(name)))
 	}
 	col, rank := -1, 5
 	for _, j := range values {
@@ -184,7 +186,7 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 		}
 	}
 	if col < 0 {
-		return nil, &InputError{File: t.Name, Line: 1, Column: values[0] + 1, Name: t.Header[values[0]],
+		return nil, &intake.InputError{File: t.Name, Line: 1, Column: values[0] + 1, Name: t.Header[values[0]],
 			Reason: "every numeric column holds cumulative shares; give the share of each component"}
 	}
 	if len(values) > 1 {
@@ -195,11 +197,11 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 			}
 		}
 		if used > 1 && rank == 4 {
-			v.Notes = append(v.Notes, fmt.Sprintf("%d numeric columns and no header naming what they hold: the first, %s, was used", used, quoteText(t.Header[col])))
+			v.Notes = append(v.Notes, fmt.Sprintf("%d numeric columns and no header naming what they hold: the first, %s, was used", used, intake.QuoteText(t.Header[col])))
 		}
 	}
 	for i := range t.Rows {
-		x, err := t.value(i, col, "variance")
+		x, err := t.Value(i, col, "variance")
 		if err != nil {
 			return nil, err
 		}
@@ -214,7 +216,7 @@ func ParseVariance(t *LooseTable) (*TheirVariance, error) {
 		// numpy's savetxt writes its header after "# ".
 		v.Label = strings.TrimSpace(strings.TrimLeft(t.Header[col], "#"))
 		v.LabelKind = varianceLabelKind(v.Label)
-		v.From = "column " + quoteText(v.Label)
+		v.From = "column " + intake.QuoteText(v.Label)
 	}
 	v.SumTolerance = sumTolerance(columnCells(t, col), nil)
 	return v, nil
@@ -228,9 +230,9 @@ func countRows(n int) string {
 }
 
 // headerless reports whether every cell of the header is a number.
-func headerless(t *LooseTable) bool {
+func headerless(t *intake.LooseTable) bool {
 	for _, h := range t.Header {
-		if !t.numberLike(h) {
+		if !t.NumberLike(h) {
 			return false
 		}
 	}
@@ -240,7 +242,7 @@ func headerless(t *LooseTable) bool {
 // labelledRow finds, in the first text column, the row whose name says what
 // the values are, preferring shares (see varianceLabelRank) and never a
 // cumulative row; ok is false when no row is so named.
-func labelledRow(t *LooseTable, text []int) (int, bool) {
+func labelledRow(t *intake.LooseTable, text []int) (int, bool) {
 	if len(text) == 0 {
 		return 0, false
 	}
@@ -259,7 +261,7 @@ func labelledRow(t *LooseTable, text []int) (int, bool) {
 
 // isRowIndex reports whether column j holds the integers 0, 1, 2 … or
 // 1, 2, 3 … in order.
-func isRowIndex(t *LooseTable, j int) bool {
+func isRowIndex(t *intake.LooseTable, j int) bool {
 	start := -1.0
 	for i, r := range t.Rows {
 		x, ok := t.Number(r[j])
@@ -279,7 +281,7 @@ func isRowIndex(t *LooseTable, j int) bool {
 	return true
 }
 
-func columnCells(t *LooseTable, j int) []string {
+func columnCells(t *intake.LooseTable, j int) []string {
 	out := make([]string, len(t.Rows))
 	for i, r := range t.Rows {
 		out[i] = r[j]
@@ -301,7 +303,7 @@ func sumTolerance(cells []string, cols []int) float64 {
 	}
 	tol := 0.0
 	for _, c := range cells {
-		tol += 0.5 * math.Pow(10, -float64(printedDecimals(c)))
+		tol += 0.5 * math.Pow(10, -float64(intake.PrintedDecimals(c)))
 	}
 	return tol + 1e-12*float64(len(cells))
 }
@@ -388,7 +390,7 @@ func (v *TheirVariance) Read(eigenvalues []float64) VarianceReading {
 		}
 		return logRatio, points
 	}
-	label := quoteText(v.Label)
+	label := intake.QuoteText(v.Label)
 	done := func(kind VarianceKind, why string) VarianceReading {
 		return VarianceReading{Kind: kind, Percent: percent(kind), Why: why}
 	}

@@ -11,6 +11,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"pcqc/analysis/intake"
 )
 
 // readPcaHubert reads a p × k loadings table written by
@@ -64,19 +66,19 @@ func TestRobustMatchesRrcov(t *testing.T) {
 	const tolerance = 10.0 // degrees, see above
 	cases := []struct {
 		file, ref string
-		read      ReadOptions
+		read      intake.ReadOptions
 	}{
-		{"wine.csv", "wine_pcahubert.csv", ReadOptions{GroupColumn: "cultivar"}},
-		{"breast_cancer.csv", "breast_cancer_pcahubert.csv", ReadOptions{GroupColumn: "diagnosis"}},
-		{"diabetes.csv", "diabetes_pcahubert.csv", ReadOptions{}},
-		{"usarrests.csv", "usarrests_pcahubert.csv", ReadOptions{}},
-		{"iris.csv", "iris_pcahubert.csv", ReadOptions{GroupColumn: "species"}},
+		{"wine.csv", "wine_pcahubert.csv", intake.ReadOptions{GroupColumn: "cultivar"}},
+		{"breast_cancer.csv", "breast_cancer_pcahubert.csv", intake.ReadOptions{GroupColumn: "diagnosis"}},
+		{"diabetes.csv", "diabetes_pcahubert.csv", intake.ReadOptions{}},
+		{"usarrests.csv", "usarrests_pcahubert.csv", intake.ReadOptions{}},
+		{"iris.csv", "iris_pcahubert.csv", intake.ReadOptions{GroupColumn: "species"}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.file, func(t *testing.T) {
 			vars, ref := readPcaHubert(t, tc.ref)
 			_, k := ref.Dims()
-			tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
+			tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -107,7 +109,7 @@ func TestRobustMatchesRrcov(t *testing.T) {
 // TestRobustDeterministicAcrossThreads: the random directions and MCD
 // starts come from (seed, index) streams, so threads change nothing.
 func TestRobustDeterministicAcrossThreads(t *testing.T) {
-	tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"})
+	tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), intake.ReadOptions{GroupColumn: "cultivar"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -164,7 +166,7 @@ func TestRobustResistsPlantedOutliers(t *testing.T) {
 			planted := mat.NewDense(p, 1, nil)
 			planted.Set(0, 0, 1/math.Sqrt2)
 			planted.Set(1, 0, 1/math.Sqrt2)
-			res, err := Analyze(TableFromMatrix("planted.csv", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}, NoCrossValidation: true, Seed: 1})
+			res, err := Analyze(intake.TableFromMatrix("planted.csv", x, nil, nil), Options{Scaling: ScaleNone, Components: ComponentRule{Kind: RuleFixed, Fixed: 1}, NoCrossValidation: true, Seed: 1})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -6,6 +6,8 @@ import (
 	"os"
 	"path/filepath"
 	"testing"
+
+	"pcqc/analysis/intake"
 )
 
 // sklearnReference is one table of testdata/datasets/sklearn_reference.json:
@@ -30,11 +32,11 @@ func TestSklearnDatasetsMatchNumpy(t *testing.T) {
 	}
 	cases := []struct {
 		file string
-		read ReadOptions
+		read intake.ReadOptions
 	}{
-		{"wine.csv", ReadOptions{GroupColumn: "cultivar"}},
-		{"breast_cancer.csv", ReadOptions{GroupColumn: "diagnosis"}},
-		{"diabetes.csv", ReadOptions{}},
+		{"wine.csv", intake.ReadOptions{GroupColumn: "cultivar"}},
+		{"breast_cancer.csv", intake.ReadOptions{GroupColumn: "diagnosis"}},
+		{"diabetes.csv", intake.ReadOptions{}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.file, func(t *testing.T) {
@@ -42,7 +44,7 @@ func TestSklearnDatasetsMatchNumpy(t *testing.T) {
 			if err := json.Unmarshal(refs[tc.file], &ref); err != nil || ref.Rows == 0 {
 				t.Fatalf("no reference for %s (%v)", tc.file, err)
 			}
-			tab, err := ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
+			tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", tc.file), tc.read)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"pcqc/analysis/intake"
 )
 
 // WhatIf is the analysis refitted without the samples the outlier and
@@ -233,7 +235,7 @@ func AssignMaximum(w [][]float64) []int {
 
 // constantColumn returns the first variable of t that takes a single
 // value (exactly: such a column has no spread to scale by), or −1.
-func constantColumn(t *Table) int {
+func constantColumn(t *intake.Table) int {
 	n, p := t.X.Dims()
 	for j := 0; j < p; j++ {
 		first, same := t.X.At(0, j), true

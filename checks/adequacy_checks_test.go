@@ -9,12 +9,13 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
-func analyzeText(t *testing.T, text string, read analysis.ReadOptions, opt analysis.Options) *analysis.Result {
+func analyzeText(t *testing.T, text string, read intake.ReadOptions, opt analysis.Options) *analysis.Result {
 	t.Helper()
-	tab, err := analysis.ReadTableFrom("t.csv", strings.NewReader(text), read)
+	tab, err := intake.ReadTableFrom("t.csv", strings.NewReader(text), read)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -60,40 +61,40 @@ func TestAdequacyChecksReachTheirStatuses(t *testing.T) {
 	cases := []struct {
 		name   string
 		text   string
-		read   analysis.ReadOptions
+		read   intake.ReadOptions
 		opt    analysis.Options
 		check  Check
 		status Status
 		inMsg  string
 	}{
-		{"no missing", table(400, 6, cell), analysis.ReadOptions{}, analysis.Options{}, missingValues, Pass, "No cell"},
+		{"no missing", table(400, 6, cell), intake.ReadOptions{}, analysis.Options{}, missingValues, Pass, "No cell"},
 		{"many dropped", table(400, 6, func(i, j int) float64 {
 			if j == 0 && i%10 == 0 {
 				return math.NaN()
 			}
 			return cell(i, j)
-		}), analysis.ReadOptions{Missing: analysis.MissingDrop}, analysis.Options{}, missingValues, Warn, "40 rows of 400 (10.0 %) dropped"},
+		}), intake.ReadOptions{Missing: intake.MissingDrop}, analysis.Options{}, missingValues, Warn, "40 rows of 400 (10.0 %) dropped"},
 		{"few imputed", table(400, 6, func(i, j int) float64 {
 			if j == 0 && i < 3 {
 				return math.NaN()
 			}
 			return cell(i, j)
-		}), analysis.ReadOptions{Missing: analysis.MissingMean}, analysis.Options{}, missingValues, Pass, "3 cells of 2400"},
+		}), intake.ReadOptions{Missing: intake.MissingMean}, analysis.Options{}, missingValues, Pass, "3 cells of 2400"},
 		{"constant dropped", table(400, 6, func(i, j int) float64 {
 			if j == 5 {
 				return 7
 			}
 			return cell(i, j)
-		}), analysis.ReadOptions{}, analysis.Options{}, constantVariables, Warn, "v6"},
-		{"duplicate rows", table(400, 6, func(i, j int) float64 { return cell(i%399, j) }), analysis.ReadOptions{}, analysis.Options{}, duplicateRows, Warn, "s1 = s400"},
-		{"few samples", table(20, 6, cell), analysis.ReadOptions{}, analysis.Options{}, sampleSize, Pass, "Fewer than 5"},
-		{"wide", table(10, 30, func(i, j int) float64 { return noise.At(i+10*(j/6), j%6) }), analysis.ReadOptions{}, analysis.Options{}, sampleSize, Pass, "More variables than samples"},
+		}), intake.ReadOptions{}, analysis.Options{}, constantVariables, Warn, "v6"},
+		{"duplicate rows", table(400, 6, func(i, j int) float64 { return cell(i%399, j) }), intake.ReadOptions{}, analysis.Options{}, duplicateRows, Warn, "s1 = s400"},
+		{"few samples", table(20, 6, cell), intake.ReadOptions{}, analysis.Options{}, sampleSize, Pass, "Fewer than 5"},
+		{"wide", table(10, 30, func(i, j int) float64 { return noise.At(i+10*(j/6), j%6) }), intake.ReadOptions{}, analysis.Options{}, sampleSize, Pass, "More variables than samples"},
 		{"units dominate", table(400, 6, func(i, j int) float64 {
 			if j == 2 {
 				return 1000 * cell(i, j)
 			}
 			return cell(i, j)
-		}), analysis.ReadOptions{}, analysis.Options{Scaling: analysis.ScaleNone}, scaling, Warn, "v3 will dominate PC1"},
+		}), intake.ReadOptions{}, analysis.Options{Scaling: analysis.ScaleNone}, scaling, Warn, "v3 will dominate PC1"},
 		{"near-constant under unit scaling", table(400, 6, func(i, j int) float64 {
 			if j == 4 {
 				if i%20 == 0 {
@@ -102,19 +103,19 @@ func TestAdequacyChecksReachTheirStatuses(t *testing.T) {
 				return 1
 			}
 			return cell(i, j)
-		}), analysis.ReadOptions{}, analysis.Options{Scaling: analysis.ScaleUnit}, scaling, Warn, "v5"},
+		}), intake.ReadOptions{}, analysis.Options{Scaling: analysis.ScaleUnit}, scaling, Warn, "v5"},
 		{"skewed positive", table(400, 6, func(i, j int) float64 {
 			if j == 1 {
 				return math.Exp(2 * noise.At(i, 1))
 			}
 			return cell(i, j)
-		}), analysis.ReadOptions{}, analysis.Options{}, skewness, Warn, "--transform log"},
-		{"symmetric", table(400, 6, cell), analysis.ReadOptions{}, analysis.Options{}, skewness, Pass, "No variable"},
-		{"noise has no structure", table(400, 6, func(i, j int) float64 { return noise.At(i, j) }), analysis.ReadOptions{}, analysis.Options{}, sphericity, Warn, "no shared structure"},
-		{"factor structure", table(400, 6, cell), analysis.ReadOptions{}, analysis.Options{}, sphericity, Pass, "share structure"},
-		{"noise KMO", table(400, 6, func(i, j int) float64 { return noise.At(i, j) }), analysis.ReadOptions{}, analysis.Options{}, samplingAdequacy, Fail, "unacceptable"},
-		{"factor KMO", table(400, 6, cell), analysis.ReadOptions{}, analysis.Options{}, samplingAdequacy, Pass, "Kaiser's words"},
-		{"wide KMO skipped", table(10, 30, func(i, j int) float64 { return noise.At(i+10*(j/6), j%6) }), analysis.ReadOptions{}, analysis.Options{}, samplingAdequacy, Skip, "p = 30 ≥ n = 10"},
+		}), intake.ReadOptions{}, analysis.Options{}, skewness, Warn, "--transform log"},
+		{"symmetric", table(400, 6, cell), intake.ReadOptions{}, analysis.Options{}, skewness, Pass, "No variable"},
+		{"noise has no structure", table(400, 6, func(i, j int) float64 { return noise.At(i, j) }), intake.ReadOptions{}, analysis.Options{}, sphericity, Warn, "no shared structure"},
+		{"factor structure", table(400, 6, cell), intake.ReadOptions{}, analysis.Options{}, sphericity, Pass, "share structure"},
+		{"noise KMO", table(400, 6, func(i, j int) float64 { return noise.At(i, j) }), intake.ReadOptions{}, analysis.Options{}, samplingAdequacy, Fail, "unacceptable"},
+		{"factor KMO", table(400, 6, cell), intake.ReadOptions{}, analysis.Options{}, samplingAdequacy, Pass, "Kaiser's words"},
+		{"wide KMO skipped", table(10, 30, func(i, j int) float64 { return noise.At(i+10*(j/6), j%6) }), intake.ReadOptions{}, analysis.Options{}, samplingAdequacy, Skip, "p = 30 ≥ n = 10"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -131,7 +132,7 @@ func TestComponentChecks(t *testing.T) {
 	// Two well-separated planted components: the rules agree, eigenvalues
 	// are separated.
 	x, _ := synth.LowRank(synth.RNG(3, 41), 500, 10, []float64{4, 2}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Permutations: 100, Seed: 1})
+	res, err := analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Permutations: 100, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -151,7 +152,7 @@ func TestComponentChecks(t *testing.T) {
 			x.Set(i, j, 0.5*x.At(i, j)+3*f.At(i, j/5))
 		}
 	}
-	res, err = analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
+	res, err = analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -169,7 +170,7 @@ func TestSampleChecks(t *testing.T) {
 	}
 	x.Set(20, 3, x.At(20, 3)+50) // about 6 standard deviations of variable 4
 
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
+	res, err := analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -187,7 +188,7 @@ func TestSampleChecks(t *testing.T) {
 
 func TestLoadingStabilityCheck(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(6, 43), 300, 10, []float64{5, 2.5}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
+	res, err := analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -211,7 +212,7 @@ func TestLoadingStabilityCheck(t *testing.T) {
 			x.Set(i, j, 0.2*x.At(i, j)+40*f.At(i, j/4))
 		}
 	}
-	res, err = analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleNone, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
+	res, err = analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleNone, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -227,7 +228,7 @@ func TestLoadingStabilityCheck(t *testing.T) {
 	// the worst resamples (φ₅ far below 0.85), so the subspace check
 	// warns, naming it.
 	x, _ = synth.LowRank(synth.RNG(8, 43), 40, 10, []float64{3}, 1)
-	res, err = analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
+	res, err = analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Bootstrap: 100, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -237,7 +238,7 @@ func TestLoadingStabilityCheck(t *testing.T) {
 	// Pure noise, three retained: even the typical resample's subspace is
 	// different (median φ < 0.85), so it fails.
 	x = synth.Gaussian(synth.RNG(9, 43), 40, 10)
-	res, err = analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 3}, Bootstrap: 100, Seed: 1})
+	res, err = analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 3}, Bootstrap: 100, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -50,7 +51,7 @@ func TestCorrectnessChecksPassOnRandomData(t *testing.T) {
 				}
 				synth.Stretch(rng, x)
 				for _, rule := range []analysis.ComponentRule{{Kind: analysis.RuleVariance, Variance: 0.8}, {Kind: analysis.RuleParallel}, {Kind: analysis.RuleFixed, Fixed: min(sh.n-1, sh.p)}} {
-					res, err := analysis.Analyze(analysis.TableFromMatrix(name, x, nil, nil), analysis.Options{Scaling: sc, Components: rule, Permutations: 100, NoCrossValidation: true})
+					res, err := analysis.Analyze(intake.TableFromMatrix(name, x, nil, nil), analysis.Options{Scaling: sc, Components: rule, Permutations: 100, NoCrossValidation: true})
 					if err != nil {
 						t.Fatalf("%s: %v", name, err)
 					}
@@ -70,7 +71,7 @@ func TestCorrectnessChecksPassOnRandomData(t *testing.T) {
 func TestCorrectnessChecksFailWhenBroken(t *testing.T) {
 	rng := synth.RNG(5, 3)
 	x, _ := synth.LowRank(rng, 200, 8, []float64{3, 2}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 3}})
+	res, err := analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 3}})
 	if err != nil {
 		t.Fatal(err)
 	}

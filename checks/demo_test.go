@@ -7,12 +7,13 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/demo"
 )
 
 func demoResult(t *testing.T) (*analysis.Result, []Result) {
 	t.Helper()
-	tab, err := analysis.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), analysis.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
+	tab, err := intake.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), intake.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -3,7 +3,7 @@ package checks
 import (
 	"fmt"
 
-	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 var missingValues = Check{
@@ -20,7 +20,7 @@ var missingValues = Check{
 		}
 		cells := t.RowsRead * len(t.Variables)
 		switch t.Missing {
-		case analysis.MissingDrop:
+		case intake.MissingDrop:
 			share := float64(t.RowsDropped) / float64(t.RowsRead)
 			r.Status = Pass
 			if share > MissingShareLimit {
@@ -28,7 +28,7 @@ var missingValues = Check{
 			}
 			r.Message = fmt.Sprintf("%s missing; %s of %d (%s) dropped because of them. Dropping rows is safe only when values are missing at random; if they are missing for a reason (a sensor failing at high values, say) the remaining samples are biased.",
 				countNoun(t.MissingCells, "cell"), countNoun(t.RowsDropped, "row"), t.RowsRead, pct(share))
-		case analysis.MissingMean:
+		case intake.MissingMean:
 			share := float64(t.ImputedCells) / float64(cells)
 			r.Status = Pass
 			if share > MissingShareLimit {

@@ -8,6 +8,7 @@ import (
 	"gonum.org/v1/gonum/stat"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -21,7 +22,7 @@ func columnSD(x *mat.Dense, j int) float64 {
 
 func analyseFixed(t *testing.T, x *mat.Dense, k, bootstrap int) *analysis.Result {
 	t.Helper()
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit,
+	res, err := analysis.Analyze(intake.TableFromMatrix("t", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit,
 		Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: k}, Bootstrap: bootstrap, Seed: 7, Threads: 2})
 	if err != nil {
 		t.Fatal(err)

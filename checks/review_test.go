@@ -11,31 +11,32 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/demo"
 	"pcqc/internal/fixture"
 )
 
-func usarrestsTable(t *testing.T) *analysis.Table {
+func usarrestsTable(t *testing.T) *intake.Table {
 	t.Helper()
-	tab, err := analysis.ReadTable(filepath.Join("..", "testdata", "datasets", "usarrests.csv"), analysis.ReadOptions{})
+	tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", "usarrests.csv"), intake.ReadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	return tab
 }
 
-func demoTable(t *testing.T) *analysis.Table {
+func demoTable(t *testing.T) *intake.Table {
 	t.Helper()
-	tab, err := analysis.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), analysis.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
+	tab, err := intake.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), intake.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
 	if err != nil {
 		t.Fatal(err)
 	}
 	return tab
 }
 
-func looseTable(t *testing.T, text string) *analysis.LooseTable {
+func looseTable(t *testing.T, text string) *intake.LooseTable {
 	t.Helper()
-	lt, err := analysis.ReadLooseTableFrom("their.csv", strings.NewReader(text))
+	lt, err := intake.ReadLooseTableFrom("their.csv", strings.NewReader(text))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -44,7 +45,7 @@ func looseTable(t *testing.T, text string) *analysis.LooseTable {
 
 // reviewChecks runs the review of their tables against tab and returns the
 // review checks' results by id.
-func reviewChecks(t *testing.T, tab *analysis.Table, loadings, scores, variance string, claimed analysis.Scaling) map[string]Result {
+func reviewChecks(t *testing.T, tab *intake.Table, loadings, scores, variance string, claimed analysis.Scaling) map[string]Result {
 	t.Helper()
 	l, err := analysis.ParseLoadings(looseTable(t, loadings), tab.Variables)
 	if err != nil {
@@ -84,7 +85,7 @@ func reviewChecks(t *testing.T, tab *analysis.Table, loadings, scores, variance 
 	return out
 }
 
-func other(t *testing.T, tab *analysis.Table, centred bool, sc analysis.Scaling, k int) fixture.Other {
+func other(t *testing.T, tab *intake.Table, centred bool, sc analysis.Scaling, k int) fixture.Other {
 	t.Helper()
 	o, err := fixture.Compute(tab, centred, sc, k)
 	if err != nil {
@@ -99,7 +100,7 @@ func dimName(a int) string { return fmt.Sprintf("Dim.%d", a+1) }
 // arbitrary sign flips and renamed columns, pass every review check and the
 // right variant is named.
 func TestReviewChecksPassOnCorrectTables(t *testing.T) {
-	for _, tab := range []*analysis.Table{usarrestsTable(t), demoTable(t)} {
+	for _, tab := range []*intake.Table{usarrestsTable(t), demoTable(t)} {
 		for _, sc := range analysis.Scalings {
 			o := other(t, tab, true, sc, 3)
 			o.Flip(0)
@@ -132,7 +133,7 @@ func TestReviewChecksPassOnCorrectTables(t *testing.T) {
 // Acceptance 2: loadings and scores from uncentred data fail
 // review-centering with the plain message, on USArrests and the demo.
 func TestReviewCenteringFailsOnUncentredData(t *testing.T) {
-	for _, tab := range []*analysis.Table{usarrestsTable(t), demoTable(t)} {
+	for _, tab := range []*intake.Table{usarrestsTable(t), demoTable(t)} {
 		o := other(t, tab, false, analysis.ScaleUnit, 2)
 		rs := reviewChecks(t, tab, o.LoadingsCSV(",", dimName), o.ScoresCSV(true, fixture.Identity(len(o.IDs))), "", analysis.ScaleUnit)
 		r := rs["review-centering"]

@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -34,7 +35,7 @@ func TestRobustAgreement(t *testing.T) {
 					x.Set(i, 7, 200)
 				}
 			}
-			res, err := analysis.Analyze(analysis.TableFromMatrix("t.csv", x, nil, nil), analysis.Options{Scaling: analysis.ScaleNone, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}, NoCrossValidation: true, Bootstrap: 100, Seed: 1})
+			res, err := analysis.Analyze(intake.TableFromMatrix("t.csv", x, nil, nil), analysis.Options{Scaling: analysis.ScaleNone, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}, NoCrossValidation: true, Bootstrap: 100, Seed: 1})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -59,7 +60,7 @@ func TestRobustAgreement(t *testing.T) {
 // TestRobustAgreementSkips: without the bootstrap there is no yardstick.
 func TestRobustAgreementSkips(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(1, 5), 60, 5, []float64{3}, 1)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("t.csv", x, nil, nil), analysis.Options{Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}, NoCrossValidation: true})
+	res, err := analysis.Analyze(intake.TableFromMatrix("t.csv", x, nil, nil), analysis.Options{Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}, NoCrossValidation: true})
 	if err != nil {
 		t.Fatal(err)
 	}

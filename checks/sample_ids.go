@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"strings"
 
-	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 var sampleIDs = Check{
@@ -35,7 +35,7 @@ var sampleIDs = Check{
 		if t.MissingIDs > 0 {
 			var named []string
 			for _, id := range t.IDs {
-				if strings.HasPrefix(id, analysis.MissingIDPrefix) && len(named) < ListedSamples {
+				if strings.HasPrefix(id, intake.MissingIDPrefix) && len(named) < ListedSamples {
 					named = append(named, id)
 				}
 			}

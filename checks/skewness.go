@@ -5,7 +5,7 @@ import (
 	"math"
 	"strings"
 
-	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 var skewness = Check{
@@ -41,7 +41,7 @@ var skewness = Check{
 		}
 		r.Message = fmt.Sprintf("%s %s strongly skewed (largest |skewness| %s, in %s). A long tail lets a few samples drive the variance and the components. Skewed: %s.",
 			countNoun(len(skewed), "variable"), verb, g3(worst), names[worstVar], strings.Join(skewed, ", "))
-		if len(positive) > 0 && res.Table.Transform == analysis.TransformNone {
+		if len(positive) > 0 && res.Table.Transform == intake.TransformNone {
 			r.Message += fmt.Sprintf(" All values are positive in %s; --transform log is the usual remedy for concentrations and counts.", strings.Join(positive, ", "))
 		}
 		return r

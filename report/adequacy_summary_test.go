@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 )
 
@@ -20,7 +21,7 @@ func TestSummaryHoldsAdequacyNumbers(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	tab, err := analysis.ReadTableFrom("usarrests.csv", f, analysis.ReadOptions{})
+	tab, err := intake.ReadTableFrom("usarrests.csv", f, intake.ReadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

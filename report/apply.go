@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 )
 
@@ -48,17 +49,17 @@ type ApplySummary struct {
 }
 
 type ApplyInput struct {
-	File         string                     `json:"file"`
-	SHA256       string                     `json:"sha256"`
-	Rows         int                        `json:"rows"`
-	RowsRead     int                        `json:"rows_read"`
-	RowsDropped  int                        `json:"rows_dropped"`
-	MissingCells int                        `json:"missing_cells"`
-	ImputedCells int                        `json:"imputed_cells"`
-	IDColumn     *string                    `json:"id_column"`
-	GroupColumn  *string                    `json:"group_column"`
-	Ignored      []string                   `json:"columns_ignored"`
-	Dropped      []analysis.DroppedVariable `json:"variables_dropped"`
+	File         string                   `json:"file"`
+	SHA256       string                   `json:"sha256"`
+	Rows         int                      `json:"rows"`
+	RowsRead     int                      `json:"rows_read"`
+	RowsDropped  int                      `json:"rows_dropped"`
+	MissingCells int                      `json:"missing_cells"`
+	ImputedCells int                      `json:"imputed_cells"`
+	IDColumn     *string                  `json:"id_column"`
+	GroupColumn  *string                  `json:"group_column"`
+	Ignored      []string                 `json:"columns_ignored"`
+	Dropped      []intake.DroppedVariable `json:"variables_dropped"`
 }
 
 type ApplyModelInfo struct {
@@ -108,7 +109,7 @@ func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
 		s.Input.Ignored = []string{}
 	}
 	if s.Input.Dropped == nil {
-		s.Input.Dropped = []analysis.DroppedVariable{}
+		s.Input.Dropped = []intake.DroppedVariable{}
 	}
 	if s.Batch.MissingVariables == nil {
 		s.Batch.MissingVariables = []string{}
@@ -229,7 +230,7 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 	switch {
 	case t.MissingCells == 0:
 		d.Missing = "no missing cells"
-	case t.Missing == analysis.MissingDrop:
+	case t.Missing == intake.MissingDrop:
 		d.Missing = fmt.Sprintf("%d missing cells; the %d rows holding them were dropped", t.MissingCells, t.RowsDropped)
 	default:
 		d.Missing = fmt.Sprintf("%d missing cells replaced by the training means", t.ImputedCells)
@@ -375,7 +376,7 @@ func applyMethods(run ApplyRun, meta Meta) (string, []Reference) {
 		fmt.Fprintf(&b, " The new data lack the model variables %s, so no sample could be scored.", strings.Join(app.Missing, ", "))
 		return b.String(), c.references()
 	}
-	if m.Transform == analysis.TransformNone || m.Transform == "" {
+	if m.Transform == intake.TransformNone || m.Transform == "" {
 		b.WriteString(" Values were preprocessed with the training means and scales, never re-estimated, and projected on the training loadings.")
 	} else {
 		fmt.Fprintf(&b, " Values were transformed as in training (%s), preprocessed with the training means and scales, never re-estimated, and projected on the training loadings.", transformText(m.Transform))

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/internal/synth"
 )
@@ -19,7 +20,7 @@ import (
 func plantedApplication(t *testing.T) *analysis.Application {
 	t.Helper()
 	x, _ := synth.LowRank(synth.RNG(31, 7), 200, 6, []float64{3, 2}, 0.4)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("train", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
+	res, err := analysis.Analyze(intake.TableFromMatrix("train", x, nil, nil), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -27,7 +28,7 @@ func plantedApplication(t *testing.T) *analysis.Application {
 	newX := mat.DenseCopyOf(fresh)
 	newX.Set(0, 2, newX.At(0, 2)+6*res.Prep.SDs[2])
 	newX.Set(1, 4, newX.At(1, 4)-6*res.Prep.SDs[4])
-	return analysis.Apply(analysis.NewModel(res, "test"), analysis.TableFromMatrix("new", newX, nil, nil))
+	return analysis.Apply(analysis.NewModel(res, "test"), intake.TableFromMatrix("new", newX, nil, nil))
 }
 
 // The residual figure of a flagged sample puts the planted variable at the

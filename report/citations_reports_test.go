@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/internal/fixture"
 	"pcqc/internal/synth"
@@ -50,22 +51,22 @@ func withConstant(csv, name string) string {
 	return strings.Join(lines, "\n") + "\n"
 }
 
-func readCSV(t *testing.T, name, text string, ro analysis.ReadOptions) *analysis.Table {
+func readCSV(t *testing.T, name, text string, ro intake.ReadOptions) *intake.Table {
 	t.Helper()
-	tab, err := analysis.ReadTableFrom(name, strings.NewReader(text), ro)
+	tab, err := intake.ReadTableFrom(name, strings.NewReader(text), ro)
 	if err != nil {
 		t.Fatal(err)
 	}
 	return tab
 }
 
-func matrixTable(name string, x *mat.Dense) *analysis.Table {
-	tab := analysis.TableFromMatrix(name, x, nil, nil)
+func matrixTable(name string, x *mat.Dense) *intake.Table {
+	tab := intake.TableFromMatrix(name, x, nil, nil)
 	tab.SHA256 = strings.Repeat("ab", 32)
 	return tab
 }
 
-func analyze(t *testing.T, tab *analysis.Table, opt analysis.Options) *analysis.Result {
+func analyze(t *testing.T, tab *intake.Table, opt analysis.Options) *analysis.Result {
 	t.Helper()
 	if opt.Seed == 0 {
 		opt.Seed = 1
@@ -106,15 +107,15 @@ func auditOf(res *analysis.Result) Audit {
 // reviewOf reviews "another person's" PCA of tab, computed with the
 // given centring and scaling and k components, against tab; claimed is
 // the scaling they say they used.
-func reviewOf(t *testing.T, tab *analysis.Table, sc, claimed analysis.Scaling, k int, withScores, withVariances bool) Audit {
+func reviewOf(t *testing.T, tab *intake.Table, sc, claimed analysis.Scaling, k int, withScores, withVariances bool) Audit {
 	t.Helper()
 	o, err := fixture.Compute(tab, true, sc, k)
 	if err != nil {
 		t.Fatal(err)
 	}
 	o.Flip(1)
-	loose := func(text string) *analysis.LooseTable {
-		lt, err := analysis.ReadLooseTableFrom("their.csv", strings.NewReader(text))
+	loose := func(text string) *intake.LooseTable {
+		lt, err := intake.ReadLooseTableFrom("their.csv", strings.NewReader(text))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -169,7 +170,7 @@ func applyOf(t *testing.T, res *analysis.Result, from, to, j int, shift float64,
 			x.Set(i-from, c, val)
 		}
 	}
-	tab := analysis.TableFromMatrix("new.csv", x, names, src.IDs[from:to])
+	tab := intake.TableFromMatrix("new.csv", x, names, src.IDs[from:to])
 	tab.SHA256 = strings.Repeat("ef", 32)
 	app := analysis.Apply(m, tab)
 	return ApplyRun{App: app, Checks: checks.RunAll(checks.Input{Apply: app})}
@@ -182,7 +183,7 @@ func applyOf(t *testing.T, res *analysis.Result, from, to, j int, shift float64,
 // cite, so that a case that stops exercising its path is noticed.
 func TestEveryReportCitesItsReferenceList(t *testing.T) {
 	arrests := usarrestsCSV(t)
-	idArrests := analysis.ReadOptions{IDColumn: "state"}
+	idArrests := intake.ReadOptions{IDColumn: "state"}
 	arrestsTab := readCSV(t, "usarrests.csv", arrests, idArrests)
 	irisText, err := os.ReadFile(filepath.Join("..", "testdata", "datasets", "iris.csv"))
 	if err != nil {
@@ -196,11 +197,11 @@ func TestEveryReportCitesItsReferenceList(t *testing.T) {
 		render func(t *testing.T) string
 		want   []string // keys the report must cite
 	}
-	audit := func(name string, tab func(t *testing.T) *analysis.Table, opt analysis.Options, want ...string) reportCase {
+	audit := func(name string, tab func(t *testing.T) *intake.Table, opt analysis.Options, want ...string) reportCase {
 		return reportCase{name, func(t *testing.T) string { return renderAudit(t, auditOf(analyze(t, tab(t), opt))) }, want}
 	}
-	arrestsWith := func(text string, ro analysis.ReadOptions) func(t *testing.T) *analysis.Table {
-		return func(t *testing.T) *analysis.Table { return readCSV(t, "usarrests.csv", text, ro) }
+	arrestsWith := func(text string, ro intake.ReadOptions) func(t *testing.T) *intake.Table {
+		return func(t *testing.T) *intake.Table { return readCSV(t, "usarrests.csv", text, ro) }
 	}
 	rule := func(s string) analysis.ComponentRule {
 		r, err := analysis.ParseComponentRule(s)
@@ -224,18 +225,18 @@ func TestEveryReportCitesItsReferenceList(t *testing.T) {
 			"vandenberg2006"),
 		audit("unit, Kaiser", arrestsWith(arrests, idArrests),
 			analysis.Options{Components: rule("kaiser"), Permutations: 100}, "kaiser1960"),
-		audit("log transform, dropped variable, groups", func(t *testing.T) *analysis.Table {
-			return readCSV(t, "iris.csv", string(irisText), analysis.ReadOptions{GroupColumn: "species", Transform: analysis.TransformLog, Drop: []string{"sepal_width"}})
+		audit("log transform, dropped variable, groups", func(t *testing.T) *intake.Table {
+			return readCSV(t, "iris.csv", string(irisText), intake.ReadOptions{GroupColumn: "species", Transform: intake.TransformLog, Drop: []string{"sepal_width"}})
 		}, analysis.Options{Components: rule("2"), Permutations: 100, Bootstrap: 20}),
-		audit("missing values replaced, log10", arrestsWith(holes, analysis.ReadOptions{IDColumn: "state", Missing: analysis.MissingMean, Transform: analysis.TransformLog10}),
+		audit("missing values replaced, log10", arrestsWith(holes, intake.ReadOptions{IDColumn: "state", Missing: intake.MissingMean, Transform: intake.TransformLog10}),
 			analysis.Options{Components: rule("3"), Permutations: 100}),
-		audit("missing rows dropped, constant variable, log1p, Pareto", arrestsWith(withConstant(holes, "Constant"), analysis.ReadOptions{IDColumn: "state", Missing: analysis.MissingDrop, Transform: analysis.TransformLog1p}),
+		audit("missing rows dropped, constant variable, log1p, Pareto", arrestsWith(withConstant(holes, "Constant"), intake.ReadOptions{IDColumn: "state", Missing: intake.MissingDrop, Transform: intake.TransformLog1p}),
 			analysis.Options{Scaling: analysis.ScalePareto, Components: rule("auto"), Permutations: 100}),
-		audit("more variables than samples, bootstrap", func(t *testing.T) *analysis.Table {
+		audit("more variables than samples, bootstrap", func(t *testing.T) *intake.Table {
 			x, _ := synth.LowRank(synth.RNG(3, 1), 12, 20, []float64{3, 2}, 0.3)
 			return matrixTable("wide.csv", x)
 		}, analysis.Options{Components: rule("2"), Permutations: 100, Bootstrap: 20}, "fisher2016"),
-		audit("uncorrelated noise", func(t *testing.T) *analysis.Table {
+		audit("uncorrelated noise", func(t *testing.T) *intake.Table {
 			return matrixTable("noise.csv", synth.Gaussian(synth.RNG(4, 1), 40, 6))
 		}, analysis.Options{Components: rule("auto"), Permutations: 200}),
 		{"review with scores and variances", func(t *testing.T) string {
@@ -279,7 +280,7 @@ func TestEveryReportCitesItsReferenceList(t *testing.T) {
 // references.bib, as written beside the report, holds exactly the works
 // of the report's reference list.
 func TestReferencesBibMatchesList(t *testing.T) {
-	res := analyze(t, readCSV(t, "usarrests.csv", usarrestsCSV(t), analysis.ReadOptions{IDColumn: "state"}),
+	res := analyze(t, readCSV(t, "usarrests.csv", usarrestsCSV(t), intake.ReadOptions{IDColumn: "state"}),
 		analysis.Options{Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}, Permutations: 100})
 	dir := t.TempDir()
 	if err := WriteReport(dir, auditOf(res), testMeta, ReportOptions{Date: "2026-01-02"}, Formats{Markdown: true}); err != nil {

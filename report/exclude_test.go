@@ -4,6 +4,7 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // The methods paragraph names every excluded sample, in full, with the
@@ -21,7 +22,7 @@ func TestExclusionMethodSentence(t *testing.T) {
 	for _, c := range cases {
 		res := &analysis.Result{}
 		if c.ids != nil {
-			res.Excluded = &analysis.Exclusion{Application: &analysis.Application{Table: &analysis.Table{IDs: c.ids}}}
+			res.Excluded = &analysis.Exclusion{Application: &analysis.Application{Table: &intake.Table{IDs: c.ids}}}
 		}
 		got := exclusionMethodSentence(res)
 		if got != c.want {

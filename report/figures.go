@@ -24,6 +24,7 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // Figure is one figure of the report: PNG (300 dpi, for the PDF and
@@ -560,7 +561,7 @@ func namedBars(pl *plot.Plot, bars plot.Plotter, names []string, left int, base,
 
 // groupsOf returns the distinct groups in order of first appearance, and
 // each sample's group index.
-func groupsOf(t *analysis.Table) ([]string, []int) {
+func groupsOf(t *intake.Table) ([]string, []int) {
 	if t.Groups == nil {
 		return nil, nil
 	}
@@ -633,7 +634,7 @@ func namedNote(named, total int, beyond string) string {
 
 // groupNote states in the caption that every group is drawn with filled
 // marks, the convention hollow marks are set against in the other figures.
-func groupNote(ann *labeller, t *analysis.Table) {
+func groupNote(ann *labeller, t *intake.Table) {
 	if groups, _ := groupsOf(t); len(groups) < 2 || len(groups) > maxColouredGroups {
 		return
 	}
@@ -655,7 +656,7 @@ const sampleRadius = 2.6
 // shape, every mark filled), or all alike beyond maxColouredGroups. It
 // returns how many samples it left out because a coordinate is not a
 // finite number.
-func addGroupedPoints(p *plot.Plot, t *analysis.Table, x, y []float64) int {
+func addGroupedPoints(p *plot.Plot, t *intake.Table, x, y []float64) int {
 	groups, of := groupsOf(t)
 	if groups == nil || len(groups) > maxColouredGroups {
 		label := ""

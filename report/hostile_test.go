@@ -12,6 +12,7 @@ import (
 	"golang.org/x/net/html"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/internal/synth"
 )
@@ -111,8 +112,8 @@ var rtlMarks = strings.NewReplacer("\u202a", "", "\u202b", "", "\u202c", "", "\u
 // apply reports, and add or swallow no section.
 func TestHostileNamesStayLiteral(t *testing.T) {
 	skipRenderingWhenShort(t)
-	read := func() *analysis.Table {
-		tab, err := analysis.ReadTableFrom("hostile.csv", bytes.NewReader(hostileCSV()), analysis.ReadOptions{IDColumn: "id", GroupColumn: "grp"})
+	read := func() *intake.Table {
+		tab, err := intake.ReadTableFrom("hostile.csv", bytes.NewReader(hostileCSV()), intake.ReadOptions{IDColumn: "id", GroupColumn: "grp"})
 		if err != nil {
 			t.Fatal(err)
 		}

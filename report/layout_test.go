@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/plot/vg/vgimg"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/demo"
 )
@@ -205,7 +206,7 @@ func TestFigureLayoutsOnOpenData(t *testing.T) {
 		t.Errorf("the demo's T²–Q plot names no sample")
 	}
 
-	later, err := analysis.ReadTableFrom("later.csv", bytes.NewReader(demo.LaterBatch()), analysis.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
+	later, err := intake.ReadTableFrom("later.csv", bytes.NewReader(demo.LaterBatch()), intake.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -226,7 +227,7 @@ func TestFigureLayoutsOnOpenData(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	tab, err := analysis.ReadTableFrom("breast_cancer.csv", f, analysis.ReadOptions{GroupColumn: "diagnosis"})
+	tab, err := intake.ReadTableFrom("breast_cancer.csv", f, intake.ReadOptions{GroupColumn: "diagnosis"})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // Reference is one cited work, with its BibTeX entry for references.bib.
@@ -181,7 +182,7 @@ func dataSentence(res *analysis.Result, meta Meta) string {
 }
 
 // rowsSentence says which samples were removed for missing values.
-func rowsSentence(t *analysis.Table) string {
+func rowsSentence(t *intake.Table) string {
 	switch n := t.RowsDropped; {
 	case n == 1:
 		return "Before the analysis, one sample with missing values was removed."
@@ -194,13 +195,13 @@ func rowsSentence(t *analysis.Table) string {
 // imputationSentence says which missing values were replaced. Means are
 // taken of the transformed values (analysis.ReadTable imputes after the
 // transform), which the sentence says when there is a transform.
-func imputationSentence(t *analysis.Table) string {
+func imputationSentence(t *intake.Table) string {
 	n := t.ImputedCells
 	if n == 0 {
 		return ""
 	}
 	scale := ""
-	if t.Transform != analysis.TransformNone && t.Transform != "" {
+	if t.Transform != intake.TransformNone && t.Transform != "" {
 		scale = " on the transformed scale"
 	}
 	if n == 1 {
@@ -212,7 +213,7 @@ func imputationSentence(t *analysis.Table) string {
 // exclusionSentences list every variable left out, grouped by reason, in
 // full: a methods paragraph is pasted into a paper, where "and 5 more"
 // would leave the reader guessing.
-func exclusionSentences(dropped []analysis.DroppedVariable) []string {
+func exclusionSentences(dropped []intake.DroppedVariable) []string {
 	type group struct {
 		reason string
 		names  []string
@@ -256,11 +257,11 @@ func exclusionSentences(dropped []analysis.DroppedVariable) []string {
 func preprocessingSentence(res *analysis.Result) string {
 	var b strings.Builder
 	switch res.Table.Transform {
-	case analysis.TransformLog:
+	case intake.TransformLog:
 		b.WriteString("Every value was replaced by its natural logarithm, and every variable was then mean-centred")
-	case analysis.TransformLog10:
+	case intake.TransformLog10:
 		b.WriteString("Every value was replaced by its base-10 logarithm, and every variable was then mean-centred")
-	case analysis.TransformLog1p:
+	case intake.TransformLog1p:
 		b.WriteString("Every value x was replaced by log(1 + x), and every variable was then mean-centred")
 	default:
 		b.WriteString("Every variable was mean-centred")

@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // grammarFaults lints a methods paragraph for the faults it used to have
@@ -62,23 +63,23 @@ func TestGrammarFaultsFindsFaults(t *testing.T) {
 }
 
 func TestExclusionAndMissingSentences(t *testing.T) {
-	var many []analysis.DroppedVariable
+	var many []intake.DroppedVariable
 	var names []string
 	for i := 1; i <= 12; i++ {
-		many = append(many, analysis.DroppedVariable{Name: fmt.Sprintf("v%d", i), Reason: "left out with --drop"})
+		many = append(many, intake.DroppedVariable{Name: fmt.Sprintf("v%d", i), Reason: "left out with --drop"})
 		names = append(names, fmt.Sprintf("v%d", i))
 	}
 	cases := []struct {
 		name    string
-		dropped []analysis.DroppedVariable
+		dropped []intake.DroppedVariable
 		want    []string
 	}{
 		{"none", nil, nil},
-		{"one constant", []analysis.DroppedVariable{{Name: "Lab", Reason: "constant: every value is 7"}},
+		{"one constant", []intake.DroppedVariable{{Name: "Lab", Reason: "constant: every value is 7"}},
 			[]string{"The constant variable Lab was left out, having no variance to analyse."}},
 		{"twelve by request, never cut short", many,
 			[]string{"The variables " + strings.Join(names[:11], ", ") + " and v12 were left out at the user's request (--drop)."}},
-		{"mixed reasons, grouped in order of first appearance", []analysis.DroppedVariable{
+		{"mixed reasons, grouped in order of first appearance", []intake.DroppedVariable{
 			{Name: "a", Reason: "constant: every value is 0"},
 			{Name: "b", Reason: "left out with --drop"},
 			{Name: "c", Reason: "constant: every value is 1"},
@@ -96,15 +97,15 @@ func TestExclusionAndMissingSentences(t *testing.T) {
 	}
 
 	tables := []struct {
-		t          analysis.Table
+		t          intake.Table
 		rows, cell string
 	}{
-		{analysis.Table{}, "", ""},
-		{analysis.Table{RowsDropped: 1}, "Before the analysis, one sample with missing values was removed.", ""},
-		{analysis.Table{RowsDropped: 3}, "Before the analysis, 3 samples with missing values were removed.", ""},
-		{analysis.Table{ImputedCells: 1, Transform: analysis.TransformLog},
+		{intake.Table{}, "", ""},
+		{intake.Table{RowsDropped: 1}, "Before the analysis, one sample with missing values was removed.", ""},
+		{intake.Table{RowsDropped: 3}, "Before the analysis, 3 samples with missing values were removed.", ""},
+		{intake.Table{ImputedCells: 1, Transform: intake.TransformLog},
 			"", "The one missing value was replaced by the mean of its variable on the transformed scale, before centring."},
-		{analysis.Table{ImputedCells: 5, Transform: analysis.TransformNone},
+		{intake.Table{ImputedCells: 5, Transform: intake.TransformNone},
 			"", "The 5 missing values were replaced by the mean of their variable, before centring."},
 	}
 	for _, c := range tables {
@@ -126,9 +127,9 @@ func TestPreprocessingSentence(t *testing.T) {
 		{"log1p", "none"}:  "Every value x was replaced by log(1 + x), and every variable was then mean-centred but not scaled, so that the variables keep their units (covariance PCA).",
 	}
 	seen := 0
-	for _, tr := range []analysis.Transform{analysis.TransformNone, analysis.TransformLog, analysis.TransformLog10, analysis.TransformLog1p} {
+	for _, tr := range []intake.Transform{intake.TransformNone, intake.TransformLog, intake.TransformLog10, intake.TransformLog1p} {
 		for _, sc := range analysis.Scalings {
-			res := &analysis.Result{Table: &analysis.Table{Transform: tr}, Prep: analysis.Preprocessing{Scaling: sc}}
+			res := &analysis.Result{Table: &intake.Table{Transform: tr}, Prep: analysis.Preprocessing{Scaling: sc}}
 			got := preprocessingSentence(res)
 			if f := grammarFaults(got); f != nil {
 				t.Errorf("%s, %s: %q: %v", tr, sc, got, f)
@@ -283,11 +284,11 @@ func TestMethodsParagraph(t *testing.T) {
 	cases := []struct {
 		name string
 		csv  string
-		ro   analysis.ReadOptions
+		ro   intake.ReadOptions
 		opt  analysis.Options
 		want []string
 	}{
-		{"unit, fixed", text, analysis.ReadOptions{}, quick(analysis.ScaleUnit, fixed(2)), []string{
+		{"unit, fixed", text, intake.ReadOptions{}, quick(analysis.ScaleUnit, fixed(2)), []string{
 			data(50, 4),
 			"Every variable was mean-centred and scaled to unit variance (divided by its sample standard deviation, n − 1).",
 			"The analysis retained 2 components, the number set by the user.",
@@ -295,20 +296,20 @@ func TestMethodsParagraph(t *testing.T) {
 			"The retained components explain 86.8 % of the total variance (PC1 62.0 %, PC2 24.7 %).",
 			noBootstrap, "Random streams were seeded with 1.",
 		}},
-		{"log, unit, fixed", text, analysis.ReadOptions{Transform: analysis.TransformLog}, quick(analysis.ScaleUnit, fixed(3)), []string{
+		{"log, unit, fixed", text, intake.ReadOptions{Transform: intake.TransformLog}, quick(analysis.ScaleUnit, fixed(3)), []string{
 			data(50, 4),
 			"Every value was replaced by its natural logarithm, and every variable was then mean-centred and scaled to unit variance (divided by its sample standard deviation, n − 1).",
 			"The analysis retained 3 components, the number set by the user.",
 			"For comparison, the broken-stick rule (Frontier 1976) and the Kaiser criterion (Kaiser 1960) would have retained 1 component; a cumulative share of 80 % of the variance would have retained 2.",
 			"The retained components explain 96.0 % of the total variance (PC1 67.4 %, PC2 21.6 %, PC3 7.0 %).",
 		}},
-		{"Pareto, variance share", text, analysis.ReadOptions{}, quick(analysis.ScalePareto, analysis.ComponentRule{Kind: analysis.RuleVariance, Variance: 0.9}), []string{
+		{"Pareto, variance share", text, intake.ReadOptions{}, quick(analysis.ScalePareto, analysis.ComponentRule{Kind: analysis.RuleVariance, Variance: 0.9}), []string{
 			"Every variable was mean-centred and Pareto-scaled (divided by the square root of its standard deviation; van den Berg et al. 2006).",
 			"The analysis retained 2 components, chosen by the smallest number of components whose cumulative share of the variance reaches 90 %.",
 			"For comparison, the broken-stick rule (Frontier 1976) would have retained 1 component.",
 			"The retained components explain 95.0 % of the total variance (PC1 82.3 %, PC2 12.6 %).",
 		}},
-		{"no scaling, rows dropped, variable left out, broken stick", holes, analysis.ReadOptions{Missing: analysis.MissingDrop, Drop: []string{"UrbanPop"}},
+		{"no scaling, rows dropped, variable left out, broken stick", holes, intake.ReadOptions{Missing: intake.MissingDrop, Drop: []string{"UrbanPop"}},
 			quick(analysis.ScaleNone, analysis.ComponentRule{Kind: analysis.RuleBrokenStick}), []string{
 				holesData(48, 3),
 				"Before the analysis, 2 samples with missing values were removed.",
@@ -318,7 +319,7 @@ func TestMethodsParagraph(t *testing.T) {
 				"For comparison, a cumulative share of 80 % of the variance would also have retained 1 component.",
 				"The retained component explains 99.2 % of the total variance.",
 			}},
-		{"log10, missing values replaced", holes, analysis.ReadOptions{Missing: analysis.MissingMean, Transform: analysis.TransformLog10}, quick(analysis.ScaleUnit, fixed(2)), []string{
+		{"log10, missing values replaced", holes, intake.ReadOptions{Missing: intake.MissingMean, Transform: intake.TransformLog10}, quick(analysis.ScaleUnit, fixed(2)), []string{
 			holesData(50, 4),
 			"Every value was replaced by its base-10 logarithm, and every variable was then mean-centred and scaled to unit variance (divided by its sample standard deviation, n − 1).",
 			"The 2 missing values were replaced by the mean of their variable on the transformed scale, before centring.",
@@ -345,12 +346,12 @@ func TestMethodsParagraph(t *testing.T) {
 	rules := []string{"2", "broken-stick", "variance:0.75", "cv", "auto", "1"}
 	n := 0
 	for _, sc := range analysis.Scalings {
-		for _, tr := range []analysis.Transform{analysis.TransformNone, analysis.TransformLog} {
-			for _, missing := range []analysis.MissingPolicy{analysis.MissingFail, analysis.MissingMean, analysis.MissingDrop} {
+		for _, tr := range []intake.Transform{intake.TransformNone, intake.TransformLog} {
+			for _, missing := range []intake.MissingPolicy{intake.MissingFail, intake.MissingMean, intake.MissingDrop} {
 				for _, drop := range [][]string{nil, {"UrbanPop"}} {
-					ro := analysis.ReadOptions{Transform: tr, Drop: drop, Missing: missing}
+					ro := intake.ReadOptions{Transform: tr, Drop: drop, Missing: missing}
 					csv := text
-					if missing != analysis.MissingFail {
+					if missing != intake.MissingFail {
 						csv = holes
 					}
 					r := rules[n%len(rules)]

@@ -10,6 +10,7 @@ import (
 	"unicode/utf8"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 )
 
@@ -140,7 +141,7 @@ type DataBlock struct {
 	RowsRead, Rows, RowsDropped int
 	VariablesUsed               int
 	VariableList                string
-	Dropped                     []analysis.DroppedVariable
+	Dropped                     []intake.DroppedVariable
 	IDColumn, GroupColumn       string
 	Missing, Transform, Scaling string
 	Centring                    string
@@ -449,9 +450,9 @@ func dataBlock(res *analysis.Result) DataBlock {
 	switch {
 	case t.MissingCells == 0:
 		b.Missing = "no missing cells"
-	case t.Missing == analysis.MissingDrop:
+	case t.Missing == intake.MissingDrop:
 		b.Missing = fmt.Sprintf("%d missing cells; the %d rows holding them were dropped (--missing drop)", t.MissingCells, t.RowsDropped)
-	case t.Missing == analysis.MissingMean:
+	case t.Missing == intake.MissingMean:
 		b.Missing = fmt.Sprintf("%d missing cells replaced by the mean of their column's transformed values (--missing mean)", t.ImputedCells)
 	}
 	b.Transform = transformText(t.Transform)
@@ -460,13 +461,13 @@ func dataBlock(res *analysis.Result) DataBlock {
 	return b
 }
 
-func transformText(t analysis.Transform) string {
+func transformText(t intake.Transform) string {
 	switch t {
-	case analysis.TransformLog:
+	case intake.TransformLog:
 		return "natural logarithm of every value"
-	case analysis.TransformLog10:
+	case intake.TransformLog10:
 		return "base-10 logarithm of every value"
-	case analysis.TransformLog1p:
+	case intake.TransformLog1p:
 		return "log(1 + x) of every value"
 	}
 	return "none"

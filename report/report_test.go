@@ -16,6 +16,7 @@ import (
 	"golang.org/x/net/html"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/demo"
 	"pcqc/internal/synth"
@@ -23,7 +24,7 @@ import (
 
 func demoAudit(t *testing.T, bootstrap int) (*analysis.Result, []checks.Result) {
 	t.Helper()
-	tab, err := analysis.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), analysis.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
+	tab, err := intake.ReadTableFrom("demo-data.csv", bytes.NewReader(demo.Survey()), intake.ReadOptions{IDColumn: demo.SampleID, GroupColumn: demo.Station})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -246,7 +247,7 @@ func TestLongTablesInPDF(t *testing.T) {
 	for j := 0; j < p; j++ {
 		x.Set(5, j, 25*x.At(5, j)) // make it an outlier, so it is listed
 	}
-	tab := analysis.TableFromMatrix("wide-table.csv", x, nil, ids)
+	tab := intake.TableFromMatrix("wide-table.csv", x, nil, ids)
 	tab.SHA256 = strings.Repeat("ab", 32)
 	res, err := analysis.Analyze(tab, analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
 	if err != nil {

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/internal/synth"
 )
@@ -22,7 +23,7 @@ func TestRobustSection(t *testing.T) {
 		}
 		x.Set(i, 5, 200)
 	}
-	res, err := analysis.Analyze(analysis.TableFromMatrix("planted.csv", x, nil, nil),
+	res, err := analysis.Analyze(intake.TableFromMatrix("planted.csv", x, nil, nil),
 		analysis.Options{Scaling: analysis.ScaleNone, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 1}, NoCrossValidation: true, Bootstrap: 30, Seed: 1})
 	if err != nil {
 		t.Fatal(err)

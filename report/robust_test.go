@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/internal/synth"
 )
@@ -23,7 +24,7 @@ var allFormats = Formats{Markdown: true, PDF: true, HTML: true}
 func smallAudit(t *testing.T) (*analysis.Result, []checks.Result) {
 	t.Helper()
 	x, _ := synth.LowRank(synth.RNG(4, 90), 40, 5, []float64{3, 2, 1}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("small.csv", x, nil, nil),
+	res, err := analysis.Analyze(intake.TableFromMatrix("small.csv", x, nil, nil),
 		analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 3}, Bootstrap: 30, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
@@ -220,7 +221,7 @@ func (panicky) DataRange() (float64, float64, float64, float64) {
 // still writes its tables, summary and report.
 func TestApplyWithNonFiniteStatistics(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(5, 91), 50, 4, []float64{2, 1}, 0.5)
-	res, err := analysis.Analyze(analysis.TableFromMatrix("train.csv", mat.DenseCopyOf(x), nil, nil),
+	res, err := analysis.Analyze(intake.TableFromMatrix("train.csv", mat.DenseCopyOf(x), nil, nil),
 		analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.ComponentRule{Kind: analysis.RuleFixed, Fixed: 2}})
 	if err != nil {
 		t.Fatal(err)
@@ -228,7 +229,7 @@ func TestApplyWithNonFiniteStatistics(t *testing.T) {
 	res.Table.SHA256 = strings.Repeat("cd", 32)
 	newX := mat.DenseCopyOf(x.Slice(0, 6, 0, 4))
 	newX.Set(2, 1, 1e200)
-	tab := analysis.TableFromMatrix("new.csv", newX, nil, nil)
+	tab := intake.TableFromMatrix("new.csv", newX, nil, nil)
 	tab.SHA256 = strings.Repeat("ef", 32)
 	app := analysis.Apply(analysis.NewModel(res, "test"), tab)
 	if !math.IsInf(app.T2[2], 0) && !math.IsNaN(app.T2[2]) {

@@ -7,6 +7,7 @@ import (
 	"os"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 )
 
@@ -74,17 +75,17 @@ type ToolInfo struct {
 }
 
 type InputInfo struct {
-	File             string                     `json:"file"`
-	SHA256           string                     `json:"sha256"`
-	Rows             int                        `json:"rows"`
-	RowsRead         int                        `json:"rows_read"`
-	RowsDropped      int                        `json:"rows_dropped"`
-	MissingCells     int                        `json:"missing_cells"`
-	ImputedCells     int                        `json:"imputed_cells"`
-	Variables        []string                   `json:"variables"`
-	VariablesDropped []analysis.DroppedVariable `json:"variables_dropped"`
-	IDColumn         *string                    `json:"id_column"`
-	GroupColumn      *string                    `json:"group_column"`
+	File             string                   `json:"file"`
+	SHA256           string                   `json:"sha256"`
+	Rows             int                      `json:"rows"`
+	RowsRead         int                      `json:"rows_read"`
+	RowsDropped      int                      `json:"rows_dropped"`
+	MissingCells     int                      `json:"missing_cells"`
+	ImputedCells     int                      `json:"imputed_cells"`
+	Variables        []string                 `json:"variables"`
+	VariablesDropped []intake.DroppedVariable `json:"variables_dropped"`
+	IDColumn         *string                  `json:"id_column"`
+	GroupColumn      *string                  `json:"group_column"`
 }
 
 type ComponentsInfo struct {
@@ -403,7 +404,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 	lim := res.Samples.Limits
 	dropped := t.DroppedVariables
 	if dropped == nil {
-		dropped = []analysis.DroppedVariable{}
+		dropped = []intake.DroppedVariable{}
 	}
 	return Summary{
 		Tool: ToolInfo{Name: "pcqc", Version: meta.Version},

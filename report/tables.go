@@ -12,6 +12,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // num formats a number for the CSV tables: the shortest decimal that reads
@@ -189,7 +190,7 @@ func LoadingsRows(res *analysis.Result) [][]string {
 
 // IDHeader is the name of the id column in per-sample tables: the input's id
 // column, or "row" when ids are data-row numbers.
-func IDHeader(t *analysis.Table) string {
+func IDHeader(t *intake.Table) string {
 	if t.IDColumn != "" {
 		return t.IDColumn
 	}
@@ -197,7 +198,7 @@ func IDHeader(t *analysis.Table) string {
 }
 
 // writeScores writes scores.csv: one row per sample used, in input order.
-func writeScores(path string, t *analysis.Table, scores *mat.Dense) error {
+func writeScores(path string, t *intake.Table, scores *mat.Dense) error {
 	n, k := scores.Dims()
 	header := []string{IDHeader(t)}
 	for a := 0; a < k; a++ {

@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/report"
 )
@@ -72,7 +73,7 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 		outGiven = f.out
 	}
 	if f.out == "" {
-		f.out = analysis.StemName(data) + "-apply"
+		f.out = intake.StemName(data) + "-apply"
 	}
 	reads := []string{modelPath, filepath.Join(auditDir, "scores.csv"), data}
 	read, err := f.validate(reads...)
@@ -87,7 +88,7 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	// New batches usually come from where the training data came from, so
 	// they are read in the training file's encoding unless told otherwise.
-	if enc, ok := analysis.ParseEncoding(model.Input.Encoding); ok && !f.set["encoding"] {
+	if enc, ok := intake.ParseEncoding(model.Input.Encoding); ok && !f.set["encoding"] {
 		read.Encoding = enc
 	}
 	training, err := analysis.ReadTrainingScores(filepath.Join(auditDir, "scores.csv"), model)
@@ -158,8 +159,8 @@ func modelLocation(arg string) (auditDir, modelPath string) {
 // when it was given; options that cannot change the results (--force,
 // --quiet, --threads) are left out, as they are from the options table.
 func applyCommandLine(model, data string, opts report.Options, out string) []string {
-	defaults := map[string]string{"id": "", "group": "", "missing": string(analysis.MissingFail), "delim": "auto",
-		"decimal": "point", "encoding": string(analysis.EncodingUTF8), "fail_on": string(checks.Fail), "format": "md,pdf,html",
+	defaults := map[string]string{"id": "", "group": "", "missing": string(intake.MissingFail), "delim": "auto",
+		"decimal": "point", "encoding": string(intake.EncodingUTF8), "fail_on": string(checks.Fail), "format": "md,pdf,html",
 		"title": "", "author": "", "date": ""}
 	var flags []string
 	for _, o := range opts {
@@ -186,8 +187,8 @@ func applyCommandLine(model, data string, opts report.Options, out string) []str
 // model's transform, any number of rows, constant columns kept, and
 // training means for missing cells. It also returns the file's other
 // columns, which are ignored.
-func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*analysis.Table, []string, error) {
-	header, err := analysis.ReadHeader(path, read)
+func readForModel(path string, m *analysis.Model, read intake.ReadOptions) (*intake.Table, []string, error) {
+	header, err := intake.ReadHeader(path, read)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -204,14 +205,14 @@ func readForModel(path string, m *analysis.Model, read analysis.ReadOptions) (*a
 		}
 	}
 	if len(present) == 0 {
-		return nil, nil, &analysis.InputError{File: path, Line: 1, Reason: fmt.Sprintf("none of the model's variables (%s) is a column of the new data", listVariables(m.Variables))}
+		return nil, nil, &intake.InputError{File: path, Line: 1, Reason: fmt.Sprintf("none of the model's variables (%s) is a column of the new data", listVariables(m.Variables))}
 	}
 	read.Columns = present
 	read.Transform = m.Transform
 	read.MinRows = 1
 	read.KeepConstant = true
 	read.ImputeWith = means
-	t, err := analysis.ReadTable(path, read)
+	t, err := intake.ReadTable(path, read)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -235,7 +236,7 @@ func listVariables(v []string) string {
 	return fmt.Sprint(v)
 }
 
-func (f *auditFlags) applyOptions(read analysis.ReadOptions, t *analysis.Table) report.Options {
+func (f *auditFlags) applyOptions(read intake.ReadOptions, t *intake.Table) report.Options {
 	// The model fixes the variables, preprocessing and components; apply
 	// records the rest of run's options, in the same order.
 	fromModel := map[string]bool{"columns": true, "drop": true, "transform": true, "scale": true, "center": true,

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/report"
 )
@@ -25,8 +26,8 @@ type auditJob struct {
 	extend   func(dir string, res *analysis.Result, meta report.Meta, formats report.Formats, ropt report.ReportOptions) error
 	invented string // the demo's note that its data are invented
 	title    string // the default title, when --title is not given
-	read     analysis.ReadOptions
-	table    *analysis.Table
+	read     intake.ReadOptions
+	table    *intake.Table
 	command  []string
 	reads    []string          // the files read, which the output folder may not hold
 	extra    map[string][]byte // file name → content, written beside the tables
@@ -130,7 +131,7 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 // preprocessed matrix and one resampling workspace); without a limit the
 // garbage collector lets the heap grow to twice what is live before it
 // collects, which for large tables means gigabytes of garbage.
-func limitMemory(t *analysis.Table) {
+func limitMemory(t *intake.Table) {
 	if os.Getenv("GOMEMLIMIT") != "" {
 		return
 	}

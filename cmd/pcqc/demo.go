@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/demo"
 	"pcqc/report"
@@ -54,7 +55,7 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 		return 0, err
 	}
 	data := demo.Survey()
-	t, err := analysis.ReadTableFrom(demoDataName, bytes.NewReader(data), read)
+	t, err := intake.ReadTableFrom(demoDataName, bytes.NewReader(data), read)
 	if err != nil {
 		return 0, err
 	}
@@ -81,7 +82,7 @@ const (
 
 // demoLaterBatch applies the survey's model to the invented later batch and
 // writes the application into the later-batch folder of the demo's output.
-func demoLaterBatch(dir string, res *analysis.Result, f *auditFlags, read analysis.ReadOptions, meta report.Meta, formats report.Formats, ropt report.ReportOptions, stdout io.Writer) error {
+func demoLaterBatch(dir string, res *analysis.Result, f *auditFlags, read intake.ReadOptions, meta report.Meta, formats report.Formats, ropt report.ReportOptions, stdout io.Writer) error {
 	sub := filepath.Join(dir, laterBatchDir)
 	if err := os.Mkdir(sub, 0o755); err != nil {
 		return err
@@ -91,7 +92,7 @@ func demoLaterBatch(dir string, res *analysis.Result, f *auditFlags, read analys
 		return err
 	}
 	model := analysis.NewModel(res, Version)
-	read.Missing = analysis.MissingFail
+	read.Missing = intake.MissingFail
 	t, others, err := readForModel(path, model, read)
 	if err != nil {
 		return err

@@ -3,7 +3,7 @@ package main
 import (
 	"flag"
 
-	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/report"
 )
 
@@ -32,10 +32,10 @@ Excluding samples:
 `
 
 // entries reads both flags; an unreadable list is an input error naming it.
-func (e *excludeFlags) entries() ([]analysis.ExcludeEntry, error) {
-	out := analysis.ExcludeFlagEntries(e.ids)
+func (e *excludeFlags) entries() ([]intake.ExcludeEntry, error) {
+	out := intake.ExcludeFlagEntries(e.ids)
 	if e.file != "" {
-		more, err := analysis.ReadExcludeFile(e.file)
+		more, err := intake.ReadExcludeFile(e.file)
 		if err != nil {
 			return nil, err
 		}
@@ -54,7 +54,7 @@ func (e *excludeFlags) reads(reads []string) []string {
 
 // resolve turns the flags into rows of t, for analysis.Options.Exclude,
 // and the option summary.json records (the ids as given, in order).
-func (e *excludeFlags) resolve(t *analysis.Table) ([]int, report.Option, error) {
+func (e *excludeFlags) resolve(t *intake.Table) ([]int, report.Option, error) {
 	entries, err := e.entries()
 	if err != nil {
 		return nil, report.Option{}, err
@@ -67,6 +67,6 @@ func (e *excludeFlags) resolve(t *analysis.Table) ([]int, report.Option, error) 
 	if len(entries) == 0 {
 		return nil, opt, nil
 	}
-	rows, err := analysis.ResolveExclusions(t, entries)
+	rows, err := intake.ResolveExclusions(t, entries)
 	return rows, opt, err
 }

@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // pcqc's own flag errors. The flag package's messages ("flag provided but
@@ -33,7 +34,7 @@ var flagValues = map[string]string{
 	"delim":         "one of auto, ',', ';', tab",
 	"decimal":       "one of point, comma",
 	"encoding":      "one of utf-8, latin1, cp1252",
-	"transform":     "one of " + joinNames(analysis.Transforms),
+	"transform":     "one of " + joinNames(intake.Transforms),
 	"scale":         "one of " + joinNames(analysis.Scalings),
 	"claimed-scale": "one of " + joinNames(analysis.Scalings),
 	"components":    "N, auto, parallel, broken-stick, cv, kaiser or variance:F",

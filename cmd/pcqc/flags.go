@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/checks"
 	"pcqc/outdir"
 	"pcqc/report"
@@ -55,11 +56,11 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.group, "group", "", "")
 	fs.StringVar(&f.columns, "columns", "", "")
 	fs.StringVar(&f.drop, "drop", "", "")
-	fs.StringVar(&f.missing, "missing", string(analysis.MissingFail), "")
+	fs.StringVar(&f.missing, "missing", string(intake.MissingFail), "")
 	fs.StringVar(&f.delim, "delim", "auto", "")
 	fs.StringVar(&f.decimal, "decimal", "point", "")
-	fs.StringVar(&f.encoding, "encoding", string(analysis.EncodingUTF8), "")
-	fs.StringVar(&f.transform, "transform", string(analysis.TransformNone), "")
+	fs.StringVar(&f.encoding, "encoding", string(intake.EncodingUTF8), "")
+	fs.StringVar(&f.transform, "transform", string(intake.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
 	fs.IntVar(&f.permutations, "permutations", analysis.DefaultPermutations, "")
@@ -164,8 +165,8 @@ func oneOf[T ~string](flagName, value string, allowed []T) (T, error) {
 	return "", usagef("invalid --%s %q: use one of %s", flagName, value, strings.Join(names, ", "))
 }
 
-func (f *auditFlags) readOptions() (analysis.ReadOptions, error) {
-	var opt analysis.ReadOptions
+func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
+	var opt intake.ReadOptions
 	var err error
 	switch f.delim {
 	case "auto", "":
@@ -186,17 +187,17 @@ func (f *auditFlags) readOptions() (analysis.ReadOptions, error) {
 	default:
 		return opt, usagef("invalid --decimal %q: use point or comma", f.decimal)
 	}
-	enc, ok := analysis.ParseEncoding(f.encoding)
+	enc, ok := intake.ParseEncoding(f.encoding)
 	if !ok {
 		return opt, usagef("invalid --encoding %q: use utf-8, latin1 or cp1252", f.encoding)
 	}
 	opt.Encoding = enc
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
-	if opt.Missing, err = oneOf("missing", f.missing, []analysis.MissingPolicy{analysis.MissingFail, analysis.MissingDrop, analysis.MissingMean}); err != nil {
+	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean}); err != nil {
 		return opt, err
 	}
-	if opt.Transform, err = oneOf("transform", f.transform, analysis.Transforms); err != nil {
+	if opt.Transform, err = oneOf("transform", f.transform, intake.Transforms); err != nil {
 		return opt, err
 	}
 	return opt, nil
@@ -271,7 +272,7 @@ func (f *auditFlags) failLevel() (checks.Status, error) {
 // --out and --force (where the folder goes), --threads (results do not
 // depend on it) and --quiet. read is the input options actually used
 // (the demo sets its own id and group columns).
-func (f *auditFlags) effective(read analysis.ReadOptions, t *analysis.Table) report.Options {
+func (f *auditFlags) effective(read intake.ReadOptions, t *intake.Table) report.Options {
 	list := func(s []string) []string {
 		if s == nil {
 			return []string{}
@@ -401,7 +402,7 @@ func parseCommand(name string, fs *flag.FlagSet, f *auditFlags, args []string, n
 // validate checks every flag value, and that the output folder may be
 // written, before any work is done; it returns the input options. reads
 // are the files the command reads, which the output folder may not hold.
-func (f *auditFlags) validate(reads ...string) (analysis.ReadOptions, error) {
+func (f *auditFlags) validate(reads ...string) (intake.ReadOptions, error) {
 	read, err := f.readOptions()
 	if err != nil {
 		return read, err

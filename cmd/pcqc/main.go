@@ -13,12 +13,12 @@ import (
 	"io"
 	"io/fs"
 	"os"
+	"pcqc/analysis/intake"
 	"pcqc/internal/safetext"
 	"runtime/pprof"
 	"strings"
 	"syscall"
 
-	"pcqc/analysis"
 	"pcqc/outdir"
 )
 
@@ -192,7 +192,7 @@ func topLevel(args []string) (*command, []string, error) {
 
 func statusFor(err error) int {
 	var ue *usageError
-	var ie *analysis.InputError
+	var ie *intake.InputError
 	var oe *outputError
 	var internal *internalError
 	var refused *outdir.RefusedError

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 var reviewCommand = &command{
@@ -123,7 +124,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	data := pos[0]
 	if f.out == "" {
-		f.out = analysis.StemName(data) + "-review"
+		f.out = intake.StemName(data) + "-review"
 	}
 	if !f.set["components"] {
 		// Review keeps their number of components unless told otherwise;
@@ -138,11 +139,11 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
-	t, err := analysis.ReadTable(data, read)
+	t, err := intake.ReadTable(data, read)
 	if err != nil {
 		return 0, err
 	}
-	lt, err := analysis.ReadLooseTable(loadingsPath, read.Encoding)
+	lt, err := intake.ReadLooseTable(loadingsPath, read.Encoding)
 	if err != nil {
 		return 0, err
 	}
@@ -154,7 +155,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	_, k := loadings.V.Dims()
 	var scores *analysis.TheirScores
 	if scoresPath != "" {
-		st, err := analysis.ReadLooseTable(scoresPath, read.Encoding)
+		st, err := intake.ReadLooseTable(scoresPath, read.Encoding)
 		if err != nil {
 			return 0, err
 		}
@@ -164,7 +165,7 @@ func runReview(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	var variance *analysis.TheirVariance
 	if variancePath != "" {
-		vt, err := analysis.ReadLooseTable(variancePath, read.Encoding)
+		vt, err := intake.ReadLooseTable(variancePath, read.Encoding)
 		if err != nil {
 			return 0, err
 		}

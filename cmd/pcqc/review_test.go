@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 	"pcqc/internal/fixture"
 )
 
@@ -25,7 +26,7 @@ var usarrestsPath = filepath.Join("..", "..", "testdata", "datasets", "usarrests
 
 func usarrestsOther(t *testing.T, centred bool, sc analysis.Scaling, k int) fixture.Other {
 	t.Helper()
-	tab, err := analysis.ReadTable(usarrestsPath, analysis.ReadOptions{})
+	tab, err := intake.ReadTable(usarrestsPath, intake.ReadOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -7,7 +7,7 @@ import (
 	"io"
 	"os"
 
-	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 var runCommand = &command{
@@ -44,16 +44,16 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	data := pos[0]
 	if f.out == "" {
-		f.out = analysis.StemName(data) + "-pcqc"
+		f.out = intake.StemName(data) + "-pcqc"
 	}
 	read, err := f.validate(f.exclude.reads([]string{data})...)
 	if err != nil {
 		return 0, err
 	}
 	if _, err := os.Stat(data); err != nil {
-		return 0, &analysis.InputError{File: data, Reason: "cannot open: " + pathReason(err)}
+		return 0, &intake.InputError{File: data, Reason: "cannot open: " + pathReason(err)}
 	}
-	t, err := analysis.ReadTable(data, read)
+	t, err := intake.ReadTable(data, read)
 	if err != nil {
 		return 0, err
 	}

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"pcqc/analysis"
+	"pcqc/analysis/intake"
 )
 
 // Tail is the distribution family of a clean table.
@@ -251,7 +252,7 @@ type Case struct {
 	Cell    Cell
 	Defect  Defect
 	Seed    uint64
-	Table   *analysis.Table
+	Table   *intake.Table
 	Scaling analysis.Scaling
 	// Planted are the sample ids or variable names the defect's check
 	// must name (none for defects without such a culprit).
@@ -389,6 +390,6 @@ func NewCase(seed uint64, index int, cell Cell, defect Defect) (Case, error) {
 		x = wide
 		c.Planted = []string{ids[lone]}
 	}
-	c.Table = analysis.TableFromMatrix(fmt.Sprintf("calib-%s-%d", defect, index), x, nil, ids)
+	c.Table = intake.TableFromMatrix(fmt.Sprintf("calib-%s-%d", defect, index), x, nil, ids)
 	return c, nil
 }

@@ -1,4 +1,4 @@
-package analysis
+package intake
 
 import (
 	"bytes"
@@ -392,7 +392,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	lookup := func(flag, col string) (int, error) {
 		j, ok := seen[norm.NFC.String(col)]
 		if !ok {
-			return -1, fail(headerLine, 0, "", col, fmt.Sprintf("unknown column in %s (the columns are %s):", flag, listNames(names, 12)))
+			return -1, fail(headerLine, 0, "", col, fmt.Sprintf("unknown column in %s (the columns are %s):", flag, ListNames(names, 12)))
 		}
 		return j, nil
 	}
@@ -517,7 +517,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	if len(textCols) > 0 {
 		reason := "column is not numeric; leave it out"
 		if len(textCols) > 1 {
-			reason = fmt.Sprintf("columns %s are not numeric; leave them out", listNames(textCols, 12))
+			reason = fmt.Sprintf("columns %s are not numeric; leave them out", ListNames(textCols, 12))
 		}
 		dropHint := strings.Join(textCols, ",")
 		if len(textCols) > 12 {
@@ -833,8 +833,8 @@ func namedReadError(name string, rr *recordReader, err error, names []string) er
 	return e
 }
 
-// listNames joins names for a message, naming at most max of them.
-func listNames(names []string, max int) string {
+// ListNames joins names for a message, naming at most max of them.
+func ListNames(names []string, max int) string {
 	if len(names) <= max {
 		return strings.Join(names, ", ")
 	}

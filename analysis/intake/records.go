@@ -1,4 +1,4 @@
-package analysis
+package intake
 
 import (
 	"bufio"
@@ -417,4 +417,11 @@ func detectDelimiter(header []byte) byte {
 		return 0
 	}
 	return candidates[best]
+}
+
+// SplitHeader splits the first line of a delimited text, honouring quotes as
+// the table reader does; it serves files whose header pcqc checks before
+// reading them as a table (a saved audit's scores.csv).
+func SplitHeader(line []byte, delim byte) ([][]byte, error) {
+	return newRecordReader(bufio.NewReader(bytes.NewReader(line)), delim).read()
 }

@@ -1,4 +1,4 @@
-package analysis
+package intake
 
 import (
 	"fmt"
@@ -40,17 +40,17 @@ func (e *InputError) Error() string {
 	b.WriteString(": ")
 	b.WriteString(escapeControls(e.Reason))
 	if e.Text != "" {
-		fmt.Fprintf(&b, " %s", quoteText(e.Text))
+		fmt.Fprintf(&b, " %s", QuoteText(e.Text))
 	}
 	return b.String()
 }
 
-// quoteText quotes offending text for a one-line message, shortening very
+// QuoteText quotes offending text for a one-line message, shortening very
 // long cells so that the message stays on one readable line. strconv.Quote
 // escapes every character that is not printable (controls, bidirectional
 // formatting characters) and every byte that is not UTF-8, as \xNN, so the
 // user sees the bytes the file really holds.
-func quoteText(s string) string {
+func QuoteText(s string) string {
 	const max = 60
 	n := utf8.RuneCountInString(s)
 	if n <= max {

@@ -1,6 +1,6 @@
 //go:build unix
 
-package analysis
+package intake
 
 import (
 	"errors"

@@ -5,63 +5,13 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+
+	"pcqc/analysis/intake"
 )
 
-// Printed decimals count the digits after the point of the mantissa,
-// shifted by the exponent: the unit of the last printed digit of 1.234e-05
-// is 1e-8.
-func TestPrintedDecimals(t *testing.T) {
-	cases := []struct {
-		cell string
-		want int
-	}{
-		{"0.536", 3},
-		{"-0.5", 1},
-		{"12", 0},
-		{"0", 0},
-		{"1.234e-05", 8},
-		{"1.234E-05", 8},
-		{"-5.359e-01", 4},
-		{"5e-324", 324},
-		{"1.5e+03", 0},
-		{"1.2345e2", 2},
-		{"1e-99999999999999999999", maxDecimals},
-		{"1e99999999999999999999", 0},
-		{"0,25", 2},
-		{"2,5e-3", 4},
-		{"0x1.8p1", 0},
-		{" +0.125 ", 3},
-	}
-	for _, c := range cases {
-		if got := printedDecimals(c.cell); got != c.want {
-			t.Errorf("printedDecimals(%q) = %d, want %d", c.cell, got, c.want)
-		}
-	}
-	if got := decimals([]string{"0.5", "1.234e-05", "2"}); got != 8 {
-		t.Errorf("decimals: %d, want the most, 8", got)
-	}
-}
-
-// Ignored items give one note, naming at most three.
-func TestIgnoredNote(t *testing.T) {
-	cases := []struct {
-		items []string
-		want  string
-	}{
-		{[]string{`"a" (line 2)`}, `row "a" (line 2) names no data variable and was ignored`},
-		{[]string{`"a"`, `"b"`}, `2 rows name no data variable and were ignored: "a", "b"`},
-		{[]string{`"a"`, `"b"`, `"c"`, `"d"`, `"e"`}, `5 rows name no data variable and were ignored, e.g. "a", "b", "c"`},
-	}
-	for _, c := range cases {
-		if got := ignoredNote(c.items, "row", "rows", "names no data variable", "name no data variable"); got != c.want {
-			t.Errorf("%v: %q, want %q", c.items, got, c.want)
-		}
-	}
-}
-
-func looseText(t *testing.T, name, text string) *LooseTable {
+func looseText(t *testing.T, name, text string) *intake.LooseTable {
 	t.Helper()
-	lt, err := ReadLooseTableFrom(name, strings.NewReader(text))
+	lt, err := intake.ReadLooseTableFrom(name, strings.NewReader(text))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -75,10 +25,10 @@ func looseText(t *testing.T, name, text string) *LooseTable {
 func TestReviewTablesRefuseOverflowingCells(t *testing.T) {
 	vars := []string{"a", "b", "c", "d"}
 	ids := []string{"s1", "s2", "s3"}
-	type parse func(*LooseTable) error
-	loadings := func(lt *LooseTable) error { _, err := ParseLoadings(lt, vars); return err }
-	scores := func(lt *LooseTable) error { _, err := ParseScores(lt, ids, 2); return err }
-	variance := func(lt *LooseTable) error { _, err := ParseVariance(lt); return err }
+	type parse func(*intake.LooseTable) error
+	loadings := func(lt *intake.LooseTable) error { _, err := ParseLoadings(lt, vars); return err }
+	scores := func(lt *intake.LooseTable) error { _, err := ParseScores(lt, ids, 2); return err }
+	variance := func(lt *intake.LooseTable) error { _, err := ParseVariance(lt); return err }
 	cases := []struct {
 		name, text string
 		parse      parse
@@ -106,7 +56,7 @@ func TestReviewTablesRefuseOverflowingCells(t *testing.T) {
 			}
 			continue
 		}
-		var ie *InputError
+		var ie *intake.InputError
 		if !errors.As(err, &ie) || ie.File != "their.csv" || ie.Line != c.line || ie.Column != c.col || ie.Name != c.column || ie.Text != c.cell {
 			t.Errorf("%s: got %v, want their.csv:%d:%d (%s) %q", c.name, err, c.line, c.col, c.column, c.cell)
 		}

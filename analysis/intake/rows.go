@@ -1,4 +1,4 @@
-package analysis
+package intake
 
 import (
 	"bufio"
@@ -9,6 +9,8 @@ import (
 	"runtime"
 	"strings"
 	"sync"
+
+	"pcqc/internal/workgroup"
 )
 
 // rowParser turns the fields of one record into a row of the table.
@@ -231,12 +233,12 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 	}
 	close(next)
 	workers := min(runtime.NumCPU(), len(chunks))
-	var failed workerPanic // a bug; raised again below, in the caller
+	var failed workgroup.Panic // a bug; raised again below, in the caller
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			defer failed.catch(func() {})
+			defer failed.Catch(func() {})
 			local := &rowSink{p: s.p, values: s.values, ids: s.ids, groups: s.groups, lines: s.lines, rowMissing: s.rowMissing, colMissing: make([]int, s.p)}
 			var buf []byte
 			for i := range next {
@@ -277,7 +279,7 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 		}()
 	}
 	wg.Wait()
-	failed.raise()
+	failed.Raise()
 	for _, err := range errs {
 		if err != nil {
 			return err // chunks are in file order: the first error is the first in the file

@@ -1,4 +1,4 @@
-package analysis
+package intake
 
 import (
 	"fmt"
@@ -86,7 +86,7 @@ func ReadLooseTableFrom(name string, r io.Reader, enc ...Encoding) (*LooseTable,
 
 // Number reads a cell of a loose table; with semicolons as delimiter a
 // decimal comma is accepted too. Only finite numbers are numbers; see
-// numberLike for what counts when telling number columns from text.
+// NumberLike for what counts when telling number columns from text.
 func (t *LooseTable) Number(cell string) (float64, bool) {
 	v, kind := t.parse(cell)
 	return v, kind == cellNumber
@@ -100,20 +100,20 @@ func (t *LooseTable) parse(cell string) (float64, cellKind) {
 	return v, kind
 }
 
-// numberLike reports whether a cell is written as a number, finite or not:
+// NumberLike reports whether a cell is written as a number, finite or not:
 // a column of numbers with one "Inf" or "1e999" among them is a column of
 // numbers with a bad cell, to be refused where it is used rather than
 // ignored as text.
-func (t *LooseTable) numberLike(cell string) bool {
+func (t *LooseTable) NumberLike(cell string) bool {
 	_, kind := t.parse(cell)
 	return kind == cellNumber || kind == cellInfinite
 }
 
 // NumericColumn reports whether every cell of column j is written as a
-// number (see numberLike).
+// number (see NumberLike).
 func (t *LooseTable) NumericColumn(j int) bool {
 	for _, r := range t.Rows {
-		if !t.numberLike(r[j]) {
+		if !t.NumberLike(r[j]) {
 			return false
 		}
 	}
@@ -126,11 +126,11 @@ func (t *LooseTable) NumericColumn(j int) bool {
 // squares leave double precision.
 const MaxMagnitude = 1e100
 
-// value reads the cell of row i, column j for the computation: a number no
+// Value reads the cell of row i, column j for the computation: a number no
 // larger than MaxMagnitude in magnitude. Anything else is an InputError
 // with the file, line, column, name and cell, saying what the table should
 // hold there (what, e.g. "loading").
-func (t *LooseTable) value(i, j int, what string) (float64, error) {
+func (t *LooseTable) Value(i, j int, what string) (float64, error) {
 	cell := t.Rows[i][j]
 	v, kind := t.parse(cell)
 	fail := func(reason string) error {
@@ -148,24 +148,24 @@ func (t *LooseTable) value(i, j int, what string) (float64, error) {
 }
 
 // decimals returns the most digits printed after the decimal point among
-// the cells (see printedDecimals).
-func decimals(cells []string) int {
+// the cells (see PrintedDecimals).
+func Decimals(cells []string) int {
 	best := 0
 	for _, c := range cells {
-		best = max(best, printedDecimals(c))
+		best = max(best, PrintedDecimals(c))
 	}
 	return best
 }
 
-// maxDecimals bounds printedDecimals: half a unit of the 400th decimal is
+// MaxDecimals bounds PrintedDecimals: half a unit of the 400th decimal is
 // zero in double precision already.
-const maxDecimals = 400
+const MaxDecimals = 400
 
-// printedDecimals returns the decimal places a number is printed to: the
+// PrintedDecimals returns the decimal places a number is printed to: the
 // digits after the decimal point (or comma) of its mantissa, shifted by its
 // exponent, so that "1.234e-05" has 8 (a unit of 1e-8) and "1.5e+03" none.
 // Hexadecimal numbers give 0 (their precision is not decimal).
-func printedDecimals(cell string) int {
+func PrintedDecimals(cell string) int {
 	c := strings.TrimLeft(strings.ToLower(strings.TrimSpace(cell)), "+-")
 	if strings.HasPrefix(c, "0x") {
 		return 0
@@ -178,24 +178,24 @@ func printedDecimals(cell string) int {
 		case err == nil:
 			exp = e
 		case strings.HasPrefix(c[i+1:], "-"):
-			exp = -maxDecimals // an exponent beyond int: far below any unit
+			exp = -MaxDecimals // an exponent beyond int: far below any unit
 		default:
-			exp = maxDecimals
+			exp = MaxDecimals
 		}
 	}
 	d := 0
 	if i := strings.IndexAny(mantissa, ".,"); i >= 0 {
 		d = len(mantissa) - i - 1
 	}
-	return min(max(d-max(exp, -maxDecimals), 0), maxDecimals)
+	return min(max(d-max(exp, -MaxDecimals), 0), MaxDecimals)
 }
 
-// ignoredNote says in one note what was ignored, naming at most three of the
+// IgnoredNote says in one note what was ignored, naming at most three of the
 // items, so that a table of 200,000 rows that match nothing gives one line
 // rather than 200,000. one and many are the noun ("row", "rows") and why the
 // sentence for one and for many ("names no data variable", "name no data
 // variable").
-func ignoredNote(items []string, one, many, whyOne, whyMany string) string {
+func IgnoredNote(items []string, one, many, whyOne, whyMany string) string {
 	const shown = 3
 	if len(items) == 1 {
 		return fmt.Sprintf("%s %s %s and was ignored", one, items[0], whyOne)
@@ -207,9 +207,9 @@ func ignoredNote(items []string, one, many, whyOne, whyMany string) string {
 	return fmt.Sprintf("%d %s %s and were ignored: %s", len(items), many, whyMany, list)
 }
 
-// nameKey folds a name for loose matching: lower case, letters and digits
+// NameKey folds a name for loose matching: lower case, letters and digits
 // only, so "Urban Pop", "urban.pop" and "UrbanPop" meet.
-func nameKey(s string) string {
+func NameKey(s string) string {
 	var b strings.Builder
 	for _, r := range strings.ToLower(s) {
 		if unicode.IsLetter(r) || unicode.IsDigit(r) {
@@ -219,18 +219,19 @@ func nameKey(s string) string {
 	return b.String()
 }
 
-// nameMatcher finds data variables (or sample ids) by exact name first,
+// NameMatcher finds data variables (or sample ids) by exact name first,
 // then by folded name when that is unambiguous.
-type nameMatcher struct {
+type NameMatcher struct {
 	exact  map[string]int
 	folded map[string]int // -1 when two names fold alike
 }
 
-func newNameMatcher(names []string) nameMatcher {
-	m := nameMatcher{exact: map[string]int{}, folded: map[string]int{}}
+// NewNameMatcher indexes names for Find and Exact.
+func NewNameMatcher(names []string) NameMatcher {
+	m := NameMatcher{exact: map[string]int{}, folded: map[string]int{}}
 	for i, n := range names {
 		m.exact[n] = i
-		k := nameKey(n)
+		k := NameKey(n)
 		if _, dup := m.folded[k]; dup {
 			m.folded[k] = -1
 		} else {
@@ -240,14 +241,21 @@ func newNameMatcher(names []string) nameMatcher {
 	return m
 }
 
-func (m nameMatcher) find(s string) (int, bool) {
+// Find looks a name up exactly, then folded; ok is false when absent or ambiguous.
+func (m NameMatcher) Find(s string) (int, bool) {
 	if i, ok := m.exact[strings.TrimSpace(s)]; ok {
 		return i, true
 	}
-	if i, ok := m.folded[nameKey(s)]; ok && i >= 0 && nameKey(s) != "" {
+	if i, ok := m.folded[NameKey(s)]; ok && i >= 0 && NameKey(s) != "" {
 		return i, true
 	}
 	return -1, false
 }
 
 func itoa(i int) string { return strconv.Itoa(i) }
+
+// Exact finds a name as written, without trimming or folding.
+func (m NameMatcher) Exact(s string) (int, bool) {
+	i, ok := m.exact[s]
+	return i, ok
+}

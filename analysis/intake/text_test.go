@@ -1,4 +1,4 @@
-package analysis
+package intake
 
 import (
 	"crypto/sha256"

@@ -1,0 +1,53 @@
+package intake
+
+import "gonum.org/v1/gonum/mat"
+
+// Subset returns the table restricted to the given variables (indices into
+// Variables, ascending); rows and provenance are shared.
+func (t *Table) Subset(vars []int) *Table {
+	n := t.Rows()
+	x := mat.NewDense(n, len(vars), nil)
+	names := make([]string, len(vars))
+	for c, j := range vars {
+		names[c] = t.Variables[j]
+		for i := 0; i < n; i++ {
+			x.Set(i, c, t.X.At(i, j))
+		}
+	}
+	out := *t
+	out.X, out.Variables = x, names
+	keep := map[int]bool{}
+	for _, j := range vars {
+		keep[j] = true
+	}
+	out.DroppedVariables = append([]DroppedVariable(nil), t.DroppedVariables...)
+	for j, name := range t.Variables {
+		if !keep[j] {
+			out.DroppedVariables = append(out.DroppedVariables, DroppedVariable{Name: name, Reason: "not in the reviewed loadings"})
+		}
+	}
+	return &out
+}
+
+// SelectRows copies the given rows of t into a new table.
+func (t *Table) SelectRows(rows []int) *Table {
+	_, p := t.X.Dims()
+	x := mat.NewDense(max(len(rows), 1), p, nil)
+	out := *t
+	out.IDs, out.Lines, out.Groups = nil, nil, nil
+	for r, i := range rows {
+		copy(x.RawRowView(r), t.X.RawRowView(i))
+		out.IDs = append(out.IDs, t.IDs[i])
+		if i < len(t.Lines) {
+			out.Lines = append(out.Lines, t.Lines[i])
+		}
+		if t.Groups != nil {
+			out.Groups = append(out.Groups, t.Groups[i])
+		}
+	}
+	if len(rows) == 0 {
+		x = &mat.Dense{}
+	}
+	out.X = x
+	return &out
+}
