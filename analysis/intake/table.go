@@ -28,6 +28,10 @@ const (
 	// transformed values, so that after centring it sits exactly at zero and
 	// pulls no component towards itself.
 	MissingMean MissingPolicy = "mean"
+	// MissingIterative starts each missing cell at its column's mean, as
+	// MissingMean does, and records where the cells were (Table.MissingAt)
+	// so that package analysis can impute them by iterative PCA.
+	MissingIterative MissingPolicy = "iterative"
 )
 
 // ReadOptions selects and validates the part of a table that is analysed.
@@ -72,6 +76,20 @@ type DroppedVariable struct {
 	Reason string `json:"reason"`
 }
 
+// CellRef is one cell of a Table: Row indexes X's rows (and IDs, Lines),
+// Var indexes Variables (and Columns).
+type CellRef struct {
+	Row int `json:"row"`
+	Var int `json:"var"`
+}
+
+// DroppedRow is a data row left out because it had a missing cell.
+type DroppedRow struct {
+	ID      string   `json:"id"`
+	Line    int      `json:"line"`
+	Missing []string `json:"missing"` // the variables whose cells were missing
+}
+
 // Table is a validated data table: n samples (rows) by p variables, with the
 // transform already applied, plus everything needed to say where each number
 // came from.
@@ -98,7 +116,14 @@ type Table struct {
 	RowsDropped  int // removed for missing values
 	MissingCells int // missing cells among the candidate variables
 	MissingIDs   int // samples with an empty id cell, named "line N" instead
-	ImputedCells int // missing cells replaced by column means
+	ImputedCells int // missing cells replaced (by column means, or imputed later)
+
+	// MissingAt lists the missing cells that were filled in, under
+	// MissingMean and MissingIterative, by row of X and index into
+	// Variables, in row-major order. DroppedRows lists the rows removed
+	// under MissingDrop.
+	MissingAt   []CellRef
+	DroppedRows []DroppedRow
 
 	DroppedVariables []DroppedVariable
 	Transform        Transform

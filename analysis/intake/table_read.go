@@ -414,7 +414,7 @@ func (r *tableReader) handleMissing(t *Table) error {
 	switch r.opt.Missing {
 	case MissingDrop:
 		r.dropMissingRows(t)
-	case MissingMean:
+	case MissingMean, MissingIterative:
 		return r.imputeMeans(t)
 	}
 	return nil
@@ -426,6 +426,13 @@ func (r *tableReader) dropMissingRows(t *Table) {
 	keep := 0
 	for i := 0; i < t.RowsRead; i++ {
 		if i < len(s.rowMissing) && s.rowMissing[i] {
+			row := DroppedRow{ID: s.ids[i], Line: s.lines[i]}
+			for k := 0; k < p; k++ {
+				if math.IsNaN(s.values[i*p+k]) {
+					row.Missing = append(row.Missing, r.names[r.varCols[k]])
+				}
+			}
+			t.DroppedRows = append(t.DroppedRows, row)
 			continue
 		}
 		copy(s.values[keep*p:(keep+1)*p], s.values[i*p:(i+1)*p])
@@ -472,9 +479,16 @@ func (r *tableReader) imputeMeans(t *Table) error {
 			if math.IsNaN(s.values[i*p+k]) {
 				s.values[i*p+k] = mean
 				t.ImputedCells++
+				t.MissingAt = append(t.MissingAt, CellRef{Row: i, Var: k})
 			}
 		}
 	}
+	slices.SortFunc(t.MissingAt, func(a, b CellRef) int {
+		if a.Row != b.Row {
+			return a.Row - b.Row
+		}
+		return a.Var - b.Var
+	})
 	return nil
 }
 
@@ -535,6 +549,7 @@ func (r *tableReader) keepVariables(t *Table) error {
 		}
 		values = values[:n*q]
 	}
+	t.MissingAt = remapVars(t.MissingAt, keepCols, p)
 	t.Variables = make([]string, len(keepCols))
 	t.Columns = make([]int, len(keepCols))
 	for c, k := range keepCols {
@@ -544,4 +559,27 @@ func (r *tableReader) keepVariables(t *Table) error {
 	t.X = mat.NewDense(n, len(keepCols), slices.Clip(values))
 	t.IDs, t.Groups, t.Lines = s.ids, s.groups, s.lines
 	return nil
+}
+
+// remapVars renumbers the variables of cells after the columns not in keep
+// (ascending indices into p candidates) were dropped, leaving out the cells
+// of dropped columns.
+func remapVars(cells []CellRef, keep []int, p int) []CellRef {
+	if len(keep) == p {
+		return cells
+	}
+	to := make([]int, p)
+	for k := range to {
+		to[k] = -1
+	}
+	for c, k := range keep {
+		to[k] = c
+	}
+	out := cells[:0]
+	for _, c := range cells {
+		if v := to[c.Var]; v >= 0 {
+			out = append(out, CellRef{Row: c.Row, Var: v})
+		}
+	}
+	return out
 }

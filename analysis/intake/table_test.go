@@ -120,6 +120,30 @@ func TestMissingPolicies(t *testing.T) {
 	if tab.Rows() != 6 || tab.ImputedCells != 3 || tab.X.At(1, 0) != 3.6 || tab.X.At(2, 1) != 3.25 {
 		t.Errorf("mean: %v imputed %d", tab.X.RawMatrix().Data, tab.ImputedCells)
 	}
+	wantAt := []CellRef{{Row: 1, Var: 0}, {Row: 2, Var: 1}, {Row: 4, Var: 1}}
+	for _, policy := range []MissingPolicy{MissingMean, MissingIterative} {
+		tab = read(t, text, ReadOptions{Missing: policy})
+		if !slices.Equal(tab.MissingAt, wantAt) {
+			t.Errorf("%s: missing at %v, want %v", policy, tab.MissingAt, wantAt)
+		}
+	}
+	tab = read(t, text, ReadOptions{Missing: MissingDrop})
+	want := []DroppedRow{{ID: "x", Line: 3, Missing: []string{"a"}}, {ID: "y", Line: 4, Missing: []string{"b"}}, {ID: "v", Line: 6, Missing: []string{"b"}}}
+	if len(tab.DroppedRows) != len(want) {
+		t.Fatalf("dropped rows %v, want %v", tab.DroppedRows, want)
+	}
+	for i, w := range want {
+		g := tab.DroppedRows[i]
+		if g.ID != w.ID || g.Line != w.Line || !slices.Equal(g.Missing, w.Missing) {
+			t.Errorf("dropped row %d: %+v, want %+v", i, g, w)
+		}
+	}
+	// A constant column dropped after imputation takes its cells with it,
+	// and the later variables' cells are renumbered.
+	tab = read(t, "id,c,a,b\nw,5,1,2\nx,5,,4\ny,,3,NA\nz,5,5,6\n", ReadOptions{Missing: MissingMean})
+	if want := []CellRef{{Row: 1, Var: 0}, {Row: 2, Var: 1}}; !slices.Equal(tab.MissingAt, want) {
+		t.Errorf("after a constant column: missing at %v, want %v", tab.MissingAt, want)
+	}
 }
 
 func TestConstantColumnDropped(t *testing.T) {
