@@ -110,7 +110,7 @@ func FitRobust(z *mat.Dense, d *Decomposition, k int, seed uint64, threads int) 
 	if k < 1 || k > m || n < 3 {
 		return RobustFit{Reason: fmt.Sprintf("a robust fit of %d components needs at least 3 samples and at most %d components", k, m)}
 	}
-	t := d.Scores(z, m) // n × m, the coordinates of Z in its own row space
+	t, vm := robustSpace(z, d)
 	h := int(math.Ceil(RobustAlpha * float64(n)))
 	dirs := min(RobustDirections, n*(n-1)/2)
 	var fit robustCoords
@@ -134,21 +134,41 @@ func FitRobust(z *mat.Dense, d *Decomposition, k int, seed uint64, threads int) 
 		fit = sphericalPCA(t, k)
 		out = RobustFit{Method: RobustSpherical, Reason: reason}
 	}
-	return finishRobust(z, d, k, fit, out)
+	return finishRobust(t, vm, k, fit, out)
+}
+
+// robustSpace returns the coordinates T the robust fit works in, and the
+// map V_m back to the preprocessed variables. When the table has fewer
+// columns than rows and full column rank (m = p), V_m is square and
+// orthogonal, and both methods are equivariant under it (ROBPCA's
+// directions through pairs of samples, the MCD and spherical PCA all rotate
+// with the data), so Z itself serves as T and V_m as the identity (nil):
+// that saves an n × p copy, which matters on tall tables. Otherwise T = Z V_m,
+// the coordinates of Z in its own row space.
+func robustSpace(z *mat.Dense, d *Decomposition) (t *mat.Dense, vm mat.Matrix) {
+	m := d.Components()
+	if m == d.Vars {
+		return z, nil
+	}
+	return d.Scores(z, m), d.Loadings.Slice(0, d.Vars, 0, m)
 }
 
 // finishRobust maps a fit in the coordinates T back to the preprocessed
-// variables (V_m times the coordinates) and adds the distances and cut-offs.
-func finishRobust(z *mat.Dense, d *Decomposition, k int, fit robustCoords, out RobustFit) RobustFit {
-	m := d.Components()
-	t := d.Scores(z, m)
-	vm := d.Loadings.Slice(0, d.Vars, 0, m)
-	var load mat.Dense
-	load.Mul(vm, fit.loadings)
-	center := mat.NewVecDense(d.Vars, nil)
-	center.MulVec(vm, mat.NewVecDense(m, fit.center))
-	out.Loadings = &load
-	out.Center = center.RawVector().Data
+// variables (V_m times the coordinates; vm nil is the identity) and adds
+// the distances and cut-offs.
+func finishRobust(t *mat.Dense, vm mat.Matrix, k int, fit robustCoords, out RobustFit) RobustFit {
+	if vm == nil {
+		out.Loadings, out.Center = fit.loadings, fit.center
+	} else {
+		_, m := vm.Dims()
+		p, _ := vm.Dims()
+		var load mat.Dense
+		load.Mul(vm, fit.loadings)
+		center := mat.NewVecDense(p, nil)
+		center.MulVec(vm, mat.NewVecDense(m, fit.center))
+		out.Loadings = &load
+		out.Center = center.RawVector().Data
+	}
 	out.Eigenvalues = fit.eigen
 	out.SD, out.OD = robustDistances(t, fit)
 	out.SDCutoff = math.Sqrt(distuv.ChiSquared{K: float64(k)}.Quantile(robustCutoff))
@@ -696,25 +716,7 @@ func smallest(v []float64, h int) []int {
 func sphericalPCA(t *mat.Dense, k int) robustCoords {
 	n, m := t.Dims()
 	c := spatialMedian(t)
-	y := mat.NewDense(n, m, nil)
-	for i := 0; i < n; i++ {
-		row, out := t.RawRowView(i), y.RawRowView(i)
-		norm := 0.0
-		for j := range out {
-			out[j] = row[j] - c[j]
-			norm += out[j] * out[j]
-		}
-		if norm > 0 {
-			norm = math.Sqrt(norm)
-			for j := range out {
-				out[j] /= norm
-			}
-		}
-	}
-	var svd mat.SVD
-	svd.Factorize(y, mat.SVDThinV)
-	var v mat.Dense
-	svd.VTo(&v)
+	v := sphericalDirections(t, c)
 	scale := make([]float64, k)
 	score := make([]float64, n)
 	cen := make([]float64, m)
@@ -746,6 +748,53 @@ func sphericalPCA(t *mat.Dense, k int) robustCoords {
 		}
 	}
 	return out
+}
+
+// sphericalDirections returns the right singular vectors of the rows of t
+// centred at c and projected onto the unit sphere (columns, by decreasing
+// singular value), as the eigenvectors of their m × m cross-product,
+// accumulated row by row so that the n × m projected matrix is never held.
+// The rows have unit length, so the cross-product's entries are bounded by
+// n and forming it loses nothing that matters for directions whose
+// eigenvalues are well apart; the eigenvalues themselves are not used.
+func sphericalDirections(t *mat.Dense, c []float64) *mat.Dense {
+	n, m := t.Dims()
+	cross := make([]float64, m*m)
+	y := make([]float64, m)
+	for i := 0; i < n; i++ {
+		row := t.RawRowView(i)
+		norm := 0.0
+		for j := range y {
+			y[j] = row[j] - c[j]
+			norm += y[j] * y[j]
+		}
+		if norm == 0 {
+			continue
+		}
+		for j := range y {
+			y[j] /= math.Sqrt(norm)
+		}
+		for j := 0; j < m; j++ {
+			for l := j; l < m; l++ {
+				cross[j*m+l] += y[j] * y[l]
+			}
+		}
+	}
+	var eig mat.EigenSym
+	if !eig.Factorize(mat.NewSymDense(m, cross), true) {
+		// EigenSym fails only on non-finite input, which the table reader
+		// and the magnitude check rule out.
+		panic("analysis: spherical PCA: eigendecomposition failed")
+	}
+	var vecs mat.Dense
+	eig.VectorsTo(&vecs)
+	v := mat.NewDense(m, m, nil)
+	for a := 0; a < m; a++ { // EigenSym sorts ascending
+		for j := 0; j < m; j++ {
+			v.Set(j, a, vecs.At(j, m-1-a))
+		}
+	}
+	return v
 }
 
 // spatialMedian returns the point minimising the sum of Euclidean
@@ -805,5 +854,6 @@ func spatialMedian(t *mat.Dense) []float64 {
 // sphericalFit is spherical PCA of r's data whatever the size rule says,
 // for tests that compare the two methods.
 func sphericalFit(r *Result) RobustFit {
-	return finishRobust(r.Z, r.Decomp, r.Retained, sphericalPCA(r.Decomp.Scores(r.Z, r.Decomp.Components()), r.Retained), RobustFit{Method: RobustSpherical})
+	t, vm := robustSpace(r.Z, r.Decomp)
+	return finishRobust(t, vm, r.Retained, sphericalPCA(t, r.Retained), RobustFit{Method: RobustSpherical})
 }

@@ -189,3 +189,57 @@ func TestRobustResistsPlantedOutliers(t *testing.T) {
 		})
 	}
 }
+
+// On a tall table the robust fit works in Z's own coordinates instead of
+// the rotated ones (robustSpace); both methods are equivariant under that
+// rotation, so the fit must be the same as in the rotated coordinates, up
+// to the loadings' signs and rounding, and Z must be left as it was.
+func TestRobustTallShortcutIsARotation(t *testing.T) {
+	tab, err := intake.ReadTable(filepath.Join("..", "testdata", "datasets", "wine.csv"), intake.ReadOptions{GroupColumn: "cultivar"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Analyze(tab, Options{Scaling: ScaleUnit, Components: ComponentRule{Kind: RuleFixed, Fixed: 3}, NoCrossValidation: true, Seed: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	d, k := res.Decomp, res.Retained
+	if d.Components() != d.Vars {
+		t.Fatalf("wine should be tall and of full rank: %d components of %d variables", d.Components(), d.Vars)
+	}
+	zBefore := mat.DenseCopyOf(res.Z)
+	m := d.Components()
+	rotated := d.Scores(res.Z, m)
+	vm := d.Loadings.Slice(0, d.Vars, 0, m)
+	for _, c := range []struct {
+		name           string
+		direct, viaRot RobustFit
+	}{
+		{"spherical", sphericalFit(res), finishRobust(rotated, vm, k, sphericalPCA(rotated, k), RobustFit{})},
+		{"robpca", FitRobust(res.Z, d, k, 3, 1), func() RobustFit {
+			fit, ok := robpca(rotated, k, int(math.Ceil(RobustAlpha*float64(res.Table.Rows()))), RobustDirections, 3, 1)
+			if !ok {
+				t.Fatal("robpca failed")
+			}
+			return finishRobust(rotated, vm, k, fit, RobustFit{})
+		}()},
+	} {
+		for a := 0; a < k; a++ {
+			dot := 0.0
+			for j := 0; j < d.Vars; j++ {
+				dot += c.direct.Loadings.At(j, a) * c.viaRot.Loadings.At(j, a)
+			}
+			if math.Abs(math.Abs(dot)-1) > 1e-8 {
+				t.Errorf("%s: loading %d differs from the rotated fit's: |cos| = %v", c.name, a+1, math.Abs(dot))
+			}
+		}
+		for i := range c.direct.OD {
+			if math.Abs(c.direct.OD[i]-c.viaRot.OD[i]) > 1e-8*(1+c.viaRot.OD[i]) || math.Abs(c.direct.SD[i]-c.viaRot.SD[i]) > 1e-8*(1+c.viaRot.SD[i]) {
+				t.Fatalf("%s: sample %d distances %v/%v, rotated %v/%v", c.name, i, c.direct.SD[i], c.direct.OD[i], c.viaRot.SD[i], c.viaRot.OD[i])
+			}
+		}
+	}
+	if !mat.Equal(zBefore, res.Z) {
+		t.Error("the robust fit changed Z")
+	}
+}

@@ -15,6 +15,7 @@ import (
 	"os"
 	"pcqc/analysis/intake"
 	"pcqc/internal/safetext"
+	"runtime"
 	"runtime/pprof"
 	"strings"
 	"syscall"
@@ -119,6 +120,17 @@ func main() {
 			f.Close()
 			os.Exit(status)
 		}
+	}
+	// PCQC_MEMPROFILE=file writes a heap profile of every allocation made
+	// (go tool pprof -sample_index=alloc_space), for the memory bounds.
+	if path := os.Getenv("PCQC_MEMPROFILE"); path != "" {
+		runtime.MemProfileRate = 64 << 10
+		status := runProcess(os.Args[1:])
+		if f, err := os.Create(path); err == nil {
+			pprof.Lookup("allocs").WriteTo(f, 0)
+			f.Close()
+		}
+		os.Exit(status)
 	}
 	os.Exit(runProcess(os.Args[1:]))
 }
