@@ -103,7 +103,9 @@ func (rp *rowParser) cell(raw []byte, s *rowSink) (float64, cellKind) {
 		}
 		raw = s.scratch
 	}
-	if bytes.IndexAny(raw, "<>") >= 0 {
+	// Only the first byte is looked at in the common case, to keep the cost
+	// off the hot path of large files.
+	if len(raw) > 0 && (raw[0] == '<' || raw[0] == '>' || raw[0] == ' ' || raw[0] == '\t') {
 		if v, kind := censoredLimit(raw); kind != cellNumber {
 			return v, kind
 		}
