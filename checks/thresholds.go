@@ -29,6 +29,16 @@ const (
 	// more than 5 % of the cells with means, changes the covariance
 	// structure enough to mention (common practice).
 	MissingShareLimit = 0.05
+	// CensoredShareLimit: substituting a constant (L/2, L/√2) for cells
+	// below a detection limit is acceptable only while they are fewer than
+	// 15 % of a variable's values; from 15 % to 50 % the guidance is to
+	// adjust the estimates (Cohen's method, trimmed or Winsorized mean), and
+	// beyond 50 % substitution is inappropriate. US EPA (2000) Guidance for
+	// Data Quality Assessment: Practical Methods for Data Analysis, EPA
+	// QA/G-9 (QA00 update), EPA/600/R-96/084, section 4.7 (guidelines for
+	// analysing data with nondetects; the 15/50 % bands as recalled from
+	// that table, cross-checked against monitoring plans that apply them).
+	CensoredShareLimit = 0.15
 	// MinSamplesPerVariable: n ≥ 5p (common practice; e.g. Gorsuch 1983,
 	// Factor Analysis, 2nd ed., recommends at least five subjects per
 	// variable). Information only: sample-size never warns on it, since no

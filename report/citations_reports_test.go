@@ -41,6 +41,18 @@ func withMissing(csv string, cells ...[2]int) string {
 	return strings.Join(lines, "\n")
 }
 
+// withLimits writes the cells (row, column) of a CSV text as limits, sign
+// followed by the value, counting as withMissing does.
+func withLimits(csv, sign string, cells ...[2]int) string {
+	lines := strings.Split(csv, "\n")
+	for _, c := range cells {
+		f := strings.Split(lines[c[0]+1], ",")
+		f[c[1]+1] = sign + f[c[1]+1]
+		lines[c[0]+1] = strings.Join(f, ",")
+	}
+	return strings.Join(lines, "\n")
+}
+
 // withConstant appends a constant column to a CSV text.
 func withConstant(csv, name string) string {
 	lines := strings.Split(strings.TrimRight(csv, "\n"), "\n")
@@ -230,6 +242,8 @@ func TestEveryReportCitesItsReferenceList(t *testing.T) {
 		}, analysis.Options{Components: rule("2"), Permutations: 100, Bootstrap: 20}),
 		audit("missing values replaced, log10", arrestsWith(holes, intake.ReadOptions{IDColumn: "state", Missing: intake.MissingMean, Transform: intake.TransformLog10}),
 			analysis.Options{Components: rule("3"), Permutations: 100}),
+		audit("censored cells, log", arrestsWith(withLimits(arrests, "<", [2]int{2, 0}, [2]int{7, 3}), intake.ReadOptions{IDColumn: "state", Censored: intake.CensorHalf, Transform: intake.TransformLog}),
+			analysis.Options{Components: rule("2"), Permutations: 100}, "hornung1990", "croghan2003"),
 		audit("missing rows dropped, constant variable, log1p, Pareto", arrestsWith(withConstant(holes, "Constant"), intake.ReadOptions{IDColumn: "state", Missing: intake.MissingDrop, Transform: intake.TransformLog1p}),
 			analysis.Options{Scaling: analysis.ScalePareto, Components: rule("auto"), Permutations: 100}),
 		audit("more variables than samples, bootstrap", func(t *testing.T) *intake.Table {

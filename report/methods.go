@@ -25,6 +25,10 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{vandenberg2006, author = {van den Berg, Robert A. and Hoefsloot, Huub C. J. and Westerhuis, Johan A. and Smilde, Age K. and van der Werf, Mari{\"e}t J.}, title = {Centering, scaling, and transformations: improving the biological information content of metabolomics data}, journal = {BMC Genomics}, volume = {7}, pages = {142}, year = {2006}}`},
 	"demmel2012": {Citation: "Demmel, J., Grigori, L., Hoemmen, M. & Langou, J. (2012). Communication-optimal parallel and sequential QR and LU factorizations. SIAM Journal on Scientific Computing 34: A206–A239.",
 		BibTeX: `@article{demmel2012, author = {Demmel, James and Grigori, Laura and Hoemmen, Mark and Langou, Julien}, title = {Communication-optimal parallel and sequential {QR} and {LU} factorizations}, journal = {SIAM Journal on Scientific Computing}, volume = {34}, number = {1}, pages = {A206--A239}, year = {2012}}`},
+	"hornung1990": {Citation: "Hornung, R. W. & Reed, L. D. (1990). Estimation of average concentration in the presence of nondetectable values. Applied Occupational and Environmental Hygiene 5: 46–51.",
+		BibTeX: `@article{hornung1990, author = {Hornung, Richard W. and Reed, Laurence D.}, title = {Estimation of average concentration in the presence of nondetectable values}, journal = {Applied Occupational and Environmental Hygiene}, volume = {5}, number = {1}, pages = {46--51}, year = {1990}}`},
+	"croghan2003": {Citation: "Croghan, C. W. & Egeghy, P. P. (2003). Methods of dealing with values below the limit of detection using SAS. Southern SAS User Group (SESUG), St. Petersburg, FL, 22–24 September 2003. US EPA, National Exposure Research Laboratory.",
+		BibTeX: `@inproceedings{croghan2003, author = {Croghan, Carry W. and Egeghy, Peter P.}, title = {Methods of dealing with values below the limit of detection using {SAS}}, booktitle = {Southern SAS User Group (SESUG)}, address = {St. Petersburg, FL}, organization = {US EPA, National Exposure Research Laboratory}, year = {2003}}`},
 	"horn1965": {Citation: "Horn, J. L. (1965). A rationale and test for the number of factors in factor analysis. Psychometrika 30: 179–185.",
 		BibTeX: `@article{horn1965, author = {Horn, John L.}, title = {A rationale and test for the number of factors in factor analysis}, journal = {Psychometrika}, volume = {30}, number = {2}, pages = {179--185}, year = {1965}}`},
 	"bro2008": {Citation: "Bro, R., Kjeldahl, K., Smilde, A. K. & Kiers, H. A. L. (2008). Cross-validation of component models: a critical look at current methods. Analytical and Bioanalytical Chemistry 390: 1241–1251.",
@@ -163,6 +167,7 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	add(dataSentence(res, meta))
 	add(rowsSentence(res.Table), exclusionMethodSentence(res))
 	add(exclusionSentences(res.Table.DroppedVariables)...)
+	add(censoringSentence(res.Table))
 	add(preprocessingSentence(res), imputationSentence(res.Table))
 	add(decompositionSentence(res), verificationSentence(res))
 	add(componentSentences(res)...)

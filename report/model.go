@@ -145,6 +145,7 @@ type DataBlock struct {
 	IDColumn, GroupColumn       string
 	Missing, Transform, Scaling string
 	Centring                    string
+	Censored                    *CensoredBlock // nil when no cell was written as a limit
 }
 
 type ComponentsBlock struct {
@@ -455,6 +456,7 @@ func dataBlock(res *analysis.Result) DataBlock {
 	case t.Missing == intake.MissingMean:
 		b.Missing = fmt.Sprintf("%d missing cells replaced by the mean of their column's transformed values (--missing mean)", t.ImputedCells)
 	}
+	b.Censored = censoredBlock(t)
 	b.Transform = transformText(t.Transform)
 	b.Scaling = scalingText(res.Prep.Scaling)
 	b.Centring = fmt.Sprintf("always; verified: the largest |column mean| after preprocessing is %s of the largest column standard deviation", g4(res.Properties.CenteringError))

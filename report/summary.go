@@ -84,6 +84,7 @@ type InputInfo struct {
 	ImputedCells     int                      `json:"imputed_cells"`
 	Variables        []string                 `json:"variables"`
 	VariablesDropped []intake.DroppedVariable `json:"variables_dropped"`
+	Censored         *CensoredInfo            `json:"censored,omitempty"` // see censored.go
 	IDColumn         *string                  `json:"id_column"`
 	GroupColumn      *string                  `json:"group_column"`
 }
@@ -418,6 +419,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			ImputedCells:     t.ImputedCells,
 			Variables:        t.Variables,
 			VariablesDropped: dropped,
+			Censored:         censoredSummary(t),
 			IDColumn:         optional(t.IDColumn),
 			GroupColumn:      optional(t.GroupColumn),
 		},
@@ -487,6 +489,12 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 			name string
 			rows [][]string
 		}{"review-variants.csv", VariantRows(audit.Review)})
+	}
+	if rows := CensoredRows(res.Table); rows != nil {
+		files = append(files, struct {
+			name string
+			rows [][]string
+		}{"censored.csv", rows})
 	}
 	if rows := PressRows(res); rows != nil {
 		files = append(files, struct {

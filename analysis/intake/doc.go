@@ -9,6 +9,9 @@
 //     magnitude, one row per sample and one column per variable, with the
 //     sample ids, their source lines and the variables that were dropped and
 //     why. Missing cells have been handled by the stated MissingPolicy.
+//   - A cell written as a limit ("<0.05", ">2000") is never read silently:
+//     it is refused under CensorFail, and otherwise replaced by the stated
+//     CensorPolicy before any transform and listed in Table.Censored.
 //   - Every problem with the input is an *InputError that names the file and
 //     the position (line and column, or the spreadsheet cell) and says what
 //     is wrong in one line, with control characters escaped.

@@ -21,6 +21,7 @@ type rowParser struct {
 	idCol    int
 	groupCol int
 	missing  MissingPolicy
+	censored CensorPolicy
 	tr       Transform
 	decimal  byte // '.' or ','
 	trailing bool // the header ends with a delimiter (see dropTrailing)
@@ -38,6 +39,7 @@ type rowSink struct {
 	colMissing []int
 	nMissing   int
 	missingIDs int
+	censored   []censoredAt
 	scratch    []byte
 }
 
@@ -101,6 +103,13 @@ func (rp *rowParser) cell(raw []byte, s *rowSink) (float64, cellKind) {
 		}
 		raw = s.scratch
 	}
+	// Only the first byte is looked at in the common case, to keep the cost
+	// off the hot path of large files.
+	if len(raw) > 0 && (raw[0] == '<' || raw[0] == '>' || raw[0] == ' ' || raw[0] == '\t') {
+		if v, kind := censoredLimit(raw); kind != cellNumber {
+			return v, kind
+		}
+	}
 	return parseCell(raw)
 }
 
@@ -111,6 +120,8 @@ func (rp *rowParser) textHint(raw []byte) string {
 	t := strings.TrimSpace(string(raw))
 	unsigned := strings.TrimLeft(t, "+-")
 	switch {
+	case strings.HasPrefix(t, "<") || strings.HasPrefix(t, ">"):
+		return "cannot read as a number (a limit needs its value, as in <0.05; then use --censored half or --censored sqrt2):"
 	case len(unsigned) > 2 && unsigned[0] == '0' && (unsigned[1] == 'x' || unsigned[1] == 'X'):
 		return "cannot read as a number (hexadecimal notation; write the number in decimal):"
 	case strings.Contains(t, "_"):
@@ -171,6 +182,24 @@ func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) er
 			return rp.fail(line, j+1, string(raw), "infinite value; pcqc needs finite numbers:")
 		case cellUnderflow:
 			return rp.fail(line, j+1, string(raw), "number too small for double precision: it would be read as 0 (underflow; the smallest is about 4.9e-324); write 0 if zero is meant:")
+		case cellBelow, cellAbove:
+			if rp.censored == CensorFail || rp.censored == "" {
+				return rp.fail(line, j+1, string(raw), censorFailReason(kind))
+			}
+			side := CensoredBelow
+			if kind == cellAbove {
+				side = CensoredAbove
+			}
+			// Substituted first, transformed second: log("<0.05") is log(0.025).
+			v = rp.censored.substitute(v, side)
+			s.censored = append(s.censored, censoredAt{line: line, k: k, text: strings.TrimSpace(string(raw)), value: v, side: side})
+			tv, err := rp.transform(v, line, j, raw)
+			if err != nil {
+				return err
+			}
+			v = tv
+		case cellBadLimit:
+			return rp.fail(line, j+1, string(raw), badLimitReason(raw))
 		case cellMissing:
 			if rp.missing == MissingFail {
 				return rp.fail(line, j+1, string(raw), "missing value (use --missing drop or --missing mean to handle missing cells):")
@@ -180,9 +209,9 @@ func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) er
 			s.rowMissing[at] = true
 			v = math.NaN()
 		default:
-			tv, ok := rp.tr.apply(v)
-			if !ok {
-				return rp.fail(line, j+1, string(raw), fmt.Sprintf("value outside the domain of --transform %s (%s):", rp.tr, rp.tr.domain()))
+			tv, err := rp.transform(v, line, j, raw)
+			if err != nil {
+				return err
 			}
 			v = tv
 		}
@@ -205,6 +234,32 @@ func (rp *rowParser) parse(rec [][]byte, line, rowNumber, at int, s *rowSink) er
 	}
 	s.lines[at] = line
 	return nil
+}
+
+// transform applies --transform to the value of the cell raw at (line,
+// column j+1).
+func (rp *rowParser) transform(v float64, line, j int, raw []byte) (float64, error) {
+	tv, ok := rp.tr.apply(v)
+	if !ok {
+		return 0, rp.fail(line, j+1, string(raw), fmt.Sprintf("value outside the domain of --transform %s (%s):", rp.tr, rp.tr.domain()))
+	}
+	return tv, nil
+}
+
+// censorFailReason is the message for a censored cell under CensorFail.
+func censorFailReason(kind cellKind) string {
+	if kind == cellAbove {
+		return "value above a reporting limit (use --censored half or --censored sqrt2 to keep it at the limit and list it):"
+	}
+	return "value below a detection limit (use --censored half or --censored sqrt2 to read it as the limit/2 or limit/√2 and list it):"
+}
+
+// badLimitReason is the message for "<" or ">" without a usable limit.
+func badLimitReason(raw []byte) string {
+	if len(bytes.TrimSpace(bytes.TrimSpace(raw)[1:])) == 0 {
+		return "a limit sign without its value (write the limit, as in <0.05):"
+	}
+	return "a detection or reporting limit must be a positive finite number:"
 }
 
 // chunk is a byte range of the file holding whole lines, starting at line
@@ -272,6 +327,7 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 			mu.Lock()
 			s.nMissing += local.nMissing
 			s.missingIDs += local.missingIDs
+			s.censored = append(s.censored, local.censored...)
 			for k, c := range local.colMissing {
 				s.colMissing[k] += c
 			}

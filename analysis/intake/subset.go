@@ -1,6 +1,10 @@
 package intake
 
-import "gonum.org/v1/gonum/mat"
+import (
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
+)
 
 // Subset returns the table restricted to the given variables (indices into
 // Variables, ascending); rows and provenance are shared.
@@ -17,8 +21,17 @@ func (t *Table) Subset(vars []int) *Table {
 	out := *t
 	out.X, out.Variables = x, names
 	keep := map[int]bool{}
-	for _, j := range vars {
+	to := map[int]int{}
+	for c, j := range vars {
 		keep[j] = true
+		to[j] = c
+	}
+	out.Censored = nil
+	for _, cc := range t.Censored {
+		if c, ok := to[cc.Var]; ok {
+			cc.Var = c
+			out.Censored = append(out.Censored, cc)
+		}
 	}
 	out.DroppedVariables = append([]DroppedVariable(nil), t.DroppedVariables...)
 	for j, name := range t.Variables {
@@ -45,6 +58,24 @@ func (t *Table) SelectRows(rows []int) *Table {
 			out.Groups = append(out.Groups, t.Groups[i])
 		}
 	}
+	// Censored cells follow their rows (rows may come in any order).
+	at := map[int][]int{}
+	for r, i := range rows {
+		at[i] = append(at[i], r)
+	}
+	out.Censored = nil
+	for _, cc := range t.Censored {
+		for _, r := range at[cc.Row] {
+			cc.Row = r
+			out.Censored = append(out.Censored, cc)
+		}
+	}
+	slices.SortStableFunc(out.Censored, func(a, b CensoredCell) int {
+		if a.Row != b.Row {
+			return a.Row - b.Row
+		}
+		return a.Var - b.Var
+	})
 	if len(rows) == 0 {
 		x = &mat.Dense{}
 	}

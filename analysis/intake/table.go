@@ -59,6 +59,10 @@ type ReadOptions struct {
 	Decimal byte
 	// Encoding is the text encoding of the file; empty means UTF-8.
 	Encoding Encoding
+	// Censored is the policy for cells written as a limit ("<0.05",
+	// ">2000"); empty means CensorFail. The substitution comes before
+	// Transform, so that --transform log reads "<0.05" as log(0.025).
+	Censored CensorPolicy
 
 	// For new samples scored against a saved model (apply): MinRows is the
 	// fewest rows accepted (default 3, which a PCA needs); KeepConstant
@@ -124,6 +128,10 @@ type Table struct {
 	// under MissingDrop.
 	MissingAt   []CellRef
 	DroppedRows []DroppedRow
+	// Censored lists the cells written as a limit and the number used for
+	// each, in row-major order; Censoring is the policy that chose them.
+	Censored  []CensoredCell
+	Censoring CensorPolicy
 
 	DroppedVariables []DroppedVariable
 	Transform        Transform
@@ -166,6 +174,9 @@ const (
 	cellInfinite
 	cellUnderflow // a nonzero number that rounds to 0
 	cellText
+	cellBelow    // "<L": below a limit L > 0 (see censor.go)
+	cellAbove    // ">L": above a limit L > 0
+	cellBadLimit // "<" or ">" without a positive number after it
 )
 
 // parseCell reads one variable cell. A number follows a strict grammar (see

@@ -90,6 +90,9 @@ func withDefaults(opt ReadOptions) ReadOptions {
 	if opt.Missing == "" {
 		opt.Missing = MissingFail
 	}
+	if opt.Censored == "" {
+		opt.Censored = CensorFail
+	}
 	if opt.Transform == "" {
 		opt.Transform = TransformNone
 	}
@@ -312,7 +315,7 @@ func (r *tableReader) classifyColumns() error {
 // file in parallel when that is safe, otherwise one record after another.
 func (r *tableReader) parseRows() error {
 	r.rp = &rowParser{file: r.name, names: r.names, varCols: r.varCols, idCol: r.idCol, groupCol: r.groupCol,
-		missing: r.opt.Missing, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing}
+		missing: r.opt.Missing, censored: r.opt.Censored, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing}
 	scan := r.scan
 	if scan != nil && !scan.quotes && scan.size >= parallelThreshold && r.opt.Delimiter != '"' && !r.src.cr && r.src.enc == EncodingUTF8 {
 		return r.parseParallel()
@@ -394,6 +397,7 @@ func (r *tableReader) newTable() *Table {
 		RowsRead:     len(r.sink.ids),
 		Transform:    r.opt.Transform,
 		Missing:      r.opt.Missing,
+		Censoring:    r.opt.Censored,
 	}
 	if r.idCol >= 0 {
 		t.IDColumn = r.names[r.idCol]
@@ -550,6 +554,7 @@ func (r *tableReader) keepVariables(t *Table) error {
 		values = values[:n*q]
 	}
 	t.MissingAt = remapVars(t.MissingAt, keepCols, p)
+	t.Censored = placeCensored(s.censored, s.lines, keepCols, p)
 	t.Variables = make([]string, len(keepCols))
 	t.Columns = make([]int, len(keepCols))
 	for c, k := range keepCols {

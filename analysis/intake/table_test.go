@@ -248,7 +248,7 @@ func TestSameTypoSameMessage(t *testing.T) {
 	small, large := table(200, 0), table(0, 2*int(parallelThreshold))
 	// Ids of one width put the cell at the same byte of every line, which
 	// the messages about bad bytes name.
-	for _, typo := range []string{"0x1p3", "1_000", "1e-999", "12..5", "1'000", "abc", "inf", "NA", "1\xb0", "1\x00"} {
+	for _, typo := range []string{"0x1p3", "1_000", "1e-999", "12..5", "1'000", "abc", "inf", "NA", "1\xb0", "1\x00", "<0.05", "> 2000", "<", "<0", "<LOD"} {
 		t.Run(typo, func(t *testing.T) {
 			var reasons []string
 			for _, c := range []struct {

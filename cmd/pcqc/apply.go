@@ -42,7 +42,8 @@ The output folder defaults to <NEW_DATA name>-apply. The report's Reproduce
 section gives the command with every option in force.
 
 Input, output and report flags as for run:
-  --id COL, --group COL, --missing fail|drop|mean, --delim D, --decimal MARK,
+  --id COL, --group COL, --missing fail|drop|mean, --censored fail|half|sqrt2,
+  --delim D, --decimal MARK,
   --encoding ENC,
   --out DIR, --force, --format LIST, --title TEXT, --author TEXT,
   --date YYYY-MM-DD, --fail-on LEVEL, --quiet
@@ -159,7 +160,7 @@ func modelLocation(arg string) (auditDir, modelPath string) {
 // when it was given; options that cannot change the results (--force,
 // --quiet, --threads) are left out, as they are from the options table.
 func applyCommandLine(model, data string, opts report.Options, out string) []string {
-	defaults := map[string]string{"id": "", "group": "", "missing": string(intake.MissingFail), "delim": "auto",
+	defaults := map[string]string{"id": "", "group": "", "missing": string(intake.MissingFail), "censored": string(intake.CensorFail), "delim": "auto",
 		"decimal": "point", "encoding": string(intake.EncodingUTF8), "fail_on": string(checks.Fail), "format": "md,pdf,html",
 		"title": "", "author": "", "date": ""}
 	var flags []string

@@ -31,6 +31,7 @@ var flagValues = map[string]string{
 	"exclude":       "sample ids, comma-separated",
 	"exclude-file":  "a file",
 	"missing":       "one of fail, drop, mean",
+	"censored":      "one of " + joinNames(intake.CensorPolicies),
 	"delim":         "one of auto, ',', ';', tab",
 	"decimal":       "one of point, comma",
 	"encoding":      "one of utf-8, latin1, cp1252",

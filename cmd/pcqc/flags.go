@@ -27,6 +27,7 @@ type auditFlags struct {
 	columns      string
 	drop         string
 	missing      string
+	censored     string
 	delim        string
 	decimal      string
 	encoding     string
@@ -57,6 +58,7 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.columns, "columns", "", "")
 	fs.StringVar(&f.drop, "drop", "", "")
 	fs.StringVar(&f.missing, "missing", string(intake.MissingFail), "")
+	fs.StringVar(&f.censored, "censored", string(intake.CensorFail), "")
 	fs.StringVar(&f.delim, "delim", "auto", "")
 	fs.StringVar(&f.decimal, "decimal", "point", "")
 	fs.StringVar(&f.encoding, "encoding", string(intake.EncodingUTF8), "")
@@ -87,6 +89,11 @@ const auditFlagHelp = `Input:
                       replaces a missing cell by its column's mean (after the
                       transform), so it sits at zero after centring
                       Missing cells are empty, NA, N/A, #N/A, NaN or null.
+  --censored POLICY   fail | half | sqrt2 (default fail): cells written as a
+                      limit, <0.05 or >2000. fail stops at the first; half
+                      reads <L as L/2, sqrt2 as L/√2 (Hornung & Reed 1990);
+                      >L is kept at L. Applied before --transform; every
+                      such cell is listed in the report and summary.json
   --delim D           auto | , | ; | tab (default auto: detected from the header)
   --decimal MARK      point | comma (default point); comma reads 3,14 in
                       semicolon- or tab-separated files
@@ -197,6 +204,9 @@ func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
 	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean}); err != nil {
 		return opt, err
 	}
+	if opt.Censored, err = oneOf("censored", f.censored, intake.CensorPolicies); err != nil {
+		return opt, err
+	}
 	if opt.Transform, err = oneOf("transform", f.transform, intake.Transforms); err != nil {
 		return opt, err
 	}
@@ -289,6 +299,7 @@ func (f *auditFlags) effective(read intake.ReadOptions, t *intake.Table) report.
 		{Name: "columns", Value: list(read.Columns)},
 		{Name: "drop", Value: list(read.Drop)},
 		{Name: "missing", Value: string(read.Missing)},
+		{Name: "censored", Value: string(read.Censored)},
 		{Name: "delim", Value: delim},
 		{Name: "delim_used", Value: string(t.Delimiter)},
 		{Name: "decimal", Value: f.decimal},
