@@ -116,12 +116,12 @@ type Table struct {
 	GroupColumn string   // "" when there is none
 	Groups      []string // one per row used, nil without a group column
 
-	Variables []string   // names of the variables used, in file order
+	Variables []string // names of the variables used, in file order
 	// Units, when the file has a units row, holds each variable's unit
 	// ("" where none), aligned with Variables; nil otherwise.
 	Units []string
-	X         *mat.Dense // n × p, transformed values
-	Lines     []int      // 1-based line in the file of each row used
+	X     *mat.Dense // n × p, transformed values
+	Lines []int      // 1-based line in the file of each row used
 	// Columns is the 1-based column in the file of each variable, so that
 	// a value found wrong after reading can still be named by its
 	// position; nil for tables built in memory.
