@@ -161,12 +161,16 @@ func modelLocation(arg string) (auditDir, modelPath string) {
 func applyCommandLine(model, data string, opts report.Options, out string) []string {
 	defaults := map[string]string{"id": "", "group": "", "missing": string(intake.MissingFail), "delim": "auto",
 		"decimal": "point", "encoding": string(intake.EncodingUTF8), "fail_on": string(checks.Fail), "format": "md,pdf,html",
-		"title": "", "author": "", "date": ""}
+		"title": "", "author": "", "date": "", "skip": "0", "comment": "", "units_row": "false", "thousands": ""}
 	var flags []string
 	for _, o := range opts {
 		def, ok := defaults[o.Name]
 		value := fmt.Sprint(o.Value)
 		if !ok || value == def {
+			continue
+		}
+		if b, isBool := o.Value.(bool); isBool && b {
+			flags = append(flags, "--"+strings.ReplaceAll(o.Name, "_", "-")) // an on/off flag takes no value
 			continue
 		}
 		flags = append(flags, "--"+strings.ReplaceAll(o.Name, "_", "-"), value)
