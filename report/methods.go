@@ -187,7 +187,11 @@ func dataSentence(res *analysis.Result, meta Meta) string {
 func layoutSentence(t *intake.Table) string {
 	var c []string
 	if t.SkippedLines > 0 {
-		c = append(c, fmt.Sprintf("the first %s of the file %s skipped", countNoun(t.SkippedLines, "line"), wasWere(t.SkippedLines)))
+		first := fmt.Sprintf("the first %d lines of the file were skipped", t.SkippedLines)
+		if t.SkippedLines == 1 {
+			first = "the first line of the file was skipped"
+		}
+		c = append(c, first)
 	}
 	if t.CommentLines > 0 {
 		c = append(c, fmt.Sprintf("%s %s ignored", countNoun(t.CommentLines, "comment line"), wasWere(t.CommentLines)))
