@@ -43,7 +43,7 @@ section gives the command with every option in force.
 
 Input, output and report flags as for run:
   --id COL, --group COL, --missing fail|drop|mean, --delim D, --decimal MARK,
-  --encoding ENC,
+  --encoding ENC, --skip N, --comment CHAR, --units-row, --thousands SEP,
   --out DIR, --force, --format LIST, --title TEXT, --author TEXT,
   --date YYYY-MM-DD, --fail-on LEVEL, --quiet
 `,

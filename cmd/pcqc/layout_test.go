@@ -99,6 +99,44 @@ func TestLayoutFlagsGiveTheCleanTables(t *testing.T) {
 	}
 }
 
+// apply reads new batches of the same layout with the same flags, scores
+// them as it scores the clean file, and its Reproduce command names the
+// flags (--units-row without a value, as an on/off flag must be written).
+func TestApplyReadsTheLayout(t *testing.T) {
+	dir := t.TempDir()
+	clean := "id,a,b,c\n"
+	messy := "Batch 7, \"night\" shift\nid,a,b,c\n,mg/L,,[°C]\n"
+	for i := 0; i < 12; i++ {
+		a, b, c := 1000+137*i, 2*i%7+1, 3+i*i%5
+		clean += fmt.Sprintf("s%d,%d,%d,%d\n", i, a, b, c)
+		messy += fmt.Sprintf("s%d,\"%d,%03d\",%d,%d\n! row %d\n", i, a/1000, a%1000, b, c, i)
+	}
+	cleanPath, messyPath := filepath.Join(dir, "clean.csv"), filepath.Join(dir, "messy.csv")
+	os.WriteFile(cleanPath, []byte(clean), 0o600)
+	os.WriteFile(messyPath, []byte(messy), 0o600)
+	audit := filepath.Join(dir, "audit")
+	if status, _, stderr := runPCQC(t, append([]string{"run", cleanPath, "--out", audit}, quick...)...); status != 0 {
+		t.Fatalf("run: %d %s", status, stderr)
+	}
+	outClean, outMessy := filepath.Join(dir, "ac"), filepath.Join(dir, "am")
+	if status, _, stderr := runPCQC(t, "apply", audit, cleanPath, "--out", outClean, "--format", "md", "--fail-on", "never"); status != 0 {
+		t.Fatalf("apply clean: %d %s", status, stderr)
+	}
+	if status, _, stderr := runPCQC(t, "apply", audit, messyPath, "--out", outMessy, "--format", "md", "--fail-on", "never",
+		"--skip", "1", "--comment", "!", "--units-row", "--thousands", ","); status != 0 {
+		t.Fatalf("apply messy: %d %s", status, stderr)
+	}
+	a, _ := os.ReadFile(filepath.Join(outClean, "scores.csv"))
+	b, err := os.ReadFile(filepath.Join(outMessy, "scores.csv"))
+	if err != nil || len(a) == 0 || !bytes.Equal(a, b) {
+		t.Errorf("apply's scores differ (%v)", err)
+	}
+	md, _ := os.ReadFile(filepath.Join(outMessy, "report.md"))
+	if !bytes.Contains(md, []byte("--skip 1 --comment '!' --units-row --thousands ,")) {
+		t.Errorf("the Reproduce command lacks the layout flags")
+	}
+}
+
 // The demo reads the table it writes: the layout flags are refused.
 func TestDemoRefusesLayoutFlags(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "d")
