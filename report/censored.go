@@ -150,10 +150,3 @@ func censoringSentence(t *intake.Table) string {
 	}
 	return "Of the cells written as a limit, " + strings.Join(parts, ", and ") + ", before any transform."
 }
-
-func wasWere(n int) string {
-	if n == 1 {
-		return "was"
-	}
-	return "were"
-}

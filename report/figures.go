@@ -522,7 +522,7 @@ func loadingsFigure(res *analysis.Result, a int) drawing {
 		j := order[r]
 		row := shown - 1 - r // largest at the top
 		bars.values[row] = v.At(j, a)
-		names[row] = figureText(res.Table.Variables[j], maxLabelRunes)
+		names[row] = figureText(varLabel(res.Table, j), maxLabelRunes)
 		if withCI {
 			li := st.Loadings[j][a]
 			bars.low[row], bars.hi[row] = li.Low, li.High
@@ -825,7 +825,7 @@ func biplotFigure(res *analysis.Result) drawing {
 		ar.x, ar.y = append(ar.x, ax), append(ar.y, ay)
 		ann.arrows = append(ann.arrows, dataArrow{ax, ay})
 		if k < biplotLabels {
-			ann.names = append(ann.names, pointLabel{x: ax, y: ay, text: figureText(res.Table.Variables[a.j], maxLabelRunes), color: accent99, gap: vg.Points(1), outward: true})
+			ann.names = append(ann.names, pointLabel{x: ax, y: ay, text: figureText(varLabel(res.Table, a.j), maxLabelRunes), color: accent99, gap: vg.Points(1), outward: true})
 		}
 	}
 	pl.Add(ar)
@@ -843,7 +843,7 @@ func biplotFigure(res *analysis.Result) drawing {
 		}
 		var rows [][]string
 		for _, a := range all[named:] {
-			rows = append(rows, []string{res.Table.Variables[a.j], g4(a.u), g4(a.w), g4(a.length)})
+			rows = append(rows, []string{varLabel(res.Table, a.j), g4(a.u), g4(a.w), g4(a.length)})
 		}
 		return []string{"Variable not named in the biplot", "PC1 arrow (loading × √λ)", "PC2 arrow (loading × √λ)", "Arrow length"}, rows
 	}

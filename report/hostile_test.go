@@ -117,6 +117,12 @@ func TestHostileNamesStayLiteral(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		// Units are user text too (--units-row): the hostile names again,
+		// in reverse order, so that each label joins two of them.
+		tab.Units = make([]string, len(tab.Variables))
+		for j := range tab.Units {
+			tab.Units[j] = tab.Variables[len(tab.Variables)-1-j]
+		}
 		return tab
 	}
 	res, err := analysis.Analyze(read(), analysis.Options{Scaling: analysis.ScaleUnit, Components: analysis.DefaultComponentRule, Permutations: 100, Bootstrap: 20, Seed: 1})

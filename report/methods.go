@@ -165,6 +165,7 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 		}
 	}
 	add(dataSentence(res, meta))
+	add(layoutSentence(res.Table))
 	add(rowsSentence(res.Table), exclusionMethodSentence(res))
 	add(exclusionSentences(res.Table.DroppedVariables)...)
 	add(censoringSentence(res.Table))
@@ -184,6 +185,42 @@ func dataSentence(res *analysis.Result, meta Meta) string {
 	t := res.Table
 	return fmt.Sprintf("Principal component analysis (Jolliffe & Cadima 2016) was carried out with pcqc %s on %s and %s of %s (SHA-256 %s…).",
 		meta.Version, countNoun(t.Rows(), "sample"), countNoun(len(t.Variables), "variable"), t.File, t.SHA256[:min(12, len(t.SHA256))])
+}
+
+// layoutSentence says how the text around the table was read, when it
+// was more than a header and rows of plain numbers.
+func layoutSentence(t *intake.Table) string {
+	var c []string
+	if t.SkippedLines > 0 {
+		first := fmt.Sprintf("the first %d lines of the file were skipped", t.SkippedLines)
+		if t.SkippedLines == 1 {
+			first = "the first line of the file was skipped"
+		}
+		c = append(c, first)
+	}
+	if t.CommentLines > 0 {
+		c = append(c, fmt.Sprintf("%s %s ignored", countNoun(t.CommentLines, "comment line"), wasWere(t.CommentLines)))
+	}
+	if hasUnits(t) {
+		c = append(c, "units were read from the row under the header")
+	}
+	if t.GroupedNumbers > 0 {
+		c = append(c, fmt.Sprintf("thousands separators were removed from %s", countNoun(t.GroupedNumbers, "value")))
+	}
+	switch len(c) {
+	case 0:
+		return ""
+	case 1:
+		return "In reading the file, " + c[0] + "."
+	}
+	return "In reading the file, " + strings.Join(c[:len(c)-1], ", ") + " and " + c[len(c)-1] + "."
+}
+
+func wasWere(n int) string {
+	if n == 1 {
+		return "was"
+	}
+	return "were"
 }
 
 // rowsSentence says which samples were removed for missing values.

@@ -146,6 +146,7 @@ type DataBlock struct {
 	Missing, Transform, Scaling string
 	Centring                    string
 	Censored                    *CensoredBlock // nil when no cell was written as a limit
+	Layout                      string         // preamble, comments, units, digit groups; "" when none
 }
 
 type ComponentsBlock struct {
@@ -443,11 +444,16 @@ func dataBlock(res *analysis.Result) DataBlock {
 	if b.GroupColumn == "" {
 		b.GroupColumn = "none"
 	}
-	if len(t.Variables) <= 40 {
-		b.VariableList = strings.Join(t.Variables, ", ")
-	} else {
-		b.VariableList = strings.Join(t.Variables[:40], ", ") + fmt.Sprintf(" and %d more (all in loadings.csv)", len(t.Variables)-40)
+	labels := make([]string, len(t.Variables))
+	for j := range labels {
+		labels[j] = varLabel(t, j)
 	}
+	if len(t.Variables) <= 40 {
+		b.VariableList = strings.Join(labels, ", ")
+	} else {
+		b.VariableList = strings.Join(labels[:40], ", ") + fmt.Sprintf(" and %d more (all in loadings.csv)", len(t.Variables)-40)
+	}
+	b.Layout = layoutText(t)
 	switch {
 	case t.MissingCells == 0:
 		b.Missing = "no missing cells"
@@ -600,6 +606,10 @@ func loadingsBlock(res *analysis.Result) LoadingsBlock {
 	v := res.Decomp.Loadings
 	st := res.Stability
 	b := LoadingsBlock{Header: []string{"Variable"}}
+	units := hasUnits(res.Table)
+	if units {
+		b.Header = append(b.Header, "Unit")
+	}
 	for a := 0; a < k; a++ {
 		b.Header = append(b.Header, componentName(a))
 	}
@@ -632,6 +642,9 @@ func loadingsBlock(res *analysis.Result) LoadingsBlock {
 	}
 	for _, j := range order {
 		row := []string{res.Table.Variables[j]}
+		if units {
+			row = append(row, unitOf(res.Table, j))
+		}
 		for a := 0; a < k; a++ {
 			cell := f3(v.At(j, a))
 			if st.Used > 0 && !st.Loadings[j][a].ExcludesZero() {

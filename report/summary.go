@@ -83,6 +83,10 @@ type InputInfo struct {
 	MissingCells     int                      `json:"missing_cells"`
 	ImputedCells     int                      `json:"imputed_cells"`
 	Variables        []string                 `json:"variables"`
+	Units            []string                 `json:"units,omitempty"` // per variable, from --units-row
+	SkippedLines     int                      `json:"skipped_lines,omitempty"`
+	CommentLines     int                      `json:"comment_lines,omitempty"`
+	GroupedNumbers   int                      `json:"grouped_numbers,omitempty"`
 	VariablesDropped []intake.DroppedVariable `json:"variables_dropped"`
 	Censored         *CensoredInfo            `json:"censored,omitempty"` // see censored.go
 	IDColumn         *string                  `json:"id_column"`
@@ -418,6 +422,10 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 			MissingCells:     t.MissingCells,
 			ImputedCells:     t.ImputedCells,
 			Variables:        t.Variables,
+			Units:            t.Units,
+			SkippedLines:     t.SkippedLines,
+			CommentLines:     t.CommentLines,
+			GroupedNumbers:   t.GroupedNumbers,
 			VariablesDropped: dropped,
 			Censored:         censoredSummary(t),
 			IDColumn:         optional(t.IDColumn),

@@ -56,33 +56,33 @@ func (c CensorPolicy) substitute(limit float64, side string) float64 {
 	return limit / 2
 }
 
-// censoredLimit reads a cell written as "<L" or ">L" (spaces allowed after
-// the sign; raw already has a decimal comma turned into a point). It
-// returns the limit and cellBelow or cellAbove; cellBadLimit for a sign
-// with no number or a limit that is not positive; cellText when the rest is
-// not a number (so that "<LOD" gets the advice for text); and cellNumber
-// (meaning: not a censored cell) when raw does not start with < or >.
-func censoredLimit(raw []byte) (float64, cellKind) {
+// limitSign reports whether raw, spaces aside, starts with < or > (a value
+// written as a detection limit), and returns the side (cellBelow or
+// cellAbove) and the rest of the cell, trimmed.
+func limitSign(raw []byte) (side cellKind, rest []byte, ok bool) {
 	b := bytes.TrimSpace(raw)
 	if len(b) == 0 || (b[0] != '<' && b[0] != '>') {
-		return 0, cellNumber
+		return 0, nil, false
 	}
-	kind := cellBelow
+	side = cellBelow
 	if b[0] == '>' {
-		kind = cellAbove
+		side = cellAbove
 	}
-	rest := bytes.TrimSpace(b[1:])
-	if len(rest) == 0 {
-		return 0, cellBadLimit
-	}
-	v, k := parseCell(rest)
+	return side, bytes.TrimSpace(b[1:]), true
+}
+
+// limitValue judges the number after a limit's sign, read as kind: a
+// positive finite limit is the cell's value on that side; a rest that is
+// not a number is text (so that "<LOD" gets the advice for text); a limit
+// that is infinite, underflows or is not positive is cellBadLimit.
+func limitValue(v float64, kind, side cellKind) (float64, cellKind) {
 	switch {
-	case k == cellMissing, k == cellText:
+	case kind == cellMissing, kind == cellText:
 		return 0, cellText
-	case k == cellInfinite, k == cellUnderflow, v <= 0:
+	case kind == cellInfinite, kind == cellUnderflow, v <= 0:
 		return v, cellBadLimit
 	}
-	return v, kind
+	return v, side
 }
 
 // censoredAt is a censored cell as the row parser met it: by line, since

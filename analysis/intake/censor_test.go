@@ -31,6 +31,11 @@ func TestCensoredPolicies(t *testing.T) {
 		{"decimal comma", "id;a;b\ns1;<0,05;1\ns2;0,2;2\ns3;>2000;3\ns4;< 0,1;4\n", ReadOptions{Censored: CensorHalf, Decimal: ','},
 			[]float64{0.025, 0.2, 2000, 0.05}, []float64{1, 2, 3, 4},
 			[]CensoredCell{{0, 0, "<0,05", 0.025, "below"}, {2, 0, ">2000", 2000, "above"}, {3, 0, "< 0,1", 0.05, "below"}}},
+		// The sign comes off before the digit groups are read: "<1,000"
+		// under --thousands is a limit of 1000.
+		{"digit groups", "id,a,b\ns1,\"<1,000\",1\ns2,\"2,500\",2\ns3,\"> 12,000\",3\ns4,40,4\n", ReadOptions{Censored: CensorHalf, Thousands: ','},
+			[]float64{500, 2500, 12000, 40}, []float64{1, 2, 3, 4},
+			[]CensoredCell{{0, 0, "<1,000", 500, "below"}, {2, 0, "> 12,000", 12000, "above"}}},
 		// The substitution comes first: log("<0.05") is log(0.025).
 		{"before the transform", text, ReadOptions{Censored: CensorHalf, Transform: TransformLog},
 			[]float64{-3.6888794541139363, math.Log(0.2), math.Log(2000), math.Log(0.05)}, []float64{0, math.Log(2), math.Log(3), math.Log(2)},

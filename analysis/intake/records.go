@@ -31,6 +31,9 @@ type recordReader struct {
 	cr    bool     // lines end in a lone CR
 	enc   Encoding // what the text was converted from ("" for UTF-8)
 
+	comment  byte // lines starting with it are passed over (0: none)
+	comments int  // lines passed over as comments
+
 	line    int // physical lines consumed so far
 	recLine int // line on which the record last returned starts
 
@@ -255,13 +258,18 @@ func fieldAt(line []byte, off int, delim byte, base int, inQuote bool) (idx, sta
 	return idx, start, end
 }
 
-// read returns the fields of the next record, skipping blank lines. It
-// returns io.EOF when no records are left. r.recLine holds the line on which
-// the record starts.
+// read returns the fields of the next record, skipping blank lines and
+// comment lines. It returns io.EOF when no records are left. r.recLine holds
+// the line on which the record starts.
 func (r *recordReader) read() ([][]byte, error) {
 	var line []byte
 	for {
 		l, err := r.readLine()
+		if r.comment != 0 && len(l) > 0 && l[0] == r.comment && (err == nil || err == errBadText) {
+			// A comment may hold anything, bytes a table may not hold too.
+			r.comments++
+			continue
+		}
 		if err == errBadText {
 			r.recLine = r.line
 			return nil, r.textErr(l, 0, false)

@@ -25,6 +25,10 @@ type rowParser struct {
 	tr       Transform
 	decimal  byte // '.' or ','
 	trailing bool // the header ends with a delimiter (see dropTrailing)
+
+	thousands byte // digit-group separator to strip (0: none; ' ' any space)
+	delim     byte // the field separator, for advice
+	comment   byte // comment lines are passed over (0: none)
 }
 
 // rowSink holds the parsed rows. Row i occupies values[i*p:(i+1)*p]; a row
@@ -40,6 +44,9 @@ type rowSink struct {
 	nMissing   int
 	missingIDs int
 	censored   []censoredAt
+	grouped    int // cells whose thousands separators were removed
+	comments   int // comment lines among the data rows (parallel path)
+	chunked    bool
 	scratch    []byte
 }
 
@@ -89,8 +96,39 @@ func (rp *rowParser) fail(line, col int, text, reason string) error {
 	return &InputError{File: rp.file, Line: line, Column: col, Name: name, Text: text, Reason: reason}
 }
 
-// cell reads one variable cell, accepting a decimal comma when asked to.
+// cell reads one variable cell, accepting thousands separators and a
+// decimal comma when asked to.
 func (rp *rowParser) cell(raw []byte, s *rowSink) (float64, cellKind) {
+	// Only the first byte is looked at in the common case, to keep the cost
+	// off the hot path of large files. A limit's sign comes off before the
+	// digit groups and the decimal comma are read, so that "<1,000" under
+	// --thousands and "<0,05" under --decimal comma are limits.
+	if len(raw) > 0 && (raw[0] == '<' || raw[0] == '>' || raw[0] == ' ' || raw[0] == '\t') {
+		if side, rest, ok := limitSign(raw); ok {
+			if len(rest) == 0 {
+				return 0, cellBadLimit
+			}
+			v, kind := rp.number(rest, s)
+			return limitValue(v, kind, side)
+		}
+	}
+	return rp.number(raw, s)
+}
+
+// number reads a cell that is not a limit: digit groups removed under
+// --thousands, a decimal comma turned into a point, then the number grammar.
+func (rp *rowParser) number(raw []byte, s *rowSink) (float64, cellKind) {
+	if rp.thousands != 0 {
+		stripped, grouped, ok := stripGroups(raw, rp.thousands, rp.decimal, s.scratch[:0])
+		if !ok {
+			return 0, cellText
+		}
+		if grouped {
+			s.grouped++
+			s.scratch = stripped
+			raw = stripped
+		}
+	}
 	if rp.decimal == ',' && bytes.IndexByte(raw, ',') >= 0 {
 		s.scratch = append(s.scratch[:0], raw...)
 		for i, c := range s.scratch {
@@ -102,13 +140,6 @@ func (rp *rowParser) cell(raw []byte, s *rowSink) (float64, cellKind) {
 			}
 		}
 		raw = s.scratch
-	}
-	// Only the first byte is looked at in the common case, to keep the cost
-	// off the hot path of large files.
-	if len(raw) > 0 && (raw[0] == '<' || raw[0] == '>' || raw[0] == ' ' || raw[0] == '\t') {
-		if v, kind := censoredLimit(raw); kind != cellNumber {
-			return v, kind
-		}
 	}
 	return parseCell(raw)
 }
@@ -128,16 +159,34 @@ func (rp *rowParser) textHint(raw []byte) string {
 		if _, kind := parseCell([]byte(strings.ReplaceAll(t, "_", ""))); kind == cellNumber {
 			return "cannot read as a number (digits grouped with _; write numbers without digit grouping):"
 		}
+	case rp.thousands != 0 && looksGrouped(t):
+		return rp.groupingAdvice(t)
 	case rp.decimal == '.' && strings.Count(t, ",") == 1 && !strings.Contains(t, "."):
 		if _, kind := parseCell([]byte(strings.Replace(t, ",", ".", 1))); kind == cellNumber {
-			return "cannot read as a number (a decimal comma? use --decimal comma):"
+			return rp.commaAdvice(t)
 		}
-	case strings.Count(t, ",")+strings.Count(t, ".")+strings.Count(t, " ")+strings.Count(t, "'") > 1 || strings.Contains(t, "\u00a0"):
+	case strings.Count(t, ",")+strings.Count(t, ".")+strings.Count(t, " ")+strings.Count(t, "'") > 1 || strings.ContainsAny(t, "\u00a0\u202f"):
 		if looksGrouped(t) {
-			return "cannot read as a number (thousands separators? write numbers without digit grouping):"
+			return rp.groupingAdvice(t)
 		}
 	}
 	return "cannot read as a number:"
+}
+
+// commaAdvice is the advice for a number with one comma, such as 1,234 or
+// 3,14, in a file read with the decimal point. Three digits after the comma
+// may be a thousands separator; a decimal comma can be read only where the
+// fields are not separated by commas.
+func (rp *rowParser) commaAdvice(t string) string {
+	after := len(t) - strings.IndexByte(t, ',') - 1
+	dec := "use --decimal comma"
+	if rp.delim == ',' {
+		dec = "--decimal comma needs semicolons or tabs between the fields, so export the file with one of them"
+	}
+	if after == 3 {
+		return fmt.Sprintf("cannot read as a number (a thousands separator? give --thousands , to read 1,234 as 1234; if it is a decimal comma, %s):", dec)
+	}
+	return fmt.Sprintf("cannot read as a number (a decimal comma? %s):", dec)
 }
 
 // looksGrouped reports whether t reads as digits grouped by thousands
@@ -148,7 +197,7 @@ func looksGrouped(t string) bool {
 		switch {
 		case r >= '0' && r <= '9':
 			digits++
-		case r == ',' || r == '.' || r == ' ' || r == '\'' || r == '\u00a0':
+		case r == ',' || r == '.' || r == ' ' || r == '\'' || r == '\u00a0' || r == '\u202f':
 			seps++
 		case r == '-' || r == '+':
 		default:
@@ -308,7 +357,7 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 					continue
 				}
 				rr := newRecordReader(bufio.NewReaderSize(bytes.NewReader(buf), 1<<16), delim)
-				rr.line = c.firstLine - 1
+				rr.line, rr.comment = c.firstLine-1, rp.comment
 				for {
 					rec, err := rr.read()
 					if err == io.EOF {
@@ -323,11 +372,14 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 						break
 					}
 				}
+				local.comments += rr.comments
 			}
 			mu.Lock()
 			s.nMissing += local.nMissing
 			s.missingIDs += local.missingIDs
 			s.censored = append(s.censored, local.censored...)
+			s.grouped += local.grouped
+			s.comments += local.comments
 			for k, c := range local.colMissing {
 				s.colMissing[k] += c
 			}
@@ -336,6 +388,7 @@ func (rp *rowParser) parseChunks(ra io.ReaderAt, chunks []chunk, headerLine int,
 	}
 	wg.Wait()
 	failed.Raise()
+	s.chunked = true
 	for _, err := range errs {
 		if err != nil {
 			return err // chunks are in file order: the first error is the first in the file

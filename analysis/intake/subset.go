@@ -12,14 +12,21 @@ func (t *Table) Subset(vars []int) *Table {
 	n := t.Rows()
 	x := mat.NewDense(n, len(vars), nil)
 	names := make([]string, len(vars))
+	var units []string
+	if t.Units != nil {
+		units = make([]string, len(vars))
+	}
 	for c, j := range vars {
 		names[c] = t.Variables[j]
+		if units != nil {
+			units[c] = t.Units[j]
+		}
 		for i := 0; i < n; i++ {
 			x.Set(i, c, t.X.At(i, j))
 		}
 	}
 	out := *t
-	out.X, out.Variables = x, names
+	out.X, out.Variables, out.Units = x, names, units
 	keep := map[int]bool{}
 	to := map[int]int{}
 	for c, j := range vars {

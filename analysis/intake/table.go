@@ -63,6 +63,18 @@ type ReadOptions struct {
 	// ">2000"); empty means CensorFail. The substitution comes before
 	// Transform, so that --transform log reads "<0.05" as log(0.025).
 	Censored CensorPolicy
+	// Skip is the number of lines before the header that are not read at
+	// all (a title, an instrument's preamble); they may hold anything.
+	Skip int
+	// Comment, when not 0, marks lines to ignore: any line whose first
+	// byte it is, before the header or among the data rows.
+	Comment byte
+	// UnitsRow says that the row right under the header holds units.
+	UnitsRow bool
+	// Thousands, when not 0, is the digit-group separator stripped from
+	// numbers written in well-formed groups of three ("1,234,567"); ' '
+	// stands for a space, a no-break space or a narrow no-break space.
+	Thousands byte
 
 	// For new samples scored against a saved model (apply): MinRows is the
 	// fewest rows accepted (default 3, which a PCA needs); KeepConstant
@@ -108,9 +120,12 @@ type Table struct {
 	GroupColumn string   // "" when there is none
 	Groups      []string // one per row used, nil without a group column
 
-	Variables []string   // names of the variables used, in file order
-	X         *mat.Dense // n × p, transformed values
-	Lines     []int      // 1-based line in the file of each row used
+	Variables []string // names of the variables used, in file order
+	// Units, when the file has a units row, holds each variable's unit
+	// ("" where none), aligned with Variables; nil otherwise.
+	Units []string
+	X     *mat.Dense // n × p, transformed values
+	Lines []int      // 1-based line in the file of each row used
 	// Columns is the 1-based column in the file of each variable, so that
 	// a value found wrong after reading can still be named by its
 	// position; nil for tables built in memory.
@@ -132,6 +147,13 @@ type Table struct {
 	// each, in row-major order; Censoring is the policy that chose them.
 	Censored  []CensoredCell
 	Censoring CensorPolicy
+
+	// SkippedLines (--skip) and CommentLines (--comment) count the lines
+	// not read as rows; GroupedNumbers counts the cells whose thousands
+	// separators were removed (--thousands).
+	SkippedLines   int
+	CommentLines   int
+	GroupedNumbers int
 
 	DroppedVariables []DroppedVariable
 	Transform        Transform
@@ -513,14 +535,14 @@ func TableFromMatrix(name string, x *mat.Dense, variables, ids []string) *Table 
 
 // ReadHeader returns the column names of a table file, as ReadTable would
 // name them, so that callers can choose columns before reading. It uses the
-// Delimiter and Encoding of opt.
+// Delimiter, Encoding, Skip and Comment of opt.
 func ReadHeader(path string, opt ReadOptions) ([]string, error) {
 	f, err := openData(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	src, err := openText(path, f, opt.Delimiter, opt.Encoding)
+	src, err := openText(path, f, opt.Delimiter, opt.Encoding, lead{skip: opt.Skip, comment: opt.Comment})
 	if err != nil {
 		return nil, err
 	}

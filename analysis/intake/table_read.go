@@ -36,6 +36,15 @@ type tableReader struct {
 	seen       map[string]int // NFC name → column
 	headerLine int
 
+	// The units row (--units-row): one cell per column, and its line.
+	units     []string
+	unitsLine int
+	// dataFrom is the line of the last record before the data rows (the
+	// header or the units row); leadComments counts the comment lines the
+	// record reader passed over up to there.
+	dataFrom     int
+	leadComments int
+
 	// The columns' roles.
 	idCol, groupCol int
 	chosen, dropped []bool
@@ -62,6 +71,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 	steps := []func() error{
 		func() error { return tr.open(r) },
 		tr.readHeaderRow,
+		tr.readUnitsRow,
 		tr.chooseColumns,
 		tr.sampleRows,
 		tr.classifyColumns,
@@ -114,14 +124,20 @@ func (r *tableReader) open(in io.Reader) error {
 		r.hasher = sha256.New()
 		in = io.TeeReader(in, r.hasher)
 	}
-	src, err := openText(r.name, in, r.opt.Delimiter, r.opt.Encoding)
+	if err := r.checkMarks(); err != nil {
+		return err
+	}
+	src, err := openText(r.name, in, r.opt.Delimiter, r.opt.Encoding, lead{skip: r.opt.Skip, comment: r.opt.Comment})
 	if err != nil {
 		return err
 	}
 	r.src = src
 	r.delim = src.delimiter(r.opt.Delimiter)
 	if r.opt.Decimal == ',' && r.delim == ',' {
-		return r.fail(1, 0, "", "", "--decimal comma needs another field separator than the comma (semicolons or tabs)")
+		return r.fail(src.skip+1, 0, "", "", "--decimal comma needs another field separator than the comma (semicolons or tabs)")
+	}
+	if r.opt.Comment != 0 && r.opt.Comment == r.delim {
+		return r.fail(src.skip+1, 0, "", "", fmt.Sprintf("--comment %c is the field separator of this file; choose another comment character", r.opt.Comment))
 	}
 	r.rr = src.records(r.delim)
 	return nil
@@ -154,6 +170,7 @@ func (r *tableReader) readHeaderRow() error {
 		r.seen[key] = j
 	}
 	r.headerLine = r.rr.recLine
+	r.dataFrom, r.leadComments = r.headerLine, r.rr.comments
 	if len(r.names) < 2 {
 		return r.fail(r.headerLine, 0, "", "", fmt.Sprintf("the header has a single column; fields are separated by %s here (use --delim if that is wrong)", delimName(r.delim)))
 	}
@@ -269,7 +286,7 @@ func (r *tableReader) firstText(probe *rowParser, j int) (int, string) {
 // and no role was given) and the variables, and refuses text among the
 // variables with the advice that fits.
 func (r *tableReader) classifyColumns() error {
-	probe := &rowParser{decimal: r.opt.Decimal}
+	probe := &rowParser{decimal: r.opt.Decimal, thousands: r.opt.Thousands, delim: r.delim}
 	if r.opt.IDColumn == "" && r.groupCol != 0 && !r.chosen[0] && !r.dropped[0] {
 		if i, _ := r.firstText(probe, 0); i >= 0 {
 			r.idCol = 0
@@ -281,6 +298,9 @@ func (r *tableReader) classifyColumns() error {
 			continue
 		}
 		r.varCols = append(r.varCols, j)
+	}
+	if err := r.checkUnitsRow(probe); err != nil {
+		return err
 	}
 	var textCols []string
 	firstBad, firstBadRow := -1, -1
@@ -315,14 +335,15 @@ func (r *tableReader) classifyColumns() error {
 // file in parallel when that is safe, otherwise one record after another.
 func (r *tableReader) parseRows() error {
 	r.rp = &rowParser{file: r.name, names: r.names, varCols: r.varCols, idCol: r.idCol, groupCol: r.groupCol,
-		missing: r.opt.Missing, censored: r.opt.Censored, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing}
+		missing: r.opt.Missing, censored: r.opt.Censored, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing,
+		thousands: r.opt.Thousands, delim: r.delim, comment: r.opt.Comment}
 	scan := r.scan
 	if scan != nil && !scan.quotes && scan.size >= parallelThreshold && r.opt.Delimiter != '"' && !r.src.cr && r.src.enc == EncodingUTF8 {
 		return r.parseParallel()
 	}
 	rows := len(r.sample)
 	if scan != nil {
-		rows = max(scan.lines-r.headerLine, rows)
+		rows = max(scan.lines-r.dataFrom, rows)
 	}
 	r.sink = newRowSink(len(r.varCols), rows, r.groupCol >= 0)
 	n := 0
@@ -363,16 +384,16 @@ func (r *tableReader) parseRows() error {
 // text and CR line ends are read by the sequential path.
 func (r *tableReader) parseParallel() error {
 	scan := r.scan
-	dataStart, err := lineEnd(scan.file, int64(r.src.bom), r.headerLine)
+	dataStart, err := lineEnd(scan.file, int64(r.src.bom), r.dataFrom)
 	if err != nil {
 		return r.fail(0, 0, "", "", "read error: "+err.Error())
 	}
-	chunks, err := splitChunks(scan.file, dataStart, scan.size, r.headerLine+1, 4<<20)
+	chunks, err := splitChunks(scan.file, dataStart, scan.size, r.dataFrom+1, 4<<20)
 	if err != nil {
 		return r.fail(0, 0, "", "", "read error: "+err.Error())
 	}
-	r.sink = newRowSink(len(r.varCols), max(scan.lines-r.headerLine, 0), r.groupCol >= 0)
-	if err := r.rp.parseChunks(scan.file, chunks, r.headerLine, r.sink, r.delim); err != nil {
+	r.sink = newRowSink(len(r.varCols), max(scan.lines-r.dataFrom, 0), r.groupCol >= 0)
+	if err := r.rp.parseChunks(scan.file, chunks, r.dataFrom, r.sink, r.delim); err != nil {
 		return err
 	}
 	r.sink.compact(r.idCol < 0)
@@ -398,6 +419,14 @@ func (r *tableReader) newTable() *Table {
 		Transform:    r.opt.Transform,
 		Missing:      r.opt.Missing,
 		Censoring:    r.opt.Censored,
+		SkippedLines: r.opt.Skip,
+		// The sequential reader saw every comment after the preamble; the
+		// parallel one re-read the data rows, counted in the sink.
+		CommentLines:   r.src.comments + r.rr.comments,
+		GroupedNumbers: r.sink.grouped,
+	}
+	if r.sink.chunked {
+		t.CommentLines = r.src.comments + r.leadComments + r.sink.comments
 	}
 	if r.idCol >= 0 {
 		t.IDColumn = r.names[r.idCol]
@@ -557,9 +586,15 @@ func (r *tableReader) keepVariables(t *Table) error {
 	t.Censored = placeCensored(s.censored, s.lines, keepCols, p)
 	t.Variables = make([]string, len(keepCols))
 	t.Columns = make([]int, len(keepCols))
+	if r.units != nil {
+		t.Units = make([]string, len(keepCols))
+	}
 	for c, k := range keepCols {
 		t.Variables[c] = r.names[r.varCols[k]]
 		t.Columns[c] = r.varCols[k] + 1
+		if r.units != nil {
+			t.Units[c] = r.units[r.varCols[k]]
+		}
 	}
 	t.X = mat.NewDense(n, len(keepCols), slices.Clip(values))
 	t.IDs, t.Groups, t.Lines = s.ids, s.groups, s.lines

@@ -86,18 +86,26 @@ type textSource struct {
 	bom  int  // bytes of a UTF-8 byte order mark skipped
 	cr   bool // lines end in a lone CR (classic Mac OS)
 	sep  byte // delimiter named by a sep= first line, 0 without one
-	skip int  // lines consumed before the text in br (the sep= line)
+	skip int  // lines consumed before the text in br (sep=, --skip, comments)
+
+	lead     lead // what to pass over before the header
+	comments int  // comment lines passed over before the header
 }
 
 // openText prepares r, the raw bytes of a table named name, for reading.
 // delim is the delimiter the user gave (0 for none), needed only to place
 // errors and to check a sep= line against it.
-func openText(name string, r io.Reader, delim byte, enc Encoding) (*textSource, error) {
+// lead, when given, says which lines before the header are not read (see
+// passLead).
+func openText(name string, r io.Reader, delim byte, enc Encoding, lead ...lead) (*textSource, error) {
 	if enc == "" {
 		enc = EncodingUTF8
 	}
 	br := bufio.NewReaderSize(r, 1<<20)
 	s := &textSource{enc: enc}
+	if len(lead) > 0 {
+		s.lead = lead[0]
+	}
 	bom, err := sniffText(name, br, delim, enc)
 	if err != nil {
 		return nil, err
@@ -125,8 +133,12 @@ func openText(name string, r io.Reader, delim byte, enc Encoding) (*textSource, 
 	peek, _ := br.Peek(br.Size())
 	s.cr = bytes.IndexByte(peek, '\n') < 0 && bytes.IndexByte(peek, '\r') >= 0
 
-	// Excel writes "sep=;" as the first line to name the delimiter.
+	// Excel writes "sep=;" as the first line to name the delimiter. Lines
+	// skipped with --skip are not read at all, a sep= line among them too.
 	first := firstLine(peek)
+	if s.lead.skip > 0 {
+		return s, s.passLead(name)
+	}
 	if len(first) == 5 && strings.EqualFold(string(first[:4]), "sep=") {
 		d := first[4]
 		if d != ',' && d != ';' && d != '\t' {
@@ -144,7 +156,7 @@ func openText(name string, r io.Reader, delim byte, enc Encoding) (*textSource, 
 		br.Discard(min(n, len(peek)))
 		s.sep, s.skip = d, 1
 	}
-	return s, nil
+	return s, s.passLead(name)
 }
 
 // delimiter returns the delimiter to use: the user's, else the sep= line's,
@@ -166,7 +178,7 @@ func (s *textSource) delimiter(given byte) byte {
 // records returns the reader of the records of the text.
 func (s *textSource) records(delim byte) *recordReader {
 	rr := newRecordReader(s.br, delim)
-	rr.cr, rr.enc, rr.line = s.cr, s.enc, s.skip
+	rr.cr, rr.enc, rr.line, rr.comment = s.cr, s.enc, s.skip, s.lead.comment
 	return rr
 }
 

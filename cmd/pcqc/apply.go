@@ -43,8 +43,8 @@ section gives the command with every option in force.
 
 Input, output and report flags as for run:
   --id COL, --group COL, --missing fail|drop|mean, --censored fail|half|sqrt2,
-  --delim D, --decimal MARK,
-  --encoding ENC,
+  --delim D, --decimal MARK, --encoding ENC, --skip N, --comment CHAR,
+  --units-row, --thousands SEP,
   --out DIR, --force, --format LIST, --title TEXT, --author TEXT,
   --date YYYY-MM-DD, --fail-on LEVEL, --quiet
 `,
@@ -162,12 +162,16 @@ func modelLocation(arg string) (auditDir, modelPath string) {
 func applyCommandLine(model, data string, opts report.Options, out string) []string {
 	defaults := map[string]string{"id": "", "group": "", "missing": string(intake.MissingFail), "censored": string(intake.CensorFail), "delim": "auto",
 		"decimal": "point", "encoding": string(intake.EncodingUTF8), "fail_on": string(checks.Fail), "format": "md,pdf,html",
-		"title": "", "author": "", "date": ""}
+		"title": "", "author": "", "date": "", "skip": "0", "comment": "", "units_row": "false", "thousands": ""}
 	var flags []string
 	for _, o := range opts {
 		def, ok := defaults[o.Name]
 		value := fmt.Sprint(o.Value)
 		if !ok || value == def {
+			continue
+		}
+		if b, isBool := o.Value.(bool); isBool && b {
+			flags = append(flags, "--"+strings.ReplaceAll(o.Name, "_", "-")) // an on/off flag takes no value
 			continue
 		}
 		flags = append(flags, "--"+strings.ReplaceAll(o.Name, "_", "-"), value)

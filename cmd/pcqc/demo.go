@@ -44,6 +44,13 @@ func runDemo(args []string, stdout, stderr io.Writer) (int, error) {
 	if _, helped, err := parseCommand("demo", fs, &f, args, 0, "no arguments", stdout); helped || err != nil {
 		return exitOK, err
 	}
+	// The demo reads the table it writes, which has no preamble, comments,
+	// units row or digit groups.
+	for _, name := range []string{"skip", "comment", "units-row", "thousands"} {
+		if f.set[name] {
+			return 0, usagef("--%s does not apply to the demo, which reads the table it writes itself", name)
+		}
+	}
 	if !f.set["id"] {
 		f.id = demo.SampleID
 	}

@@ -31,6 +31,10 @@ type auditFlags struct {
 	delim        string
 	decimal      string
 	encoding     string
+	skip         int
+	comment      string
+	unitsRow     bool
+	thousands    string
 	transform    string
 	scale        string
 	components   string
@@ -62,6 +66,10 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.delim, "delim", "auto", "")
 	fs.StringVar(&f.decimal, "decimal", "point", "")
 	fs.StringVar(&f.encoding, "encoding", string(intake.EncodingUTF8), "")
+	fs.IntVar(&f.skip, "skip", 0, "")
+	fs.StringVar(&f.comment, "comment", "", "")
+	fs.BoolVar(&f.unitsRow, "units-row", false, "")
+	fs.StringVar(&f.thousands, "thousands", "", "")
 	fs.StringVar(&f.transform, "transform", string(intake.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
@@ -102,6 +110,15 @@ const auditFlagHelp = `Input:
                       and cp1252 (Windows-1252) are converted to UTF-8 as
                       they are read. Text that is not UTF-8 is refused
                       without it
+  --skip N            leave out the first N lines of the file (a title or an
+                      instrument's preamble), whatever they hold
+  --comment CHAR      leave out every line that starts with CHAR (such as #),
+                      before the header and among the rows
+  --units-row         the row under the header holds units (mg/L, [°C]); they
+                      label the variable table, the figures and summary.json
+  --thousands SEP     , | . | space | ' : remove this digit-group separator
+                      from numbers in groups of three (1,234,567); anything
+                      else holding it is refused. Not the decimal mark
 
 Preprocessing (centring is always done):
   --transform T       none | log | log10 | log1p (default none)
@@ -148,6 +165,37 @@ Output:
                       input file are refused whatever the flags
 `
 
+// layoutOptions reads the flags about the layout of the text around the
+// table: --skip, --comment, --units-row and --thousands. The conflicts
+// that depend on the file (a comment character that is its delimiter) are
+// refused by intake, which knows the delimiter.
+func (f *auditFlags) layoutOptions(opt *intake.ReadOptions) error {
+	if f.skip < 0 {
+		return usagef("invalid --skip %d: give the number of lines before the header, 0 or more", f.skip)
+	}
+	opt.Skip, opt.UnitsRow = f.skip, f.unitsRow
+	if f.comment != "" {
+		if len(f.comment) != 1 {
+			return usagef("invalid --comment %q: give one character, such as #", f.comment)
+		}
+		opt.Comment = f.comment[0]
+	}
+	switch f.thousands {
+	case "":
+	case ",", "comma":
+		opt.Thousands = ','
+	case ".", "point":
+		opt.Thousands = '.'
+	case "space", " ":
+		opt.Thousands = ' '
+	case "'", "apostrophe":
+		opt.Thousands = '\''
+	default:
+		return usagef("invalid --thousands %q: use ',', '.', space or \"'\"", f.thousands)
+	}
+	return nil
+}
+
 // splitList reads a comma-separated flag value.
 func splitList(s string) []string {
 	var out []string
@@ -193,6 +241,9 @@ func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
 		opt.Decimal = ','
 	default:
 		return opt, usagef("invalid --decimal %q: use point or comma", f.decimal)
+	}
+	if err := f.layoutOptions(&opt); err != nil {
+		return opt, err
 	}
 	enc, ok := intake.ParseEncoding(f.encoding)
 	if !ok {
@@ -304,6 +355,10 @@ func (f *auditFlags) effective(read intake.ReadOptions, t *intake.Table) report.
 		{Name: "delim_used", Value: string(t.Delimiter)},
 		{Name: "decimal", Value: f.decimal},
 		{Name: "encoding", Value: string(read.Encoding)},
+		{Name: "skip", Value: read.Skip},
+		{Name: "comment", Value: f.comment},
+		{Name: "units_row", Value: read.UnitsRow},
+		{Name: "thousands", Value: f.thousands},
 		{Name: "transform", Value: string(read.Transform)},
 		{Name: "scale", Value: f.scale},
 		{Name: "center", Value: true},
