@@ -29,6 +29,9 @@ type Options struct {
 	// left out of the fit and projected onto it afterwards
 	// (Result.Excluded).
 	Exclude []int
+	// ImputeComponents fixes S, the components of the iterative imputation
+	// (intake.MissingIterative); 0 chooses it by cross-validation.
+	ImputeComponents int
 	// noWhatIf leaves out the refit without the flagged samples: the
 	// refit itself must not refit again.
 	noWhatIf bool
@@ -68,6 +71,9 @@ type Result struct {
 	// WhatIf is the refit without the samples the outlier and influence
 	// checks flag (RefitWithoutFlagged).
 	WhatIf *WhatIf
+	// Imputation describes the iterative imputation of missing cells
+	// (intake.MissingIterative); nil under every other policy.
+	Imputation *Imputation
 }
 
 // Analyze preprocesses the table and computes its PCA and diagnostics. The
@@ -78,6 +84,13 @@ func Analyze(t *intake.Table, opt Options) (*Result, error) {
 	}
 	if opt.Components.Kind == "" {
 		opt.Components = DefaultComponentRule
+	}
+	var imp *Imputation
+	if t.Missing == intake.MissingIterative && len(t.MissingAt) > 0 && !opt.noWhatIf {
+		var err error
+		if t, imp, err = imputeTable(t, opt); err != nil {
+			return nil, err
+		}
 	}
 	var excluded *intake.Table
 	if len(opt.Exclude) > 0 {
@@ -108,7 +121,7 @@ func Analyze(t *intake.Table, opt Options) (*Result, error) {
 	}
 	n, _ := z.Dims()
 	m := d.Components()
-	r := &Result{Table: t, Options: opt, Prep: pp, Z: z, Decomp: d, Rule: opt.Components}
+	r := &Result{Table: t, Options: opt, Prep: pp, Z: z, Decomp: d, Rule: opt.Components, Imputation: imp}
 
 	if (opt.Components.Kind == RuleParallel) && opt.Permutations <= 0 {
 		return nil, fmt.Errorf("--components %s needs permutations (--permutations > 0)", opt.Components)
