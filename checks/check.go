@@ -139,6 +139,7 @@ var Registry = []Check{
 	reviewOrder,
 	// The data: do they suit a PCA?
 	missingValues,
+	imputationConvergence,
 	constantVariables,
 	duplicateRows,
 	sampleIDs,

@@ -1,5 +1,7 @@
 package checks
 
+import "pcqc/analysis"
+
 // Every threshold the checks use, each beside its source.
 
 // Correctness of the decomposition. These are facts of the trade: in exact
@@ -29,6 +31,13 @@ const (
 	// more than 5 % of the cells with means, changes the covariance
 	// structure enough to mention (common practice).
 	MissingShareLimit = 0.05
+	// ImputationChangeLimit and ImputationIterationCap: the iterative
+	// imputation (Josse & Husson 2012) has converged when the imputed
+	// cells change by less than 1e-9 of the preprocessed data's norm; it
+	// fails when the cap of 1000 iterations is reached first (common
+	// practice: missMDA's imputePCA also caps at 1000).
+	ImputationChangeLimit  = analysis.ImputeTolerance
+	ImputationIterationCap = analysis.ImputeMaxIterations
 	// MinSamplesPerVariable: n ≥ 5p (common practice; e.g. Gorsuch 1983,
 	// Factor Analysis, 2nd ed., recommends at least five subjects per
 	// variable). Information only: sample-size never warns on it, since no

@@ -82,10 +82,13 @@ const auditFlagHelp = `Input:
   --group COL         label column used to colour plots; never a variable
   --columns a,b,c     analyse only these variables
   --drop a,b          leave these columns out
-  --missing POLICY    fail | drop | mean (default fail). fail stops at the first
-                      missing cell; drop removes rows with a missing cell; mean
-                      replaces a missing cell by its column's mean (after the
-                      transform), so it sits at zero after centring
+  --missing POLICY    fail | drop | mean | iterative (default fail). fail stops
+                      at the first missing cell; drop removes rows with a
+                      missing cell; mean replaces a missing cell by its
+                      column's mean (after the transform), so it sits at zero
+                      after centring; iterative imputes missing cells by
+                      regularised iterative PCA (Josse & Husson 2012), with
+                      the number of components chosen by cross-validation
                       Missing cells are empty, NA, N/A, #N/A, NaN or null.
   --delim D           auto | , | ; | tab (default auto: detected from the header)
   --decimal MARK      point | comma (default point); comma reads 3,14 in
@@ -194,7 +197,7 @@ func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
 	opt.Encoding = enc
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
-	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean}); err != nil {
+	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean, intake.MissingIterative}); err != nil {
 		return opt, err
 	}
 	if opt.Transform, err = oneOf("transform", f.transform, intake.Transforms); err != nil {

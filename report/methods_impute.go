@@ -1,0 +1,28 @@
+package report
+
+import (
+	"fmt"
+
+	"pcqc/analysis"
+)
+
+// iterativeImputationSentence describes the imputation under --missing
+// iterative: method, S and how it was chosen, tolerance, cap, and whether it
+// converged, so that the paragraph alone lets a reader redo it.
+func iterativeImputationSentence(res *analysis.Result) string {
+	imp := res.Imputation
+	if imp == nil {
+		return ""
+	}
+	how := "given"
+	if imp.CVError != nil {
+		how = fmt.Sprintf("chosen by cross-validation of the imputation (%d times, %.0f %% of the observed cells hidden, imputed with 1 to %d components, and the smallest mean squared error kept)",
+			analysis.ImputeCVRepeats, 100*analysis.ImputeCVShare, len(imp.CVError))
+	}
+	outcome := fmt.Sprintf("it converged after %s", countNoun(imp.Iterations, "iteration"))
+	if !imp.Converged {
+		outcome = fmt.Sprintf("it did not converge within the cap (last change %.2g)", imp.Change)
+	}
+	return fmt.Sprintf("The %s missing values were imputed by regularised iterative PCA (Josse & Husson 2012): starting from column means, the centring and scaling were refitted to the completed data at every iteration, the data reconstructed from %s with singular values shrunk by the share of noise, and only the missing cells replaced, until their change fell below %g of the data's norm (cap %d iterations); S was %s; %s. The bootstrap redid the imputation in every resample.",
+		fmt.Sprint(len(imp.Cells)), countNoun(imp.Components, "component"), imp.Tolerance, imp.MaxIterations, how, outcome)
+}
