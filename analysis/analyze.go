@@ -111,6 +111,9 @@ func Analyze(t *intake.Table, opt Options) (*Result, error) {
 		z = pp.Apply(nil, t.X)
 	}
 	adequacy.Bartlett, adequacy.KMO = correlationTests(z)
+	if imp != nil {
+		adequacy.imputed(z, imp)
+	}
 	adequacy.DuplicateIDs = duplicateIDs(t.IDs)
 	if err := checkMagnitude(t, pp, z); err != nil {
 		return nil, err

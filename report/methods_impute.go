@@ -23,6 +23,14 @@ func iterativeImputationSentence(res *analysis.Result) string {
 	if !imp.Converged {
 		outcome = fmt.Sprintf("it did not converge within the cap (last change %.2g)", imp.Change)
 	}
-	return fmt.Sprintf("The %s missing values were imputed by regularised iterative PCA (Josse & Husson 2012): starting from column means, the centring and scaling were refitted to the completed data at every iteration, the data reconstructed from %s with singular values shrunk by the share of noise, and only the missing cells replaced, until their change fell below %g of the data's norm (cap %d iterations); S was %s; %s. The bootstrap redid the imputation in every resample.",
-		fmt.Sprint(len(imp.Cells)), countNoun(imp.Components, "component"), imp.Tolerance, imp.MaxIterations, how, outcome)
+	boot := ""
+	if res.Stability.Used > 0 {
+		boot = " The bootstrap redid the imputation in every resample."
+	}
+	adequacy := ""
+	if n := res.Adequacy.EffectiveN; n > 0 {
+		adequacy = fmt.Sprintf(" Bartlett's test and the sampling noise of the Kaiser–Meyer–Olkin measure counted the observed information only: n = %d, the %d samples times the share of cells observed.", n, res.Decomp.Rows)
+	}
+	return fmt.Sprintf("The %s missing values were imputed by regularised iterative PCA (Josse & Husson 2012): starting from column means, the centring and scaling were refitted to the completed data at every iteration, the data reconstructed from %s with singular values shrunk by the share of noise, and only the missing cells replaced, until their change fell below %g of the data's norm (cap %d iterations); S was %s; %s.%s%s",
+		fmt.Sprint(len(imp.Cells)), countNoun(imp.Components, "component"), imp.Tolerance, imp.MaxIterations, how, outcome, boot, adequacy)
 }
