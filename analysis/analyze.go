@@ -32,6 +32,9 @@ type Options struct {
 	// ImputeComponents fixes S, the components of the iterative imputation
 	// (intake.MissingIterative); 0 chooses it by cross-validation.
 	ImputeComponents int
+	// ImputeMaxIterations caps the imputation's iterations; 0 means
+	// ImputeMaxIterations (a smaller cap is for tests of non-convergence).
+	ImputeMaxIterations int
 	// noWhatIf leaves out the refit without the flagged samples: the
 	// refit itself must not refit again.
 	noWhatIf bool

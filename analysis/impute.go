@@ -147,10 +147,14 @@ func ImputeRegularised(x *mat.Dense, cells []intake.CellRef, s int, scaling Scal
 
 // Impute imputes the table's missing cells (t.MissingAt) in x, a matrix
 // holding the table's values, and describes what it did. components ≤ 0
-// chooses S by cross-validation (ChooseImputeComponents).
-func Impute(x *mat.Dense, t *intake.Table, scaling Scaling, components int, seed uint64, threads int) (*Imputation, error) {
+// chooses S by cross-validation (ChooseImputeComponents); maxIter ≤ 0 means
+// ImputeMaxIterations.
+func Impute(x *mat.Dense, t *intake.Table, scaling Scaling, components int, seed uint64, threads, maxIter int) (*Imputation, error) {
 	n, p := x.Dims()
-	imp := &Imputation{Cells: t.MissingAt, Tolerance: ImputeTolerance, MaxIterations: ImputeMaxIterations}
+	if maxIter <= 0 {
+		maxIter = ImputeMaxIterations
+	}
+	imp := &Imputation{Cells: t.MissingAt, Tolerance: ImputeTolerance, MaxIterations: maxIter}
 	imp.ObservedShare = 1 - float64(len(t.MissingAt))/float64(n*p)
 	if m := min(n-1, p); m < 2 {
 		return nil, fmt.Errorf("%s: iterative imputation needs at least 3 samples and 2 variables", t.File)
@@ -189,6 +193,6 @@ func imputeTable(t *intake.Table, opt Options) (*intake.Table, *Imputation, erro
 		c.X = x
 		t = &c
 	}
-	imp, err := Impute(x, t, opt.Scaling, opt.ImputeComponents, opt.Seed, opt.Threads)
+	imp, err := Impute(x, t, opt.Scaling, opt.ImputeComponents, opt.Seed, opt.Threads, opt.ImputeMaxIterations)
 	return t, imp, err
 }

@@ -104,7 +104,7 @@ func TestImputeBeatsMeanOnLowRank(t *testing.T) {
 	meanRMSE := cellRMSE(x, y, cells)
 	tab := intake.TableFromMatrix("sim", y, nil, nil)
 	tab.MissingAt, tab.Missing = cells, intake.MissingIterative
-	imp, err := Impute(y, tab, ScaleUnit, 0, 1, 2)
+	imp, err := Impute(y, tab, ScaleUnit, 0, 1, 2, 0)
 	if err != nil {
 		t.Fatal(err)
 	}
