@@ -1,6 +1,9 @@
 package checks
 
-import "fmt"
+import (
+	"fmt"
+	"strings"
+)
 
 // imputationConvergence fails when the iterative imputation stopped at its
 // iteration cap: the imputed cells then depend on where the iteration
@@ -11,7 +14,7 @@ var imputationConvergence = Check{
 	Source: "Josse & Husson (2012) regularised iterative PCA; tolerance: common practice",
 	judge: func(in Input) Result {
 		imp := in.Run.Imputation
-		limit := fmt.Sprintf("change < %g within %d iterations", ImputationChangeLimit, ImputationIterationCap)
+		limit := fmt.Sprintf("change < %s within %d iterations", tolText(ImputationChangeLimit), ImputationIterationCap)
 		if imp == nil {
 			return Result{Status: Skip, Limit: limit, Message: "No cell was imputed by iterative PCA (--missing iterative not used, or nothing was missing)."}
 		}
@@ -23,8 +26,11 @@ var imputationConvergence = Check{
 			return r
 		}
 		r.Status = Fail
-		r.Message = fmt.Sprintf("%s; the iteration stopped at its cap of %d iterations with a relative change of %.2g, above %g: the imputed values, and every result computed from them, are not settled. Too many cells may be missing for the structure to pin them down; use --missing drop, or measure the missing values.",
-			what, imp.Iterations, imp.Change, ImputationChangeLimit)
+		r.Message = fmt.Sprintf("%s; the iteration stopped at its cap of %d iterations with a relative change of %.2g, above %s: the imputed values, and every result computed from them, are not settled. Too many cells may be missing for the structure to pin them down; use --missing drop, or measure the missing values.",
+			what, imp.Iterations, imp.Change, tolText(ImputationChangeLimit))
 		return r
 	},
 }
+
+// tolText writes a limit as 1e-9 rather than Go's 1e-09.
+func tolText(x float64) string { return strings.Replace(fmt.Sprintf("%g", x), "e-0", "e-", 1) }

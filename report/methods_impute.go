@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"strings"
 
 	"pcqc/analysis"
 )
@@ -31,6 +32,9 @@ func iterativeImputationSentence(res *analysis.Result) string {
 	if n := res.Adequacy.EffectiveN; n > 0 {
 		adequacy = fmt.Sprintf(" Bartlett's test and the sampling noise of the Kaiser–Meyer–Olkin measure counted the observed information only: n = %d, the %d samples times the share of cells observed.", n, res.Decomp.Rows)
 	}
-	return fmt.Sprintf("The %s missing values were imputed by regularised iterative PCA (Josse & Husson 2012): starting from column means, the centring and scaling were refitted to the completed data at every iteration, the data reconstructed from %s with singular values shrunk by the share of noise, and only the missing cells replaced, until their change fell below %g of the data's norm (cap %d iterations); S was %s; %s.%s%s",
-		fmt.Sprint(len(imp.Cells)), countNoun(imp.Components, "component"), imp.Tolerance, imp.MaxIterations, how, outcome, boot, adequacy)
+	return fmt.Sprintf("The %s missing values were imputed by regularised iterative PCA (Josse & Husson 2012): starting from column means, the centring and scaling were refitted to the completed data at every iteration, the data reconstructed from %s with singular values shrunk by the share of noise, and only the missing cells replaced, until their change fell below %s of the data's norm (cap %d iterations); S was %s; %s.%s%s",
+		fmt.Sprint(len(imp.Cells)), countNoun(imp.Components, "component"), tolText(imp.Tolerance), imp.MaxIterations, how, outcome, boot, adequacy)
 }
+
+// tolText writes a tolerance as 1e-9 rather than Go's 1e-09.
+func tolText(x float64) string { return strings.Replace(fmt.Sprintf("%g", x), "e-0", "e-", 1) }
