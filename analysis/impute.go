@@ -40,9 +40,10 @@ type Imputation struct {
 	Cells      []intake.CellRef // the imputed cells (Table.MissingAt)
 	Values     []float64        // their final values, transformed scale, same order
 	Components int              // S, the components of the reconstruction
-	// ChosenBy says how S was chosen; CVError holds, for S = 1, 2, …, the
-	// mean squared prediction error of the hidden cells on the
-	// preprocessed scale (nil when S was given).
+	// ChosenBy says how S was chosen (ChosenByCV, ChosenGiven or
+	// ChosenOnly); CVError holds, for S = 1, 2, …, the mean squared
+	// prediction error of the hidden cells on the preprocessed scale (nil
+	// unless S was cross-validated).
 	ChosenBy      string
 	CVError       []float64
 	Iterations    int
@@ -52,6 +53,15 @@ type Imputation struct {
 	Converged     bool
 	ObservedShare float64 // observed cells / all cells
 }
+
+// How the number of components of the imputation was chosen.
+const (
+	ChosenByCV  = "cross-validation"
+	ChosenGiven = "given"
+	// ChosenOnly: with min(n−1, p) = 2, S = 1 is the only value that leaves
+	// an eigenvalue to estimate the noise from.
+	ChosenOnly = "only possible value"
+)
 
 // MethodImputation names the imputation in the report and summary.json.
 const MethodImputation = "regularised iterative PCA (Josse & Husson 2012)"
@@ -98,7 +108,7 @@ func ImputeRegularised(x *mat.Dense, cells []intake.CellRef, s int, scaling Scal
 		}
 		for j, c := range pp.Scales {
 			if !(c > 0) || math.IsInf(c, 0) {
-				return run, fmt.Errorf("imputation: variable %d has no spread in the completed data", j+1)
+				return run, noSpreadError(j)
 			}
 		}
 		pp.Apply(z, x)
@@ -159,14 +169,25 @@ func Impute(x *mat.Dense, t *intake.Table, scaling Scaling, components int, seed
 	if m := min(n-1, p); m < 2 {
 		return nil, fmt.Errorf("%s: iterative imputation needs at least 3 samples and 2 variables", t.File)
 	}
-	if components > 0 {
+	switch {
+	case components > 0:
 		imp.Components = min(components, min(n-1, p)-1)
-		imp.ChosenBy = "given"
-	} else {
+		imp.ChosenBy = ChosenGiven
+	case min(n-1, p) == 2:
+		imp.Components, imp.ChosenBy = 1, ChosenOnly
+	default:
 		imp.Components, imp.CVError = ChooseImputeComponents(x, t.MissingAt, scaling, seed, threads)
-		imp.ChosenBy = fmt.Sprintf("cross-validation of the imputation: %d times %.0f %% of the observed cells hidden and imputed, S with the smallest mean squared error", ImputeCVRepeats, 100*ImputeCVShare)
+		imp.ChosenBy = ChosenByCV
 	}
 	run, err := ImputeRegularised(x, t.MissingAt, imp.Components, scaling, imp.Tolerance, imp.MaxIterations)
+	if j, ok := err.(noSpreadError); ok {
+		e := &intake.InputError{File: t.File, Name: t.Variables[j],
+			Reason: "the variable takes a single value once its missing cells are imputed, so it cannot be scaled; leave it out with --drop"}
+		if int(j) < len(t.Columns) {
+			e.Column = t.Columns[j]
+		}
+		return nil, e
+	}
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", t.File, err)
 	}
@@ -195,4 +216,12 @@ func imputeTable(t *intake.Table, opt Options) (*intake.Table, *Imputation, erro
 	}
 	imp, err := Impute(x, t, opt.Scaling, opt.ImputeComponents, opt.Seed, opt.Threads, opt.ImputeMaxIterations)
 	return t, imp, err
+}
+
+// noSpreadError is the index of a variable whose completed values do not
+// vary.
+type noSpreadError int
+
+func (e noSpreadError) Error() string {
+	return fmt.Sprintf("imputation: variable %d has no spread in the completed data", int(e)+1)
 }

@@ -16,7 +16,10 @@ func iterativeImputationSentence(res *analysis.Result) string {
 		return ""
 	}
 	how := "given"
-	if imp.CVError != nil {
+	if imp.ChosenBy == analysis.ChosenOnly {
+		how = "the only value that leaves an eigenvalue to estimate the noise from"
+	}
+	if imp.ChosenBy == analysis.ChosenByCV {
 		how = fmt.Sprintf("chosen by cross-validation of the imputation (%d times, %.0f %% of the observed cells hidden, imputed with 1 to %d components, and the smallest mean squared error kept)",
 			analysis.ImputeCVRepeats, 100*analysis.ImputeCVShare, len(imp.CVError))
 	}
