@@ -32,6 +32,11 @@ type Adequacy struct {
 
 	Bartlett Bartlett
 	KMO      KMO
+	// ImputedShare is the share of cells imputed by iterative PCA, and
+	// EffectiveN the sample size Bartlett's test and KMO's noise terms
+	// used in its place (EffectiveSamples); 0 without imputation.
+	ImputedShare float64
+	EffectiveN   int
 }
 
 // Near-constant detection (common practice): a variable whose values are
@@ -276,11 +281,22 @@ func sameRow(a, b []float64) bool {
 // skipped when p ≥ n (the correlation matrix is then singular by
 // construction) or p exceeds MaxCorrelationVariables.
 func correlationTests(z *mat.Dense) (Bartlett, KMO) {
-	n, p := z.Dims()
+	n, _ := z.Dims()
+	return correlationTestsN(z, n)
+}
+
+// correlationTestsN is correlationTests with the statistics' sample size n
+// given (see EffectiveSamples); the correlations come from all rows of z.
+func correlationTestsN(z *mat.Dense, n int) (Bartlett, KMO) {
+	rows, p := z.Dims()
 	var b Bartlett
 	var k KMO
+	if p >= rows {
+		reason := fmt.Sprintf("p = %d ≥ n = %d: the correlation matrix is singular by construction", p, rows)
+		return Bartlett{SkipReason: reason}, KMO{SkipReason: reason}
+	}
 	if p >= n {
-		reason := fmt.Sprintf("p = %d ≥ n = %d: the correlation matrix is singular by construction", p, n)
+		reason := fmt.Sprintf("p = %d ≥ %d, the samples' worth of observed cells once imputed cells are discounted", p, n)
 		return Bartlett{SkipReason: reason}, KMO{SkipReason: reason}
 	}
 	if p > MaxCorrelationVariables {

@@ -29,6 +29,12 @@ type Options struct {
 	// left out of the fit and projected onto it afterwards
 	// (Result.Excluded).
 	Exclude []int
+	// ImputeComponents fixes S, the components of the iterative imputation
+	// (intake.MissingIterative); 0 chooses it by cross-validation.
+	ImputeComponents int
+	// ImputeMaxIterations caps the imputation's iterations; 0 means
+	// ImputeMaxIterations (a smaller cap is for tests of non-convergence).
+	ImputeMaxIterations int
 	// noWhatIf leaves out the refit without the flagged samples: the
 	// refit itself must not refit again.
 	noWhatIf bool
@@ -68,6 +74,9 @@ type Result struct {
 	// WhatIf is the refit without the samples the outlier and influence
 	// checks flag (RefitWithoutFlagged).
 	WhatIf *WhatIf
+	// Imputation describes the iterative imputation of missing cells
+	// (intake.MissingIterative); nil under every other policy.
+	Imputation *Imputation
 }
 
 // Analyze preprocesses the table and computes its PCA and diagnostics. The
@@ -78,6 +87,13 @@ func Analyze(t *intake.Table, opt Options) (*Result, error) {
 	}
 	if opt.Components.Kind == "" {
 		opt.Components = DefaultComponentRule
+	}
+	var imp *Imputation
+	if t.Missing == intake.MissingIterative && len(t.MissingAt) > 0 && !opt.noWhatIf {
+		var err error
+		if t, imp, err = imputeTable(t, opt); err != nil {
+			return nil, err
+		}
 	}
 	var excluded *intake.Table
 	if len(opt.Exclude) > 0 {
@@ -98,6 +114,9 @@ func Analyze(t *intake.Table, opt Options) (*Result, error) {
 		z = pp.Apply(nil, t.X)
 	}
 	adequacy.Bartlett, adequacy.KMO = correlationTests(z)
+	if imp != nil {
+		adequacy.imputed(z, imp)
+	}
 	adequacy.DuplicateIDs = duplicateIDs(t.IDs)
 	if err := checkMagnitude(t, pp, z); err != nil {
 		return nil, err
@@ -108,7 +127,7 @@ func Analyze(t *intake.Table, opt Options) (*Result, error) {
 	}
 	n, _ := z.Dims()
 	m := d.Components()
-	r := &Result{Table: t, Options: opt, Prep: pp, Z: z, Decomp: d, Rule: opt.Components}
+	r := &Result{Table: t, Options: opt, Prep: pp, Z: z, Decomp: d, Rule: opt.Components, Imputation: imp}
 
 	if (opt.Components.Kind == RuleParallel) && opt.Permutations <= 0 {
 		return nil, fmt.Errorf("--components %s needs permutations (--permutations > 0)", opt.Components)

@@ -124,6 +124,9 @@ type bootstrapper struct {
 	// Wide data without scaling stay in the reference row space: z = T Vᵀ.
 	scoresAll *mat.Dense // n × m reference scores of all components
 	loadAll   *mat.Dense // p × m reference loadings of all components
+	// imp, when not nil, makes every resample redo the iterative
+	// imputation (bootstrap_impute.go).
+	imp *bootImpute
 }
 
 // Bootstrap runs B resamples of the pipeline behind r and summarises the
@@ -152,7 +155,7 @@ func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Prog
 	}
 	b := newBootstrapper(r)
 	n, p := b.n, b.p
-	tall := n >= p
+	tall := n >= p || b.imp != nil // imputed resamples keep their loadings as the tall path does
 
 	results := make([]resampleResult, resamples)
 	counts := make([][]int32, resamples)
@@ -240,6 +243,7 @@ func newBootstrapper(r *Result) *bootstrapper {
 		refScale: r.Prep.Scales,
 		ref:      mat.DenseCopyOf(r.RetainedLoadings()),
 	}
+	b.imp = newBootImpute(r)
 	b.zt = transpose(r.Z)
 	b.refSD = make([]float64, p)
 	for j := 0; j < p; j++ {
@@ -261,6 +265,9 @@ func newBootstrapper(r *Result) *bootstrapper {
 
 // resample computes one resample's result from its counts.
 func (b *bootstrapper) resample(w *bootWorkspace, counts []int32) resampleResult {
+	if b.imp != nil {
+		return b.imputedResample(counts)
+	}
 	if b.n >= b.p {
 		return b.tallResample(w, counts)
 	}

@@ -140,6 +140,7 @@ var Registry = []Check{
 	// The data: do they suit a PCA?
 	missingValues,
 	censoredValues,
+	imputationConvergence,
 	constantVariables,
 	duplicateRows,
 	sampleIDs,

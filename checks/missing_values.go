@@ -36,6 +36,14 @@ var missingValues = Check{
 			}
 			r.Message = fmt.Sprintf("%s of %d (%s) replaced by column means. Mean imputation shrinks variances and correlations towards zero; with more than a few percent imputed, consider a method that models the missing values.",
 				countNoun(t.ImputedCells, "cell"), cells, pct(share))
+		case intake.MissingIterative:
+			share := float64(t.ImputedCells) / float64(cells)
+			r.Status = Pass
+			if share > MissingShareLimit {
+				r.Status = Warn
+			}
+			r.Message = fmt.Sprintf("%s of %d (%s) imputed by regularised iterative PCA (see imputation-convergence). Imputation assumes cells are missing at random; the more are imputed, the more the results rest on the model rather than on measurements.",
+				countNoun(t.ImputedCells, "cell"), cells, pct(share))
 		default:
 			r.Status = Fail
 			r.Message = fmt.Sprintf("%s missing, but no policy handled them.", countNoun(t.MissingCells, "cell"))

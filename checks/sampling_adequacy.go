@@ -41,7 +41,7 @@ var samplingAdequacy = Check{
 		}
 		r.Message = fmt.Sprintf("Overall KMO %.2f, %s in Kaiser's words.", k.Overall, analysis.KMOLabel(k.Overall))
 		if corrected {
-			n, p := in.Run.Decomp.Rows, len(k.PerVariable)
+			n, p := samplesForNoise(in), len(k.PerVariable)
 			r.Message += fmt.Sprintf(" With the share that sampling noise alone adds at n = %d and p = %d taken out of both sums (%.3g of %.3g for the correlations, %.3g of %.3g for the partial correlations), it is %.2f, %s; that value is judged.", n, p, k.NoiseR2, k.SumR2, k.NoiseQ2, k.SumQ2, k.NoiseCorrected, analysis.KMOLabel(k.NoiseCorrected))
 		}
 		switch {
@@ -58,6 +58,7 @@ var samplingAdequacy = Check{
 		if len(low) > 0 {
 			r.Message += fmt.Sprintf(" Variables below %g on their own: %s; dropping them usually raises the overall value.", KMOFail, strings.Join(low, ", "))
 		}
+		r.Message += imputedNote(in)
 		return r
 	},
 }

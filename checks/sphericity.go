@@ -25,6 +25,7 @@ var sphericity = Check{
 			r.Status = Warn
 			r.Message = stat + ": the variables show no shared structure to reduce; components of such data mostly describe noise."
 		}
+		r.Message += imputedNote(in)
 		return r
 	},
 }

@@ -1,5 +1,7 @@
 package checks
 
+import "pcqc/analysis"
+
 // Every threshold the checks use, each beside its source.
 
 // Correctness of the decomposition. These are facts of the trade: in exact
@@ -39,6 +41,13 @@ const (
 	// analysing data with nondetects; the 15/50 % bands as recalled from
 	// that table, cross-checked against monitoring plans that apply them).
 	CensoredShareLimit = 0.15
+	// ImputationChangeLimit and ImputationIterationCap: the iterative
+	// imputation (Josse & Husson 2012) has converged when the imputed
+	// cells change by less than 1e-9 of the preprocessed data's norm; it
+	// fails when the cap of 1000 iterations is reached first (common
+	// practice).
+	ImputationChangeLimit  = analysis.ImputeTolerance
+	ImputationIterationCap = analysis.ImputeMaxIterations
 	// MinSamplesPerVariable: n ≥ 5p (common practice; e.g. Gorsuch 1983,
 	// Factor Analysis, 2nd ed., recommends at least five subjects per
 	// variable). Information only: sample-size never warns on it, since no

@@ -19,6 +19,8 @@ type Reference struct {
 
 // bibliography holds every work the report may cite, keyed for reuse.
 var bibliography = map[string]Reference{
+	"josse2012": {Citation: "Josse, J. & Husson, F. (2012). Handling missing values in exploratory multivariate data analysis methods. Journal de la Société Française de Statistique 153: 79–99.",
+		BibTeX: `@article{josse2012, author = {Josse, Julie and Husson, Fran{\c{c}}ois}, title = {Handling missing values in exploratory multivariate data analysis methods}, journal = {Journal de la Soci{\'e}t{\'e} Fran{\c{c}}aise de Statistique}, volume = {153}, number = {2}, pages = {79--99}, year = {2012}}`},
 	"jolliffe2016": {Citation: "Jolliffe, I. T. & Cadima, J. (2016). Principal component analysis: a review and recent developments. Philosophical Transactions of the Royal Society A 374: 20150202.",
 		BibTeX: `@article{jolliffe2016, author = {Jolliffe, Ian T. and Cadima, Jorge}, title = {Principal component analysis: a review and recent developments}, journal = {Philosophical Transactions of the Royal Society A}, volume = {374}, number = {2065}, pages = {20150202}, year = {2016}}`},
 	"vandenberg2006": {Citation: "van den Berg, R. A., Hoefsloot, H. C. J., Westerhuis, J. A., Smilde, A. K. & van der Werf, M. J. (2006). Centering, scaling, and transformations: improving the biological information content of metabolomics data. BMC Genomics 7: 142.",
@@ -169,7 +171,7 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	add(rowsSentence(res.Table), exclusionMethodSentence(res))
 	add(exclusionSentences(res.Table.DroppedVariables)...)
 	add(censoringSentence(res.Table))
-	add(preprocessingSentence(res), imputationSentence(res.Table))
+	add(preprocessingSentence(res), imputationSentence(res.Table), iterativeImputationSentence(res))
 	add(decompositionSentence(res), verificationSentence(res))
 	add(componentSentences(res)...)
 	add(outlierSentences(res)...)
@@ -239,7 +241,7 @@ func rowsSentence(t *intake.Table) string {
 // transform), which the sentence says when there is a transform.
 func imputationSentence(t *intake.Table) string {
 	n := t.ImputedCells
-	if n == 0 {
+	if n == 0 || t.Missing == intake.MissingIterative {
 		return ""
 	}
 	scale := ""

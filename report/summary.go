@@ -63,10 +63,12 @@ type Summary struct {
 	Adequacy   AdequacyInfo   `json:"adequacy"`
 	Review     *ReviewInfo    `json:"review,omitempty"`
 	// Excluded and WithoutFlagged: see exclude.go.
-	Excluded       *ExcludedInfo   `json:"excluded,omitempty"`
-	WithoutFlagged *WhatIfInfo     `json:"without_flagged,omitempty"`
-	Checks         []checks.Result `json:"checks"`
-	Verdict        checks.Status   `json:"verdict"`
+	Excluded       *ExcludedInfo `json:"excluded,omitempty"`
+	WithoutFlagged *WhatIfInfo   `json:"without_flagged,omitempty"`
+	// Imputation: see summary_impute.go.
+	Imputation *ImputationInfo `json:"imputation,omitempty"`
+	Checks     []checks.Result `json:"checks"`
+	Verdict    checks.Status   `json:"verdict"`
 }
 
 type ToolInfo struct {
@@ -468,6 +470,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		Review:         reviewInfo(audit.Review, results),
 		Excluded:       excludedInfo(res),
 		WithoutFlagged: whatIfInfo(res),
+		Imputation:     imputationInfo(res),
 		Checks:         jsonChecks(results),
 		Verdict:        checks.Verdict(results),
 	}

@@ -81,6 +81,11 @@ func runApply(args []string, stdout, stderr io.Writer) (int, error) {
 	if err != nil {
 		return 0, err
 	}
+	if read.Missing == intake.MissingIterative {
+		// New samples are scored one by one against a fixed model, which
+		// gives the imputation no table to learn from.
+		return 0, usagef("--missing iterative imputes within the table being analysed; apply scores new samples against a saved model, so use --missing mean (the model's means) or drop")
+	}
 	level, _ := f.failLevel()
 	formats, ropt, _ := f.reportOptions(time.Now())
 	model, err := analysis.LoadModel(modelPath)

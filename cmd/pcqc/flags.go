@@ -92,10 +92,13 @@ const auditFlagHelp = `Input:
   --group COL         label column used to colour plots; never a variable
   --columns a,b,c     analyse only these variables
   --drop a,b          leave these columns out
-  --missing POLICY    fail | drop | mean (default fail). fail stops at the first
-                      missing cell; drop removes rows with a missing cell; mean
-                      replaces a missing cell by its column's mean (after the
-                      transform), so it sits at zero after centring
+  --missing POLICY    fail | drop | mean | iterative (default fail). fail stops
+                      at the first missing cell; drop removes rows with a
+                      missing cell; mean replaces a missing cell by its
+                      column's mean (after the transform), so it sits at zero
+                      after centring; iterative imputes missing cells by
+                      regularised iterative PCA (Josse & Husson 2012), with
+                      the number of components chosen by cross-validation
                       Missing cells are empty, NA, N/A, #N/A, NaN or null.
   --censored POLICY   fail | half | sqrt2 (default fail): cells written as a
                       limit, <0.05 or >2000. fail stops at the first; half
@@ -252,7 +255,7 @@ func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
 	opt.Encoding = enc
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
-	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean}); err != nil {
+	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean, intake.MissingIterative}); err != nil {
 		return opt, err
 	}
 	if opt.Censored, err = oneOf("censored", f.censored, intake.CensorPolicies); err != nil {
