@@ -73,6 +73,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		}
 	}
 	t := tr.newTable()
+	tr.recordMissing(t)
 	if err := tr.handleMissing(t); err != nil {
 		return nil, err
 	}
@@ -550,6 +551,7 @@ func (r *tableReader) keepVariables(t *Table) error {
 		values = values[:n*q]
 	}
 	t.MissingAt = remapVars(t.MissingAt, keepCols, p)
+	r.keepMissingCounts(t, keepCols)
 	t.Variables = make([]string, len(keepCols))
 	t.Columns = make([]int, len(keepCols))
 	for c, k := range keepCols {
