@@ -19,6 +19,8 @@ type Reference struct {
 
 // bibliography holds every work the report may cite, keyed for reuse.
 var bibliography = map[string]Reference{
+	"bijlsma2006": {Citation: "Bijlsma, S., Bobeldijk, I., Verheij, E. R., Ramaker, R., Kochhar, S., Macdonald, I. A., van Ommen, B. & Smilde, A. K. (2006). Large-scale human metabolomics studies: a strategy for data (pre-) processing and validation. Analytical Chemistry 78: 567–574.",
+		BibTeX: `@article{bijlsma2006, author = {Bijlsma, Sabina and Bobeldijk, Ivana and Verheij, Elwin R. and Ramaker, Raymond and Kochhar, Sunil and Macdonald, Ian A. and van Ommen, Ben and Smilde, Age K.}, title = {Large-scale human metabolomics studies: a strategy for data (pre-) processing and validation}, journal = {Analytical Chemistry}, volume = {78}, number = {2}, pages = {567--574}, year = {2006}}`},
 	"jolliffe2016": {Citation: "Jolliffe, I. T. & Cadima, J. (2016). Principal component analysis: a review and recent developments. Philosophical Transactions of the Royal Society A 374: 20150202.",
 		BibTeX: `@article{jolliffe2016, author = {Jolliffe, Ian T. and Cadima, Jorge}, title = {Principal component analysis: a review and recent developments}, journal = {Philosophical Transactions of the Royal Society A}, volume = {374}, number = {2065}, pages = {20150202}, year = {2016}}`},
 	"vandenberg2006": {Citation: "van den Berg, R. A., Hoefsloot, H. C. J., Westerhuis, J. A., Smilde, A. K. & van der Werf, M. J. (2006). Centering, scaling, and transformations: improving the biological information content of metabolomics data. BMC Genomics 7: 142.",
