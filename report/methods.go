@@ -165,7 +165,7 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	add(dataSentence(res, meta))
 	add(rowsSentence(res.Table), exclusionMethodSentence(res))
 	add(exclusionSentences(res.Table.DroppedVariables)...)
-	add(preprocessingSentence(res), imputationSentence(res.Table))
+	add(preprocessingSentence(res), imputationSentence(res.Table), missingListSentence(res.Table))
 	add(decompositionSentence(res), verificationSentence(res))
 	add(componentSentences(res)...)
 	add(outlierSentences(res)...)
@@ -210,6 +210,29 @@ func imputationSentence(t *intake.Table) string {
 		return fmt.Sprintf("The one missing value was replaced by the mean of its variable%s, before centring.", scale)
 	}
 	return fmt.Sprintf("The %d missing values were replaced by the mean of their variable%s, before centring.", n, scale)
+}
+
+// missingListSentence says where the dropped samples or the imputed cells
+// are listed, with their counts, so that a reader of the methods can find
+// which data the analysis did not observe.
+func missingListSentence(t *intake.Table) string {
+	switch {
+	case t.MissingCells == 0:
+		return ""
+	case t.RowsDropped == 1:
+		return fmt.Sprintf("The sample dropped and the variables it lacked are listed in the Data section and in %s.", missingBySampleCSV)
+	case t.RowsDropped > 1:
+		return fmt.Sprintf("The %d samples dropped and the variables each lacked are listed in the Data section and in %s.",
+			t.RowsDropped, missingBySampleCSV)
+	case t.ImputedCells > 0:
+		what := fmt.Sprintf("The %d cells imputed, with the values used, are", t.ImputedCells)
+		if t.ImputedCells == 1 {
+			what = "The cell imputed, with the value used, is"
+		}
+		return fmt.Sprintf("%s listed in the Data section and in %s; the missing shares per variable and per sample are in %s and %s.",
+			what, imputedCellsCSV, missingByVariableCSV, missingBySampleCSV)
+	}
+	return ""
 }
 
 // exclusionSentences list every variable left out, grouped by reason, in

@@ -65,6 +65,7 @@ type Summary struct {
 	// Excluded and WithoutFlagged: see exclude.go.
 	Excluded       *ExcludedInfo   `json:"excluded,omitempty"`
 	WithoutFlagged *WhatIfInfo     `json:"without_flagged,omitempty"`
+	Missing        MissingInfo     `json:"missing"` // see missing.go
 	Checks         []checks.Result `json:"checks"`
 	Verdict        checks.Status   `json:"verdict"`
 }
@@ -458,6 +459,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		Review:         reviewInfo(audit.Review, results),
 		Excluded:       excludedInfo(res),
 		WithoutFlagged: whatIfInfo(res),
+		Missing:        missingInfo(res),
 		Checks:         jsonChecks(results),
 		Verdict:        checks.Verdict(results),
 	}
@@ -504,6 +506,9 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 		if err := writeCSV(join(f.name), f.rows); err != nil {
 			return err
 		}
+	}
+	if err := writeMissingTables(join, res); err != nil {
+		return err
 	}
 	if err := writeScores(join("scores.csv"), res.Table, res.Scores); err != nil {
 		return err
