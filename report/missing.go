@@ -49,31 +49,41 @@ type MissingInfo struct {
 // 12 significant digits: recovered from the preprocessed matrix it may
 // differ from the value used in its last bits, which no reader needs.
 func imputedCells(res *analysis.Result) []intake.FilledCell {
-	cells := res.ImputedCells()
+	return roundCells(res.ImputedCells())
+}
+
+// batchImputedCells lists the cells of a new batch filled with the
+// training means; apply never preprocesses the batch's matrix in place.
+func batchImputedCells(t *intake.Table) []intake.FilledCell {
+	return roundCells(t.FilledCells(func(i, j int) float64 { return t.X.At(i, j) }))
+}
+
+func roundCells(cells []intake.FilledCell) []intake.FilledCell {
 	for i := range cells {
 		cells[i].Value, _ = strconv.ParseFloat(strconv.FormatFloat(cells[i].Value, 'g', 12, 64), 64)
 	}
 	return cells
 }
 
-func missingInfo(res *analysis.Result) MissingInfo {
-	t := res.Table
+func missingInfo(t *intake.Table, cells []intake.FilledCell) MissingInfo {
 	m := MissingInfo{Policy: string(t.Missing), Cells: t.MissingCells,
 		ByVariable: t.MissingByVariable(), BySample: t.MissingBySample(),
-		Dropped: t.DroppedRows, Imputed: imputedCells(res)}
+		Dropped: t.DroppedRows, Imputed: cells}
 	if m.BySample == nil {
 		m.BySample = []intake.SampleMissing{}
 	}
 	if m.Dropped == nil {
 		m.Dropped = []intake.DroppedRow{}
 	}
+	if m.Imputed == nil {
+		m.Imputed = []intake.FilledCell{}
+	}
 	return m
 }
 
 // writeMissingTables writes the three lists as CSV when any cell was
 // missing; a table without gaps gets none of them.
-func writeMissingTables(join func(string) string, res *analysis.Result) error {
-	t := res.Table
+func writeMissingTables(join func(string) string, t *intake.Table, cells []intake.FilledCell) error {
 	if t.MissingCells == 0 {
 		return nil
 	}
@@ -90,7 +100,7 @@ func writeMissingTables(join func(string) string, res *analysis.Result) error {
 		name string
 		rows [][]string
 	}{{missingByVariableCSV, vars}, {missingBySampleCSV, samples}}
-	if cells := imputedCells(res); len(cells) > 0 {
+	if len(cells) > 0 {
 		rows := [][]string{{"sample", "variable", "line", "column", "value_used"}}
 		for _, c := range cells {
 			rows = append(rows, []string{c.ID, c.Variable, strconv.Itoa(c.Line), strconv.Itoa(c.Column), strconv.FormatFloat(c.Value, 'g', -1, 64)})
@@ -115,7 +125,8 @@ func formatShare(x float64) string { return strconv.FormatFloat(x, 'f', 6, 64) }
 // MissingBlock is the report's account of the missing cells; Shown is
 // false when there were none.
 type MissingBlock struct {
-	Shown bool
+	Shown    bool
+	RowsRead int
 	// Variables with any missing cell, worst first.
 	VarHeader    []string
 	VarRows      [][]string
@@ -133,12 +144,11 @@ type MissingBlock struct {
 	ImputedTruncated string
 }
 
-func missingBlock(res *analysis.Result) MissingBlock {
-	t := res.Table
+func missingBlock(t *intake.Table, cells []intake.FilledCell, training bool) MissingBlock {
 	if t.MissingCells == 0 {
 		return MissingBlock{}
 	}
-	b := MissingBlock{Shown: true, VarHeader: []string{"Variable", "Missing cells", "Share of rows read"}}
+	b := MissingBlock{Shown: true, RowsRead: t.RowsRead, VarHeader: []string{"Variable", "Missing cells", "Share of rows read"}}
 	var vars []intake.VariableMissing
 	for _, v := range t.MissingByVariable() {
 		if v.Cells > 0 {
@@ -163,12 +173,14 @@ func missingBlock(res *analysis.Result) MissingBlock {
 	}
 	b.SampleTruncated = truncatedNote(len(samples), missingSamplesShown, "samples with missing cells", missingBySampleCSV)
 
-	cells := imputedCells(res)
 	if len(cells) == 0 {
 		return b
 	}
 	how := "the mean of the variable's observed values"
-	if t.Missing == intake.MissingIterative {
+	switch {
+	case training:
+		how = "the training mean of the variable"
+	case t.Missing == intake.MissingIterative:
 		how = "iterative PCA"
 	}
 	b.ImputedNote = fmt.Sprintf("%s imputed by %s; the values used, on the transformed scale:", countNoun(len(cells), "cell"), how)

@@ -152,3 +152,89 @@ func TestNoMissingNoLists(t *testing.T) {
 		t.Errorf("summary.json lacks empty missing lists:\n%s", raw)
 	}
 }
+
+// The lists render in all three formats, and hostile ids and variable
+// names in them stay literal text: they add no heading, link or markup.
+func TestMissingListsRender(t *testing.T) {
+	skipRenderingWhenShort(t)
+	ids := plainIDs
+	ids[1] = "s2\n## Verdict"            // a missing a
+	ids[4] = "<b>s5</b> | [x](y) `tick`" // missing b and c
+	hostileB := "b\n# fake"
+	audit := gappyAudit(t, gappyCSV(ids, hostileB), intake.MissingMean)
+	dir := t.TempDir()
+	opt := ReportOptions{Title: "Gappy audit", Date: "2026-01-02"}
+	if err := WriteReport(dir, audit, testMeta, opt, allFormats); err != nil {
+		t.Fatal(err)
+	}
+	md, _ := os.ReadFile(filepath.Join(dir, "report.md"))
+	var sub []string
+	for _, h := range headings(t, md) {
+		if strings.HasPrefix(h, "1 ") || strings.HasPrefix(h, "3 ") {
+			sub = append(sub, h)
+		}
+	}
+	if want := []string{"1 Gappy audit", "3 What the checks that did not pass found", "3 Missing cells", "3 References", "3 What each check found"}; !reflect.DeepEqual(sub, want) {
+		t.Errorf("headings of levels 1 and 3: %q, want %q", sub, want)
+	}
+	elements, _, text := htmlReport(t, filepath.Join(dir, "report.html"))
+	for _, tag := range []string{"b", "a", "h4"} {
+		if elements[tag] > 0 {
+			t.Errorf("report.html has %d <%s> elements", elements[tag], tag)
+		}
+	}
+	text = normal(text)
+	for _, s := range []string{literal(ids[1]), literal(ids[4]), literal(hostileB), "3 samples with missing cells, worst first:",
+		"4 cells imputed by the mean of the variable's observed values", "34.1667", "4.71429"} {
+		if !strings.Contains(text, s) {
+			t.Errorf("report.html lacks %q", s)
+		}
+	}
+	pdf := normal(pdftotext(t, filepath.Join(dir, "report.pdf")))
+	for _, s := range []string{"Missing cells", literal(ids[4]), "s2 ## Verdict", "34.1667", "imputed-cells.csv"} {
+		if !strings.Contains(pdf, s) {
+			t.Errorf("report.pdf lacks %q", s)
+		}
+	}
+}
+
+// A new batch scored by apply lists its cells filled with the training
+// means, and its missing shares, in summary.json and the CSV files.
+func TestApplyListsBatchImputedCells(t *testing.T) {
+	audit := gappyAudit(t, gappyCSV(plainIDs, "b"), intake.MissingMean)
+	m := analysis.NewModel(audit.Result, "test")
+	batch, err := intake.ReadTableFrom("new.csv", strings.NewReader("id,a,b,c\nn1,2,,5\nn2,3,40,4\nn3,,35,\nn4,5,60,3\n"),
+		intake.ReadOptions{Missing: intake.MissingMean, Columns: m.Variables, MinRows: 1, KeepConstant: true, ImputeWith: m.Means})
+	if err != nil {
+		t.Fatal(err)
+	}
+	app := analysis.Apply(m, batch)
+	run := ApplyRun{App: app, Checks: checks.RunAll(checks.Input{Apply: app})}
+	dir := t.TempDir()
+	if err := WriteApplyTables(dir, run, testMeta); err != nil {
+		t.Fatal(err)
+	}
+	got := buildApplySummary(run, testMeta).Input.Missing
+	// The training means are the means of the observed training values
+	// (mean imputation keeps them): a = 29/7, b = 205/6, c = 33/7.
+	want := []struct {
+		id, v string
+		line  int
+		value float64
+	}{{"n1", "b", 2, 205.0 / 6}, {"n3", "a", 4, 29.0 / 7}, {"n3", "c", 4, 33.0 / 7}}
+	if len(got.Imputed) != len(want) {
+		t.Fatalf("imputed %+v", got.Imputed)
+	}
+	for i, w := range want {
+		c := got.Imputed[i]
+		if c.ID != w.id || c.Variable != w.v || c.Line != w.line || math.Abs(c.Value-w.value) > 1e-11*w.value {
+			t.Errorf("cell %d: %+v, want %+v", i, c, w)
+		}
+	}
+	if len(got.BySample) != 2 || got.BySample[0].ID != "n3" || got.BySample[0].Cells != 2 {
+		t.Errorf("by sample %+v", got.BySample)
+	}
+	if rows := readCSVFile(t, filepath.Join(dir, imputedCellsCSV)); len(rows) != 4 || rows[1][0] != "n1" {
+		t.Errorf("%s: %v", imputedCellsCSV, rows)
+	}
+}

@@ -361,7 +361,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 
 	d.Review = reviewBlock(audit.Review, results)
 	d.Data = dataBlock(res)
-	d.Missing = missingBlock(res)
+	d.Missing = missingBlock(res.Table, imputedCells(res), false)
 	d.Components = componentsBlock(res)
 	d.Loadings = loadingsBlock(res)
 	d.Scores = scoresBlock(res)

@@ -459,7 +459,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		Review:         reviewInfo(audit.Review, results),
 		Excluded:       excludedInfo(res),
 		WithoutFlagged: whatIfInfo(res),
-		Missing:        missingInfo(res),
+		Missing:        missingInfo(t, imputedCells(res)),
 		Checks:         jsonChecks(results),
 		Verdict:        checks.Verdict(results),
 	}
@@ -507,7 +507,7 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 			return err
 		}
 	}
-	if err := writeMissingTables(join, res); err != nil {
+	if err := writeMissingTables(join, res.Table, imputedCells(res)); err != nil {
 		return err
 	}
 	if err := writeScores(join("scores.csv"), res.Table, res.Scores); err != nil {
