@@ -48,6 +48,14 @@ const (
 	// practice).
 	ImputationChangeLimit  = analysis.ImputeTolerance
 	ImputationIterationCap = analysis.ImputeMaxIterations
+	// VariableMissingShareLimit: a variable missing in more than 20 % of
+	// the rows read is flagged, whatever the policy: the "80 % rule" keeps
+	// a variable only when it is observed in at least 80 % of the samples
+	// (Bijlsma et al. 2006, Anal. Chem. 78:567–574, after Smilde et al.
+	// 2005, Anal. Chem. 77:6729–6736; from memory, not checked against the
+	// paper's text). Imputing beyond that share invents most of what the
+	// variable contributes to the components.
+	VariableMissingShareLimit = 0.20
 	// MinSamplesPerVariable: n ≥ 5p (common practice; e.g. Gorsuch 1983,
 	// Factor Analysis, 2nd ed., recommends at least five subjects per
 	// variable). Information only: sample-size never warns on it, since no

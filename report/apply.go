@@ -60,6 +60,7 @@ type ApplyInput struct {
 	GroupColumn  *string                  `json:"group_column"`
 	Ignored      []string                 `json:"columns_ignored"`
 	Dropped      []intake.DroppedVariable `json:"variables_dropped"`
+	Missing      MissingInfo              `json:"missing"` // see missing.go
 }
 
 type ApplyModelInfo struct {
@@ -92,7 +93,7 @@ func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
 	s := ApplySummary{
 		Tool: ToolInfo{Name: "pcqc", Version: meta.Version},
 		Input: ApplyInput{File: t.File, SHA256: t.SHA256, Rows: t.Rows(), RowsRead: t.RowsRead, RowsDropped: t.RowsDropped,
-			MissingCells: t.MissingCells, ImputedCells: t.ImputedCells,
+			MissingCells: t.MissingCells, ImputedCells: t.ImputedCells, Missing: missingInfo(t, batchImputedCells(t)),
 			IDColumn: optional(t.IDColumn), GroupColumn: optional(t.GroupColumn), Ignored: app.Extra, Dropped: t.DroppedVariables},
 		Model: ApplyModelInfo{AuditDir: run.AuditDir, File: m.Input.File, SHA256: m.Input.SHA256, Rows: m.Input.Rows, Retained: m.Retained,
 			Variables: m.Variables, Transform: string(m.Transform), Scaling: string(m.Scaling), PCQCVersion: m.Tool.Version},
@@ -161,6 +162,9 @@ func WriteApplyTables(dir string, run ApplyRun, meta Meta) error {
 			return err
 		}
 	}
+	if err := writeMissingTables(join, app.Table, batchImputedCells(app.Table)); err != nil {
+		return err
+	}
 	return writeJSON(join("summary.json"), buildApplySummary(run, meta))
 }
 
@@ -172,6 +176,7 @@ type ApplyDocument struct {
 	Checks                       []CheckRow
 
 	NewFile, NewSHA256   string
+	MissingLists         MissingBlock
 	Rows, RowsRead       int
 	Missing              string // how missing cells were handled
 	ModelFile, ModelHash string
@@ -235,6 +240,7 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 	default:
 		d.Missing = fmt.Sprintf("%d missing cells replaced by the training means", t.ImputedCells)
 	}
+	d.MissingLists = missingBlock(t, batchImputedCells(t), true)
 	if len(app.Extra) > 0 {
 		d.Ignored = strings.Join(app.Extra, ", ")
 	}

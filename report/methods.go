@@ -21,6 +21,8 @@ type Reference struct {
 var bibliography = map[string]Reference{
 	"josse2012": {Citation: "Josse, J. & Husson, F. (2012). Handling missing values in exploratory multivariate data analysis methods. Journal de la Société Française de Statistique 153: 79–99.",
 		BibTeX: `@article{josse2012, author = {Josse, Julie and Husson, Fran{\c{c}}ois}, title = {Handling missing values in exploratory multivariate data analysis methods}, journal = {Journal de la Soci{\'e}t{\'e} Fran{\c{c}}aise de Statistique}, volume = {153}, number = {2}, pages = {79--99}, year = {2012}}`},
+	"bijlsma2006": {Citation: "Bijlsma, S., Bobeldijk, I., Verheij, E. R., Ramaker, R., Kochhar, S., Macdonald, I. A., van Ommen, B. & Smilde, A. K. (2006). Large-scale human metabolomics studies: a strategy for data (pre-) processing and validation. Analytical Chemistry 78: 567–574.",
+		BibTeX: `@article{bijlsma2006, author = {Bijlsma, Sabina and Bobeldijk, Ivana and Verheij, Elwin R. and Ramaker, Raymond and Kochhar, Sunil and Macdonald, Ian A. and van Ommen, Ben and Smilde, Age K.}, title = {Large-scale human metabolomics studies: a strategy for data (pre-) processing and validation}, journal = {Analytical Chemistry}, volume = {78}, number = {2}, pages = {567--574}, year = {2006}}`},
 	"jolliffe2016": {Citation: "Jolliffe, I. T. & Cadima, J. (2016). Principal component analysis: a review and recent developments. Philosophical Transactions of the Royal Society A 374: 20150202.",
 		BibTeX: `@article{jolliffe2016, author = {Jolliffe, Ian T. and Cadima, Jorge}, title = {Principal component analysis: a review and recent developments}, journal = {Philosophical Transactions of the Royal Society A}, volume = {374}, number = {2065}, pages = {20150202}, year = {2016}}`},
 	"vandenberg2006": {Citation: "van den Berg, R. A., Hoefsloot, H. C. J., Westerhuis, J. A., Smilde, A. K. & van der Werf, M. J. (2006). Centering, scaling, and transformations: improving the biological information content of metabolomics data. BMC Genomics 7: 142.",
@@ -171,7 +173,7 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 	add(rowsSentence(res.Table), exclusionMethodSentence(res))
 	add(exclusionSentences(res.Table.DroppedVariables)...)
 	add(censoringSentence(res.Table))
-	add(preprocessingSentence(res), imputationSentence(res.Table), iterativeImputationSentence(res))
+	add(preprocessingSentence(res), imputationSentence(res.Table), iterativeImputationSentence(res), missingListSentence(res.Table))
 	add(decompositionSentence(res), verificationSentence(res))
 	add(componentSentences(res)...)
 	add(outlierSentences(res)...)
@@ -252,6 +254,29 @@ func imputationSentence(t *intake.Table) string {
 		return fmt.Sprintf("The one missing value was replaced by the mean of its variable%s, before centring.", scale)
 	}
 	return fmt.Sprintf("The %d missing values were replaced by the mean of their variable%s, before centring.", n, scale)
+}
+
+// missingListSentence says where the dropped samples or the imputed cells
+// are listed, with their counts, so that a reader of the methods can find
+// which data the analysis did not observe.
+func missingListSentence(t *intake.Table) string {
+	switch {
+	case t.MissingCells == 0:
+		return ""
+	case t.RowsDropped == 1:
+		return fmt.Sprintf("The sample dropped and the variables it lacked are listed in the Data section and in %s.", missingBySampleCSV)
+	case t.RowsDropped > 1:
+		return fmt.Sprintf("The %d samples dropped and the variables each lacked are listed in the Data section and in %s.",
+			t.RowsDropped, missingBySampleCSV)
+	case t.ImputedCells > 0:
+		what := fmt.Sprintf("The %d cells imputed, with the values used, are", t.ImputedCells)
+		if t.ImputedCells == 1 {
+			what = "The cell imputed, with the value used, is"
+		}
+		return fmt.Sprintf("%s listed in the Data section and in %s; the missing shares per variable and per sample are in %s and %s.",
+			what, imputedCellsCSV, missingByVariableCSV, missingBySampleCSV)
+	}
+	return ""
 }
 
 // exclusionSentences list every variable left out, grouped by reason, in

@@ -108,6 +108,20 @@ func TestExclusionAndMissingSentences(t *testing.T) {
 		{intake.Table{ImputedCells: 5, Transform: intake.TransformNone},
 			"", "The 5 missing values were replaced by the mean of their variable, before centring."},
 	}
+	lists := []struct {
+		t    intake.Table
+		want string
+	}{
+		{intake.Table{}, ""},
+		{intake.Table{MissingCells: 4, RowsDropped: 3}, "The 3 samples dropped and the variables each lacked are listed in the Data section and in missing-by-sample.csv."},
+		{intake.Table{MissingCells: 1, ImputedCells: 1}, "The cell imputed, with the value used, is listed in the Data section"},
+		{intake.Table{MissingCells: 5, ImputedCells: 5}, "The 5 cells imputed, with the values used, are listed in the Data section and in imputed-cells.csv"},
+	}
+	for _, c := range lists {
+		if got := missingListSentence(&c.t); !strings.HasPrefix(got, c.want) || (c.want == "") != (got == "") {
+			t.Errorf("list sentence for %+v: %q, want it to start %q", c.t, got, c.want)
+		}
+	}
 	for _, c := range tables {
 		if got := rowsSentence(&c.t); got != c.rows {
 			t.Errorf("rows %d: %q, want %q", c.t.RowsDropped, got, c.rows)

@@ -26,6 +26,7 @@ type Document struct {
 	Checks  []CheckRow
 
 	Data       DataBlock
+	Missing    MissingBlock
 	Components ComponentsBlock
 	Loadings   LoadingsBlock
 	Scores     ScoresBlock
@@ -362,6 +363,7 @@ func BuildDocument(audit Audit, meta Meta, opt ReportOptions) *Document {
 
 	d.Review = reviewBlock(audit.Review, results)
 	d.Data = dataBlock(res)
+	d.Missing = missingBlock(res.Table, imputedCells(res), false)
 	d.Components = componentsBlock(res)
 	d.Loadings = loadingsBlock(res)
 	d.Scores = scoresBlock(res)
@@ -461,6 +463,8 @@ func dataBlock(res *analysis.Result) DataBlock {
 		b.Missing = fmt.Sprintf("%d missing cells; the %d rows holding them were dropped (--missing drop)", t.MissingCells, t.RowsDropped)
 	case t.Missing == intake.MissingMean:
 		b.Missing = fmt.Sprintf("%d missing cells replaced by the mean of their column's transformed values (--missing mean)", t.ImputedCells)
+	case t.Missing == intake.MissingIterative:
+		b.Missing = fmt.Sprintf("%d missing cells imputed by iterative PCA (--missing iterative)", t.ImputedCells)
 	}
 	b.Censored = censoredBlock(t)
 	b.Transform = transformText(t.Transform)

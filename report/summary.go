@@ -67,6 +67,7 @@ type Summary struct {
 	WithoutFlagged *WhatIfInfo   `json:"without_flagged,omitempty"`
 	// Imputation: see summary_impute.go.
 	Imputation *ImputationInfo `json:"imputation,omitempty"`
+	Missing    MissingInfo     `json:"missing"` // see missing.go
 	Checks     []checks.Result `json:"checks"`
 	Verdict    checks.Status   `json:"verdict"`
 }
@@ -471,6 +472,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		Excluded:       excludedInfo(res),
 		WithoutFlagged: whatIfInfo(res),
 		Imputation:     imputationInfo(res),
+		Missing:        missingInfo(t, imputedCells(res)),
 		Checks:         jsonChecks(results),
 		Verdict:        checks.Verdict(results),
 	}
@@ -523,6 +525,9 @@ func WriteTables(dir string, audit Audit, meta Meta) error {
 		if err := writeCSV(join(f.name), f.rows); err != nil {
 			return err
 		}
+	}
+	if err := writeMissingTables(join, res.Table, imputedCells(res)); err != nil {
+		return err
 	}
 	if err := writeScores(join("scores.csv"), res.Table, res.Scores); err != nil {
 		return err

@@ -1,6 +1,7 @@
 package intake
 
 import (
+	"cmp"
 	"slices"
 
 	"gonum.org/v1/gonum/mat"
@@ -87,5 +88,26 @@ func (t *Table) SelectRows(rows []int) *Table {
 		x = &mat.Dense{}
 	}
 	out.X = x
+	out.MissingAt = selectCells(t.MissingAt, rows)
 	return &out
+}
+
+// selectCells renumbers the rows of cells to their places in rows (the
+// rows selected, in order), leaving out the cells of rows not selected.
+func selectCells(cells []CellRef, rows []int) []CellRef {
+	if len(cells) == 0 {
+		return nil
+	}
+	at := make(map[int]int, len(rows))
+	for r, i := range rows {
+		at[i] = r
+	}
+	var out []CellRef
+	for _, c := range cells {
+		if r, ok := at[c.Row]; ok {
+			out = append(out, CellRef{Row: r, Var: c.Var})
+		}
+	}
+	slices.SortFunc(out, func(a, b CellRef) int { return cmp.Or(a.Row-b.Row, a.Var-b.Var) })
+	return out
 }

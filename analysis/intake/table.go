@@ -154,6 +154,14 @@ type Table struct {
 	SkippedLines   int
 	CommentLines   int
 	GroupedNumbers int
+	// MissingPerVariable counts, per variable (aligned with Variables),
+	// its missing cells among the rows as read, before any row was
+	// dropped. MissingRows lists, in file order, every row as read that
+	// had a missing cell among the analysed variables, naming them; under
+	// MissingDrop these are the rows DroppedRows lists. Both describe the
+	// file, so they survive SelectRows unchanged.
+	MissingPerVariable []int
+	MissingRows        []DroppedRow
 
 	DroppedVariables []DroppedVariable
 	Transform        Transform

@@ -83,6 +83,7 @@ func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table
 		}
 	}
 	t := tr.newTable()
+	tr.recordMissing(t)
 	if err := tr.handleMissing(t); err != nil {
 		return nil, err
 	}
@@ -584,6 +585,7 @@ func (r *tableReader) keepVariables(t *Table) error {
 	}
 	t.MissingAt = remapVars(t.MissingAt, keepCols, p)
 	t.Censored = placeCensored(s.censored, s.lines, keepCols, p)
+	r.keepMissingCounts(t, keepCols)
 	t.Variables = make([]string, len(keepCols))
 	t.Columns = make([]int, len(keepCols))
 	if r.units != nil {
