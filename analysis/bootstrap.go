@@ -63,6 +63,12 @@ type Stability struct {
 	// undefined, or when the leave-one-out work exceeds InfluenceBudget.
 	EigenvaluesBCa []Interval
 	PercentBCa     []Interval
+
+	// Scheme is SchemeFull or, for very tall tables, SchemeBLB; then
+	// SubsetSize (b), Subsets (s) and PerSubset (r) describe the little
+	// bootstraps, and SwitchRows is the n from which the scheme is used.
+	Scheme                                     string
+	SubsetSize, Subsets, PerSubset, SwitchRows int
 }
 
 // ComponentStability summarises Tucker's congruence coefficient between the
@@ -114,6 +120,7 @@ type resampleResult struct {
 // drawn.
 type bootstrapper struct {
 	n, p, m, k int
+	total      int // the resamples' total weight: n, or the table's n for a little bootstrap
 	scaling    Scaling
 	z          *mat.Dense // preprocessed reference data
 	zt         []float64  // zᵀ, p × n row-major: each variable contiguous
@@ -146,9 +153,12 @@ type bootstrapper struct {
 // Resamples draw from their own random streams (seed, index), so the result
 // does not depend on threads.
 func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Progress) Stability {
-	st := Stability{Resamples: resamples}
+	st := Stability{Resamples: resamples, Scheme: SchemeFull}
 	if resamples <= 0 {
 		return st
+	}
+	if n, p := r.Z.Dims(); blbUsed(n, p, resamples) {
+		return bagOfLittleBootstraps(r, resamples, seed, threads, progress)
 	}
 	b := newBootstrapper(r)
 	n, p := b.n, b.p
@@ -234,7 +244,7 @@ func (st *Stability) bcaIntervals(r *Result, results []resampleResult, used []in
 func newBootstrapper(r *Result) *bootstrapper {
 	n, p := r.Z.Dims()
 	b := &bootstrapper{
-		n: n, p: p, m: r.Decomp.Components(), k: r.Retained,
+		n: n, p: p, m: r.Decomp.Components(), k: r.Retained, total: n,
 		scaling:  r.Prep.Scaling,
 		z:        r.Z,
 		refScale: r.Prep.Scales,
@@ -443,7 +453,7 @@ func (b *bootstrapper) tallResample(w *bootWorkspace, counts []int32) resampleRe
 	w.g = grow(w.g, p)
 	w.cross = grow(w.cross, p*p)
 	sqrtW := w.weights
-	nf := float64(n)
+	nf := float64(b.total)
 	for j := 0; j < p; j++ {
 		col := b.zt[j*n : (j+1)*n]
 		row := w.rows[j*nu : (j+1)*nu]

@@ -490,6 +490,12 @@ func InfluenceLimits(inf Influence, st Stability, seed uint64) []float64 {
 		return limits
 	}
 	p95, median := percentile(all, 95), percentile(all, 50)
+	if st.Scheme == SchemeBLB {
+		// Little bootstraps draw from subsets, not from every sample, and
+		// their angles are to the subset's own estimate: every sample gets
+		// the 95th percentile of all of them.
+		return limits
+	}
 	var cand []int
 	at := map[int]int{}
 	for i, a := range inf.Angle {
