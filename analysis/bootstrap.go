@@ -63,6 +63,12 @@ type Stability struct {
 	// undefined, or when the leave-one-out work exceeds InfluenceBudget.
 	EigenvaluesBCa []Interval
 	PercentBCa     []Interval
+
+	// Scheme is SchemeFull or, for very tall tables, SchemeBLB; then
+	// SubsetSize (b), Subsets (s) and PerSubset (r) describe the little
+	// bootstraps, and SwitchRows is the n from which the scheme is used.
+	Scheme                                     string
+	SubsetSize, Subsets, PerSubset, SwitchRows int
 }
 
 // ComponentStability summarises Tucker's congruence coefficient between the
@@ -114,6 +120,7 @@ type resampleResult struct {
 // drawn.
 type bootstrapper struct {
 	n, p, m, k int
+	total      int // the resamples' total weight: n, or the table's n for a little bootstrap
 	scaling    Scaling
 	z          *mat.Dense // preprocessed reference data
 	zt         []float64  // zᵀ, p × n row-major: each variable contiguous
@@ -149,9 +156,12 @@ type bootstrapper struct {
 // Resamples draw from their own random streams (seed, index), so the result
 // does not depend on threads.
 func Bootstrap(r *Result, resamples int, seed uint64, threads int, progress Progress) Stability {
-	st := Stability{Resamples: resamples}
+	st := Stability{Resamples: resamples, Scheme: SchemeFull}
 	if resamples <= 0 {
 		return st
+	}
+	if n, p := r.Z.Dims(); blbUsed(n, p, resamples) {
+		return bagOfLittleBootstraps(r, resamples, seed, threads, progress)
 	}
 	b := newBootstrapper(r)
 	n, p := b.n, b.p
@@ -237,7 +247,7 @@ func (st *Stability) bcaIntervals(r *Result, results []resampleResult, used []in
 func newBootstrapper(r *Result) *bootstrapper {
 	n, p := r.Z.Dims()
 	b := &bootstrapper{
-		n: n, p: p, m: r.Decomp.Components(), k: r.Retained,
+		n: n, p: p, m: r.Decomp.Components(), k: r.Retained, total: n,
 		scaling:  r.Prep.Scaling,
 		z:        r.Z,
 		refScale: r.Prep.Scales,
@@ -307,6 +317,32 @@ type bootWorkspace struct {
 	eig           mat.EigenSym
 	values        []float64
 	vecs          mat.Dense
+	top           topEigen
+}
+
+// leading sets w.values to all the eigenvalues of the symmetric d×d matrix
+// whose upper triangle is a (ascending) and returns the eigenvectors of the
+// k largest as columns, largest first: by the shortcut of leadingEigen, or
+// by the full decomposition where the shortcut declines.
+func (w *bootWorkspace) leading(a []float64, d, k int) (*mat.Dense, bool) {
+	if w.top.leadingEigen(a, d, k) {
+		w.values = w.top.vals
+		return &w.top.vecs, true
+	}
+	sym := mat.NewSymDense(d, a)
+	if !w.eig.Factorize(sym, true) {
+		return nil, false
+	}
+	w.values = w.eig.Values(grow(w.values, d))
+	w.vecs.Reset() // the size may change from call to call
+	w.eig.VectorsTo(&w.vecs)
+	lead := mat.NewDense(d, k, nil)
+	for c := 0; c < k; c++ {
+		for j := 0; j < d; j++ {
+			lead.Set(j, c, w.vecs.At(j, d-1-c))
+		}
+	}
+	return lead, true
 }
 
 func grow(s []float64, n int) []float64 {
@@ -424,7 +460,7 @@ func (b *bootstrapper) tallResample(w *bootWorkspace, counts []int32) resampleRe
 	w.g = grow(w.g, p)
 	w.cross = grow(w.cross, p*p)
 	sqrtW := w.weights
-	nf := float64(n)
+	nf := float64(b.total)
 	for j := 0; j < p; j++ {
 		col := b.zt[j*n : (j+1)*n]
 		row := w.rows[j*nu : (j+1)*nu]
@@ -461,22 +497,15 @@ func (b *bootstrapper) tallResample(w *bootWorkspace, counts []int32) resampleRe
 		}
 		total += w.cross[j*p+j]
 	}
-	sym := mat.NewSymDense(p, w.cross)
-	if !w.eig.Factorize(sym, true) {
+	lead, ok := w.leading(w.cross, p, b.k)
+	if !ok {
 		return resampleResult{}
 	}
-	w.values = w.eig.Values(grow(w.values, sym.SymmetricDim()))
-	w.eig.VectorsTo(&w.vecs)
 	res := resampleResult{ok: true, constant: constant, total: total / (nf - 1), eigen: make([]float64, b.m)}
 	for a := 0; a < b.m; a++ {
 		res.eigen[a] = math.Max(w.values[p-1-a], 0) / (nf - 1)
 	}
-	v := mat.NewDense(p, b.k, nil)
-	for a := 0; a < b.k; a++ {
-		for j := 0; j < p; j++ {
-			v.Set(j, a, w.vecs.At(j, p-1-a))
-		}
-	}
+	v := mat.DenseCopyOf(lead)
 	b.align(&res, v, nil)
 	res.loadings = v.RawMatrix().Data
 	return res
@@ -540,13 +569,13 @@ func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleRe
 	for r := 0; r < nu; r++ {
 		total += w.gram[r*nu+r]
 	}
-	sym := mat.NewSymDense(nu, w.gram)
-	if !w.eig.Factorize(sym, true) {
+	if k > nu {
 		return resampleResult{}
 	}
-	w.values = w.eig.Values(grow(w.values, sym.SymmetricDim()))
-	w.vecs.Reset() // the size changes from resample to resample
-	w.eig.VectorsTo(&w.vecs)
+	lead, ok := w.leading(w.gram, nu, k)
+	if !ok {
+		return resampleResult{}
+	}
 	res := resampleResult{ok: true, constant: constant, total: total / (nf - 1), eigen: make([]float64, b.m)}
 	for a := 0; a < b.m && a < nu; a++ {
 		res.eigen[a] = math.Max(w.values[nu-1-a], 0) / (nf - 1)
@@ -562,7 +591,7 @@ func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleRe
 		}
 		s := math.Sqrt(ev)
 		for r, i := range sel {
-			coef[i*k+a] = math.Sqrt(float64(counts[i])) * w.vecs.At(r, nu-1-a) / s
+			coef[i*k+a] = math.Sqrt(float64(counts[i])) * lead.At(r, a) / s
 		}
 	}
 	var v *mat.Dense
@@ -572,7 +601,7 @@ func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleRe
 		for a := 0; a < k; a++ {
 			s := math.Sqrt(w.values[nu-1-a])
 			for r := 0; r < nu; r++ {
-				u := w.vecs.At(r, nu-1-a) / s
+				u := lead.At(r, a) / s
 				for c := 0; c < cols; c++ {
 					h.Set(c, a, h.At(c, a)+u*w.rows[r*cols+c])
 				}

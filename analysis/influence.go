@@ -161,6 +161,8 @@ type looWorkspace struct {
 	eig     mat.EigenSym
 	vecs    mat.Dense
 	vals    []float64
+	top     topEigen
+	lead    *mat.Dense // d × k: column a is the eigenvector of the a-th largest eigenvalue
 }
 
 func (l *looSetup) prepare() {
@@ -294,7 +296,7 @@ func (l *looSetup) tallSample(w *looWorkspace, i int) looResult {
 	return l.decompose(w, mat.NewSymDense(p, w.a), 1, total, func(a int) []float64 {
 		col := make([]float64, p)
 		for j := range col {
-			col[j] = w.vecs.At(j, p-1-a)
+			col[j] = w.lead.At(j, a)
 		}
 		return col
 	})
@@ -307,6 +309,9 @@ func (l *looSetup) tallSample(w *looWorkspace, i int) looResult {
 func (l *looSetup) decompose(w *looWorkspace, sym *mat.SymDense, div, total float64, loading func(a int) []float64) looResult {
 	d := sym.SymmetricDim()
 	res := looResult{total: total / div, angle: math.NaN()}
+	if l.angles && w.top.leadingEigen(sym.RawSymmetric().Data, d, l.k) {
+		return l.finish(w, res, w.top.vals, &w.top.vecs, div, loading)
+	}
 	if !w.eig.Factorize(sym, l.angles) {
 		res.eigenvalues = make([]float64, min(l.n-2, l.p))
 		for a := range res.eigenvalues {
@@ -315,14 +320,32 @@ func (l *looSetup) decompose(w *looWorkspace, sym *mat.SymDense, div, total floa
 		return res
 	}
 	w.vals = w.eig.Values(grow(w.vals, d))
+	if !l.angles {
+		return l.finish(w, res, w.vals, nil, div, loading)
+	}
+	w.eig.VectorsTo(&w.vecs)
+	lead := mat.NewDense(d, l.k, nil)
+	for a := 0; a < l.k; a++ {
+		for j := 0; j < d; j++ {
+			lead.Set(j, a, w.vecs.At(j, d-1-a))
+		}
+	}
+	return l.finish(w, res, w.vals, lead, div, loading)
+}
+
+// finish fills res from all the eigenvalues vals (ascending) and, when
+// angles are computed, the leading eigenvectors lead (d × k, largest first).
+func (l *looSetup) finish(w *looWorkspace, res looResult, vals []float64, lead *mat.Dense, div float64, loading func(a int) []float64) looResult {
+	d := len(vals)
+	w.vals = vals
 	res.eigenvalues = make([]float64, min(l.n-2, l.p))
 	for a := range res.eigenvalues {
-		res.eigenvalues[a] = math.Max(w.vals[d-1-a], 0) / div
+		res.eigenvalues[a] = math.Max(vals[d-1-a], 0) / div
 	}
 	if !l.angles {
 		return res
 	}
-	w.eig.VectorsTo(&w.vecs)
+	w.lead = lead
 	res.change = make([]float64, l.k)
 	vi := mat.NewDense(l.p, l.k, nil)
 	for a := 0; a < l.k; a++ {
@@ -394,7 +417,7 @@ func (l *looSetup) wideSample(w *looWorkspace, i int) looResult {
 			return nil
 		}
 		for r := 0; r < d; r++ {
-			col[r] = w.vecs.At(r, d-1-a) / math.Sqrt(mu)
+			col[r] = w.lead.At(r, a) / math.Sqrt(mu)
 		}
 		out := make([]float64, p)
 		blas64.Gemv(blas.Trans, 1, wm, blas64.Vector{N: d, Inc: 1, Data: col}, 0, blas64.Vector{N: p, Inc: 1, Data: out})
@@ -467,6 +490,12 @@ func InfluenceLimits(inf Influence, st Stability, seed uint64) []float64 {
 		return limits
 	}
 	p95, median := percentile(all, 95), percentile(all, 50)
+	if st.Scheme == SchemeBLB {
+		// Little bootstraps draw from subsets, not from every sample, and
+		// their angles are to the subset's own estimate: every sample gets
+		// the 95th percentile of all of them.
+		return limits
+	}
 	var cand []int
 	at := map[int]int{}
 	for i, a := range inf.Angle {

@@ -17,6 +17,15 @@
 #
 # Needs Debian's python3-numpy (/usr/bin/python3). REF overrides the path of
 # ref_numpy.py.
+#
+# The issue's targets compare against numpy on OpenBLAS. For that measurement
+# only (CI needs neither), install Debian's libopenblas0-pthread and select it
+# for libblas.so.3 / liblapack.so.3:
+#   apt-get install libopenblas0-pthread
+#   update-alternatives --set libblas.so.3-x86_64-linux-gnu \
+#     /usr/lib/x86_64-linux-gnu/openblas-pthread/libblas.so.3
+#   (and likewise liblapack.so.3-x86_64-linux-gnu)
+# The last line of the output names the BLAS numpy loaded.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 runs=3

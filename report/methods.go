@@ -87,6 +87,8 @@ var bibliography = map[string]Reference{
 		BibTeX: `@article{efron1979, author = {Efron, Bradley}, title = {Bootstrap methods: another look at the jackknife}, journal = {Annals of Statistics}, volume = {7}, number = {1}, pages = {1--26}, year = {1979}}`},
 	"fisher2016": {Citation: "Fisher, A., Caffo, B., Schwartz, B. & Zipunnikov, V. (2016). Fast, exact bootstrap principal component analysis for p > 1 million. Journal of the American Statistical Association 111: 846–860.",
 		BibTeX: `@article{fisher2016, author = {Fisher, Aaron and Caffo, Brian and Schwartz, Brian and Zipunnikov, Vadim}, title = {Fast, exact bootstrap principal component analysis for $p > 1$ million}, journal = {Journal of the American Statistical Association}, volume = {111}, number = {514}, pages = {846--860}, year = {2016}}`},
+	"kleiner2014": {Citation: "Kleiner, A., Talwalkar, A., Sarkar, P. & Jordan, M. I. (2014). A scalable bootstrap for massive data. Journal of the Royal Statistical Society, Series B 76: 795–816.",
+		BibTeX: `@article{kleiner2014, author = {Kleiner, Ariel and Talwalkar, Ameet and Sarkar, Purnamrita and Jordan, Michael I.}, title = {A scalable bootstrap for massive data}, journal = {Journal of the Royal Statistical Society, Series B}, volume = {76}, number = {4}, pages = {795--816}, year = {2014}}`},
 	"tucker1951": {Citation: "Tucker, L. R. (1951). A Method for Synthesis of Factor Analysis Studies. Personnel Research Section Report 984, Department of the Army, Washington, DC.",
 		BibTeX: `@techreport{tucker1951, author = {Tucker, Ledyard R.}, title = {A Method for Synthesis of Factor Analysis Studies}, institution = {Department of the Army, Personnel Research Section}, number = {984}, address = {Washington, DC}, year = {1951}}`},
 	"lorenzoseva2006": {Citation: "Lorenzo-Seva, U. & ten Berge, J. M. F. (2006). Tucker's congruence coefficient as a meaningful index of factor similarity. Methodology 2: 57–64.",
@@ -551,6 +553,9 @@ func stabilitySentences(res *analysis.Result) []string {
 	s := fmt.Sprintf("Loading stability was assessed with %d bootstrap resamples (Efron 1979) of the whole pipeline, each redoing the preprocessing", st.Used)
 	if res.Decomp.Rows < res.Decomp.Vars {
 		s += ", computed exactly in the n-dimensional row space (Fisher et al. 2016)"
+	}
+	if st.Scheme == analysis.SchemeBLB {
+		s = fmt.Sprintf("Loading stability was assessed with the bag of little bootstraps (Kleiner et al. 2014), used from %d rows: %d subsets of %d rows, each with %d resamples weighted to the full %d rows, redoing the preprocessing; intervals are the subsets' averaged quantiles about their own estimates, placed about the full-data estimate, and no BCa intervals are given", st.SwitchRows, st.Subsets, st.SubsetSize, st.PerSubset, res.Decomp.Rows)
 	}
 	worst := 1.0
 	for _, cs := range st.Components {

@@ -255,9 +255,17 @@ type StabilityInfo struct {
 	Degenerate int `json:"degenerate"`
 	// ConstantResamples counts used resamples in which a variable was
 	// constant (kept, with that variable at zero variance).
-	ConstantResamples int                  `json:"constant_resamples"`
-	Components        []ComponentStability `json:"components"`
-	Eigenvalues       []EigenInterval      `json:"eigenvalues"`
+	ConstantResamples int `json:"constant_resamples"`
+	// Scheme is "full bootstrap" or "bag of little bootstraps"; for the
+	// latter, subset_size (b), subsets (s), per_subset (r) and the rows from
+	// which it is used (switch_rows); all four are 0 for the full bootstrap.
+	Scheme      string               `json:"scheme"`
+	SubsetSize  int                  `json:"subset_size"`
+	Subsets     int                  `json:"subsets"`
+	PerSubset   int                  `json:"per_subset"`
+	SwitchRows  int                  `json:"switch_rows"`
+	Components  []ComponentStability `json:"components"`
+	Eigenvalues []EigenInterval      `json:"eigenvalues"`
 }
 
 type ComponentStability struct {
@@ -289,7 +297,8 @@ func stabilityInfo(res *analysis.Result) *StabilityInfo {
 	if st.Used == 0 {
 		return nil
 	}
-	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate, ConstantResamples: st.ConstantResamples}
+	info := &StabilityInfo{Resamples: st.Resamples, Used: st.Used, Degenerate: st.Degenerate, ConstantResamples: st.ConstantResamples,
+		Scheme: st.Scheme, SubsetSize: st.SubsetSize, Subsets: st.Subsets, PerSubset: st.PerSubset, SwitchRows: st.SwitchRows}
 	for a, c := range st.Components {
 		info.Components = append(info.Components, ComponentStability{
 			Component: componentName(a), CongruenceMedian: Number(c.CongruenceMedian), CongruenceP5: Number(c.CongruenceP5),
