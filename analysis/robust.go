@@ -41,7 +41,7 @@ const (
 
 // Random streams of the robust fit (see engine.go).
 const (
-	streamRobustDirection = 3 << 40
+	streamRobustDirection = 6 << 40
 	streamRobustMCD       = 4 << 40
 )
 
