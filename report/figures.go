@@ -937,6 +937,7 @@ func influenceFigure(res *analysis.Result) drawing {
 			flagged = append(flagged, i)
 		}
 	}
+	slices.SortStableFunc(flagged, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
 	th := thinSamples(x, inf.Angle, flagged, groupIndex(res.Table))
 	var ix, iy, fx, fy []float64
 	for _, i := range th.indices(n) {
@@ -947,7 +948,6 @@ func influenceFigure(res *analysis.Result) drawing {
 			ix, iy = append(ix, x[i]), append(iy, a)
 		}
 	}
-	slices.SortStableFunc(flagged, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
 	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the bootstrap's range")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "turns the model more")
 	ann.addPoints(ix, iy, vg.Points(2.2))

@@ -13,7 +13,7 @@ import (
 // the report's memory; a few thousand well-chosen points show the same
 // cloud. Which points are drawn:
 //
-//   - every sample the figure marks (flagged, set aside, excluded), always;
+//   - every sample the figure marks (flagged, set aside), up to markedCap;
 //   - the outline: in each of outlineSectors directions from the centre, the
 //     sample farthest out, so that the cloud's extent is kept;
 //   - of the rest, a seeded random subsample stratified by group and by
@@ -27,6 +27,12 @@ import (
 // (common practice: beyond a few thousand points a scatter plot saturates
 // at print resolution and only its file size grows).
 const figurePoints = 5000
+
+// markedCap is the most marked samples a figure draws as marked, the
+// first in the order given (most extreme first). Marks beyond it happen
+// by chance alone at a million rows (1 % beyond each 99 % limit); the cap
+// keeps an SVG to a few megabytes at any n, and the caption says so.
+const markedCap = 4 * figurePoints
 
 // minBackground is the fewest points of the unmarked samples drawn however
 // many samples are marked, so that the cloud stays visible behind them.
@@ -47,6 +53,7 @@ type thinning struct {
 	drawn   []int
 	total   int // samples with finite coordinates
 	marked  int // marked samples drawn because they are marked
+	markedN int // marked samples with finite coordinates (≥ marked)
 	outline int // outermost samples drawn
 	sampled int // subsample of the rest
 	rest    int // the unmarked, non-outline samples it stands for
@@ -110,8 +117,11 @@ func thinSamples(x, y []float64, marked []int, group []int) thinning {
 	take := make([]bool, n)
 	for _, i := range marked {
 		if i >= 0 && i < n && !take[i] && isFinite(x[i]) && isFinite(y[i]) {
-			take[i] = true
-			th.marked++
+			th.markedN++
+			if th.marked < markedCap {
+				take[i] = true
+				th.marked++
+			}
 		}
 	}
 	dist, sector := polar(x, y)
@@ -292,6 +302,8 @@ func (t thinning) caption(marked string) string {
 	switch {
 	case t.marked == 1:
 		always = fmt.Sprintf("the one sample %s, ", marked)
+	case t.marked < t.markedN:
+		always = fmt.Sprintf("the %d most extreme of the %d samples %s, ", t.marked, t.markedN, marked)
 	case t.marked > 1:
 		always = fmt.Sprintf("all %d samples %s, ", t.marked, marked)
 	}
