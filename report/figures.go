@@ -476,19 +476,25 @@ func scaleSlice(x []float64, f float64) []float64 {
 type integerTicks struct{}
 
 func (integerTicks) Ticks(min, max float64) []plot.Tick {
-	if !isFinite(min) || !isFinite(max) || max-min > 1e6 {
-		return nil // only component numbers are drawn on such an axis
+	if !isFinite(min) || !isFinite(max) || max-min > 1e12 {
+		return nil // only component and sample numbers are drawn on such an axis
 	}
 	lo, hi := int(math.Ceil(min)), int(math.Floor(max))
+	// Steps of 1, 2 and 5 times a power of ten; fewer ticks once labels
+	// are five digits long (sample numbers of a large table), so that
+	// they do not run into one another.
+	most := 12
+	if hi >= 10000 || lo <= -10000 {
+		most = 6
+	}
 	step := 1
-	for (hi-lo)/step > 12 {
-		step *= 2
+	for k := 0; (hi-lo)/step > most; k++ {
+		step = []int{2, 5, 10}[k%3] * int(math.Pow(10, float64(k/3)))
 	}
 	var ticks []plot.Tick
-	for v := lo; v <= hi; v++ {
-		if v%step == 0 || step == 1 {
-			ticks = append(ticks, plot.Tick{Value: float64(v), Label: strconv.Itoa(v)})
-		}
+	first := lo + ((step-lo%step)%step+step)%step // the first multiple of step ≥ lo
+	for v := first; v <= hi; v += step {
+		ticks = append(ticks, plot.Tick{Value: float64(v), Label: strconv.Itoa(v)})
 	}
 	return ticks
 }
@@ -669,7 +675,7 @@ func addGroupedPoints(p *plot.Plot, t *intake.Table, x, y []float64, th thinning
 		if groups != nil {
 			label = fmt.Sprintf("%d groups of %s: too many to tell apart, drawn alike", len(groups), figureText(t.GroupColumn, maxLabelRunes))
 		}
-		_, left := addScatter(p, th.subset(x), th.subset(y), draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(2.2)}, label)
+		_, left := addScatter(p, th.subset(x), th.subset(y), draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: th.glyph(vg.Points(2.2))}, label)
 		return left + th.unseen(len(x))
 	}
 	left := 0
@@ -684,7 +690,9 @@ func addGroupedPoints(p *plot.Plot, t *intake.Table, x, y []float64, th thinning
 		if label == "" {
 			label = "(no group)"
 		}
-		_, l := addScatter(p, gx, gy, groupStyle(g), label)
+		style := groupStyle(g)
+		style.Radius = th.glyph(style.Radius)
+		_, l := addScatter(p, gx, gy, style, label)
 		left += l
 	}
 	return left + th.unseen(len(x))
@@ -900,7 +908,7 @@ func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []i
 			ix, iy = append(ix, t2[i]), append(iy, q[i])
 		}
 	}
-	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the 99 % limits")
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: th.glyph(vg.Points(2.2))}, "within the 99 % limits")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "beyond a 99 % limit")
 	ann.addPoints(ix, iy, vg.Points(2.2))
 	ann.addPoints(fx, fy, vg.Points(3))
@@ -948,7 +956,7 @@ func influenceFigure(res *analysis.Result) drawing {
 			ix, iy = append(ix, x[i]), append(iy, a)
 		}
 	}
-	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the bootstrap's range")
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: th.glyph(vg.Points(2.2))}, "within the bootstrap's range")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "turns the model more")
 	ann.addPoints(ix, iy, vg.Points(2.2))
 	ann.addPoints(fx, fy, vg.Points(3))

@@ -64,7 +64,7 @@ func robustFigure(res *analysis.Result) drawing {
 			ix, iy = append(ix, rf.SD[i]), append(iy, rf.OD[i])
 		}
 	}
-	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within both cut-offs")
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: th.glyph(vg.Points(2.2))}, "within both cut-offs")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "beyond a cut-off")
 	ann.addPoints(ix, iy, vg.Points(2.2))
 	ann.addPoints(fx, fy, vg.Points(3))

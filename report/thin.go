@@ -6,6 +6,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+
+	"gonum.org/v1/plot/vg"
 )
 
 // Per-sample figures of a large table draw a subsample. A score plot of a
@@ -72,6 +74,16 @@ func (t thinning) indices(n int) []int {
 		all[i] = i
 	}
 	return all
+}
+
+// glyph scales a marker radius for the figure: smaller when it draws a
+// subsample, whose thousands of points would otherwise merge into one
+// blot at the centre and hide the density they are drawn to show.
+func (t thinning) glyph(r vg.Length) vg.Length {
+	if t.all() {
+		return r
+	}
+	return r * 0.55
 }
 
 // unseen is how many of n samples were left out for a coordinate that is

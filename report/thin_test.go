@@ -208,3 +208,29 @@ func TestLargeFigureSVGBounded(t *testing.T) {
 		t.Logf("n = %d, %d flagged: SVG %d bytes; %s", n, len(flagged), b.Len(), d.sampled)
 	}
 }
+
+// Integer axes step by 1, 2 or 5 times a power of ten, at most 12 ticks,
+// or 6 once the labels are five digits long; before, sample numbers of a
+// large table were stepped by powers of two into labels that ran together.
+func TestIntegerTicks(t *testing.T) {
+	tests := []struct {
+		min, max float64
+		want     []float64
+	}{
+		{0.5, 10.5, []float64{1, 2, 3, 4, 5, 6, 7, 8, 9, 10}},
+		{0.5, 20.5, []float64{2, 4, 6, 8, 10, 12, 14, 16, 18, 20}},
+		{-3.5, 3.5, []float64{-3, -2, -1, 0, 1, 2, 3}},
+		{0, 178, []float64{0, 20, 40, 60, 80, 100, 120, 140, 160}},
+		{1, 100000, []float64{20000, 40000, 60000, 80000, 100000}},
+		{1, 1000000, []float64{200000, 400000, 600000, 800000, 1000000}},
+	}
+	for _, tt := range tests {
+		var got []float64
+		for _, tk := range (integerTicks{}).Ticks(tt.min, tt.max) {
+			got = append(got, tk.Value)
+		}
+		if !slices.Equal(got, tt.want) {
+			t.Errorf("ticks of [%g, %g]: %v, want %v", tt.min, tt.max, got, tt.want)
+		}
+	}
+}
