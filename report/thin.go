@@ -138,10 +138,10 @@ func thinSamples(x, y []float64, marked []int, group []int) thinning {
 	}
 	dist, sector := polar(x, y)
 	th.outline = keepOutline(dist, sector, take)
-	var rest []int
+	rest := make([]int32, 0, finite)
 	for i := range x {
 		if !take[i] && isFinite(dist[i]) {
-			rest = append(rest, i)
+			rest = append(rest, int32(i))
 		}
 	}
 	budget := max(figurePoints-th.marked-th.outline, minBackground)
@@ -158,10 +158,10 @@ func thinSamples(x, y []float64, marked []int, group []int) thinning {
 // polar returns each sample's distance from the centre (mean) in units of
 // each axis' standard deviation, and its direction sector; NaN distance for
 // a sample with a coordinate that is not finite.
-func polar(x, y []float64) (dist []float64, sector []int) {
+func polar(x, y []float64) (dist []float64, sector []uint8) {
 	mx, sx := meanSD(x, y, x)
 	my, sy := meanSD(x, y, y)
-	dist, sector = make([]float64, len(x)), make([]int, len(x))
+	dist, sector = make([]float64, len(x)), make([]uint8, len(x)) // outlineSectors < 256
 	for i := range x {
 		if !isFinite(x[i]) || !isFinite(y[i]) {
 			dist[i] = math.NaN()
@@ -170,7 +170,7 @@ func polar(x, y []float64) (dist []float64, sector []int) {
 		u, v := (x[i]-mx)/sx, (y[i]-my)/sy
 		dist[i] = math.Hypot(u, v)
 		k := int((math.Atan2(v, u) + math.Pi) / (2 * math.Pi) * outlineSectors)
-		sector[i] = min(max(k, 0), outlineSectors-1)
+		sector[i] = uint8(min(max(k, 0), outlineSectors-1))
 	}
 	return dist, sector
 }
@@ -201,7 +201,7 @@ func meanSD(x, y, v []float64) (mean, sd float64) {
 
 // keepOutline marks the farthest unmarked sample of each sector and
 // returns how many it marked.
-func keepOutline(dist []float64, sector []int, take []bool) int {
+func keepOutline(dist []float64, sector []uint8, take []bool) int {
 	far := make([]int, outlineSectors)
 	for k := range far {
 		far[k] = -1
@@ -227,8 +227,9 @@ func keepOutline(dist []float64, sector []int, take []bool) int {
 // sampleStrata marks a seeded random subsample of about budget of the
 // samples in rest, stratified by group and distance band, each stratum in
 // proportion to its size (largest remainders), and returns how many it
-// marked.
-func sampleStrata(rest []int, dist []float64, group []int, budget int, take []bool) int {
+// marked. The strata are one array sorted by stratum (a counting sort), so
+// that a million samples cost a few compact arrays.
+func sampleStrata(rest []int32, dist []float64, group []int, budget int, take []bool) int {
 	if budget >= len(rest) {
 		for _, i := range rest {
 			take[i] = true
@@ -244,58 +245,68 @@ func sampleStrata(rest []int, dist []float64, group []int, budget int, take []bo
 	for b := range cuts {
 		cuts[b] = sorted[(b+1)*len(sorted)/distanceBands]
 	}
-	strata := map[[2]int][]int{}
-	for _, i := range rest {
+	sorted = nil
+	stratum := make([]int32, len(rest))
+	groups := 1
+	for k, i := range rest {
 		band, _ := slices.BinarySearch(cuts[:], dist[i])
 		g := 0
 		if group != nil {
 			g = group[i]
+			groups = max(groups, g+1)
 		}
-		key := [2]int{g, band}
-		strata[key] = append(strata[key], i)
+		stratum[k] = int32(g*distanceBands + band)
 	}
-	keys := make([][2]int, 0, len(strata))
-	for k := range strata {
-		keys = append(keys, k)
+	size := make([]int, groups*distanceBands)
+	for _, s := range stratum {
+		size[s]++
 	}
-	slices.SortFunc(keys, func(a, b [2]int) int { return cmp.Or(cmp.Compare(a[0], b[0]), cmp.Compare(a[1], b[1])) })
-	quota := apportion(keys, strata, budget, len(rest))
+	start := make([]int, len(size)+1)
+	for s, c := range size {
+		start[s+1] = start[s] + c
+	}
+	members := make([]int32, len(rest))
+	next := slices.Clone(start[:len(size)])
+	for k, i := range rest {
+		members[next[stratum[k]]] = i
+		next[stratum[k]]++
+	}
+	quota := apportion(size, budget, len(rest))
 	rng := rand.New(rand.NewPCG(0x70637163, uint64(len(rest))))
 	marked := 0
-	for s, k := range keys {
-		members := strata[k]
+	for s := range size {
+		m := members[start[s]:start[s+1]]
 		// A partial Fisher–Yates shuffle: the first quota[s] are a
 		// uniform sample without replacement.
 		for j := 0; j < quota[s]; j++ {
-			r := j + rng.IntN(len(members)-j)
-			members[j], members[r] = members[r], members[j]
-			take[members[j]] = true
+			r := j + rng.IntN(len(m)-j)
+			m[j], m[r] = m[r], m[j]
+			take[m[j]] = true
 			marked++
 		}
 	}
 	return marked
 }
 
-// apportion divides budget among the strata in proportion to their sizes,
+// apportion divides budget among strata of the given sizes in proportion,
 // by largest remainders (ties to the earlier stratum).
-func apportion(keys [][2]int, strata map[[2]int][]int, budget, total int) []int {
-	quota := make([]int, len(keys))
+func apportion(size []int, budget, total int) []int {
+	quota := make([]int, len(size))
 	type rem struct {
 		s int
 		r float64
 	}
-	rems := make([]rem, len(keys))
+	rems := make([]rem, len(size))
 	given := 0
-	for s, k := range keys {
-		exact := float64(budget) * float64(len(strata[k])) / float64(total)
+	for s, c := range size {
+		exact := float64(budget) * float64(c) / float64(total)
 		quota[s] = int(exact)
 		given += quota[s]
 		rems[s] = rem{s, exact - float64(quota[s])}
 	}
 	slices.SortStableFunc(rems, func(a, b rem) int { return cmp.Compare(b.r, a.r) })
 	for k := 0; given < budget && k < len(rems); k++ {
-		s := rems[k].s
-		if quota[s] < len(strata[keys[s]]) {
+		if s := rems[k].s; quota[s] < size[s] {
 			quota[s]++
 			given++
 		}

@@ -234,3 +234,14 @@ func TestIntegerTicks(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkThinSamples measures the time and allocation of choosing the
+// points of one figure of a million samples (go test -bench ThinSamples
+// -benchmem ./report).
+func BenchmarkThinSamples(b *testing.B) {
+	x, y, group := cloud(1000000, 0, 0.5)
+	b.ReportAllocs()
+	for b.Loop() {
+		thinSamples(x, y, nil, group)
+	}
+}
