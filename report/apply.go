@@ -429,10 +429,11 @@ func applyScoresFigure(run ApplyRun) drawing {
 		if lim := analysis.T2LimitNew(m.Input.Rows, 1, analysis.Conf95); !math.IsNaN(lim) {
 			addLimitPair(p, ann, math.Sqrt(lim*m.Eigenvalues[0]))
 		}
-		left := addGroupedPoints(p, app.Table, x, y)
-		ann.addPoints(x, y, vg.Points(sampleRadius))
+		th := thinSamples(x, y, app.Flagged, groupIndex(app.Table))
+		left := addGroupedPoints(p, app.Table, x, y, th)
+		ann.addPoints(th.subset(x), th.subset(y), vg.Points(sampleRadius))
 		nameSamples(ann, app.Table.IDs, app.Flagged, x, y, beyond99)
-		dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann}
+		dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann, sampled: th.caption(beyond99)}
 		dr.leaveOut(left, "sample")
 		return dr
 	}
@@ -448,6 +449,7 @@ func applyScoresFigure(run ApplyRun) drawing {
 	if lim := analysis.T2LimitNew(m.Input.Rows, 2, analysis.Conf95); !math.IsNaN(lim) {
 		addEllipse(p, math.Sqrt(lim*m.Eigenvalues[0]), math.Sqrt(lim*m.Eigenvalues[1]), "95 % T² ellipse, new observations")
 	}
+	trainingNote := ""
 	if tr := run.TrainingScores; tr != nil {
 		if r, c := tr.Dims(); c >= 2 {
 			tx, ty := make([]float64, r), make([]float64, r)
@@ -456,6 +458,11 @@ func applyScoresFigure(run ApplyRun) drawing {
 			}
 			// Training samples are background only: any that cannot be
 			// drawn are not counted against the new ones.
+			tt := thinSamples(tx, ty, nil, nil)
+			tx, ty = tt.subset(tx), tt.subset(ty)
+			if !tt.all() {
+				trainingNote = fmt.Sprintf(" The grey rings draw %d of the %d training samples: the farthest out in each of %d directions and a seeded random subsample of the rest, stratified by distance from the centre.", len(tt.drawn), tt.total, outlineSectors)
+			}
 			addScatter(p, tx, ty, draw.GlyphStyle{Color: trainingColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2)}, "training samples")
 		}
 	}
@@ -463,14 +470,15 @@ func applyScoresFigure(run ApplyRun) drawing {
 	for i := 0; i < n; i++ {
 		x[i], y[i] = app.Scores.At(i, 0), app.Scores.At(i, 1)
 	}
-	left := addGroupedPoints(p, app.Table, x, y)
+	th := thinSamples(x, y, app.Flagged, groupIndex(app.Table))
+	left := addGroupedPoints(p, app.Table, x, y, th)
 	if app.Table.GroupColumn == "" {
 		p.Legend.Add("new samples", plotThumb{groupStyle(0)})
 	}
 	ann := &labeller{}
-	ann.addPoints(x, y, vg.Points(sampleRadius))
+	ann.addPoints(th.subset(x), th.subset(y), vg.Points(sampleRadius))
 	nameSamples(ann, app.Table.IDs, app.Flagged, x, y, beyond99)
-	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann}
+	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann, sampled: strings.TrimSpace(th.caption(beyond99) + trainingNote)}
 	dr.leaveOut(left, "sample")
 	return dr
 }

@@ -68,6 +68,9 @@ type drawing struct {
 	// they need is not a finite number; the caption says so.
 	left int
 	what string
+	// sampled, when set, is the caption's sentence on the subsample of
+	// samples the figure draws (thinning.caption).
+	sampled string
 }
 
 // leaveOut records n more items left out of the drawing.
@@ -289,6 +292,9 @@ func prepareFigures(jobs []figureJob) {
 			}
 			job.fig.TableHeader, job.fig.TableRows = d.table(named)
 		}
+		if d.sampled != "" {
+			job.fig.Caption += " " + d.sampled
+		}
 		if d.left > 0 {
 			what := d.what
 			if d.left > 1 {
@@ -470,19 +476,25 @@ func scaleSlice(x []float64, f float64) []float64 {
 type integerTicks struct{}
 
 func (integerTicks) Ticks(min, max float64) []plot.Tick {
-	if !isFinite(min) || !isFinite(max) || max-min > 1e6 {
-		return nil // only component numbers are drawn on such an axis
+	if !isFinite(min) || !isFinite(max) || max-min > 1e12 {
+		return nil // only component and sample numbers are drawn on such an axis
 	}
 	lo, hi := int(math.Ceil(min)), int(math.Floor(max))
+	// Steps of 1, 2 and 5 times a power of ten; fewer ticks once labels
+	// are five digits long (sample numbers of a large table), so that
+	// they do not run into one another.
+	most := 12
+	if hi >= 10000 || lo <= -10000 {
+		most = 6
+	}
 	step := 1
-	for (hi-lo)/step > 12 {
-		step *= 2
+	for k := 0; (hi-lo)/step > most; k++ {
+		step = []int{2, 5, 10}[k%3] * int(math.Pow(10, float64(k/3)))
 	}
 	var ticks []plot.Tick
-	for v := lo; v <= hi; v++ {
-		if v%step == 0 || step == 1 {
-			ticks = append(ticks, plot.Tick{Value: float64(v), Label: strconv.Itoa(v)})
-		}
+	first := lo + ((step-lo%step)%step+step)%step // the first multiple of step ≥ lo
+	for v := first; v <= hi; v += step {
+		ticks = append(ticks, plot.Tick{Value: float64(v), Label: strconv.Itoa(v)})
 	}
 	return ticks
 }
@@ -652,24 +664,24 @@ const maxLabelRunes = 28
 // the labeller keeps names and the legend clear of it.
 const sampleRadius = 2.6
 
-// addGroupedPoints draws the samples, one series per group (colour and
-// shape, every mark filled), or all alike beyond maxColouredGroups. It
-// returns how many samples it left out because a coordinate is not a
-// finite number.
-func addGroupedPoints(p *plot.Plot, t *intake.Table, x, y []float64) int {
+// addGroupedPoints draws the samples th chose, one series per group
+// (colour and shape, every mark filled), or all alike beyond
+// maxColouredGroups. It returns how many samples it left out because a
+// coordinate is not a finite number.
+func addGroupedPoints(p *plot.Plot, t *intake.Table, x, y []float64, th thinning) int {
 	groups, of := groupsOf(t)
 	if groups == nil || len(groups) > maxColouredGroups {
 		label := ""
 		if groups != nil {
 			label = fmt.Sprintf("%d groups of %s: too many to tell apart, drawn alike", len(groups), figureText(t.GroupColumn, maxLabelRunes))
 		}
-		_, left := addScatter(p, x, y, draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: vg.Points(2.2)}, label)
-		return left
+		_, left := addScatter(p, th.subset(x), th.subset(y), draw.GlyphStyle{Color: mainColor, Shape: draw.CircleGlyph{}, Radius: th.glyph(vg.Points(2.2))}, label)
+		return left + th.unseen(len(x))
 	}
 	left := 0
 	for g, name := range groups {
 		var gx, gy []float64
-		for i := range x {
+		for _, i := range th.indices(len(x)) {
 			if of[i] == g {
 				gx, gy = append(gx, x[i]), append(gy, y[i])
 			}
@@ -678,10 +690,19 @@ func addGroupedPoints(p *plot.Plot, t *intake.Table, x, y []float64) int {
 		if label == "" {
 			label = "(no group)"
 		}
-		_, l := addScatter(p, gx, gy, groupStyle(g), label)
+		style := groupStyle(g)
+		style.Radius = th.glyph(style.Radius)
+		_, l := addScatter(p, gx, gy, style, label)
 		left += l
 	}
-	return left
+	return left + th.unseen(len(x))
+}
+
+// groupIndex is each sample's group index for stratifying a subsample
+// (nil without groups).
+func groupIndex(t *intake.Table) []int {
+	_, of := groupsOf(t)
+	return of
 }
 
 // ellipse returns points of x²/a² + y²/b² = 1.
@@ -722,13 +743,15 @@ func scoresFigure(res *analysis.Result, a, b int) drawing {
 		ev := res.Decomp.Eigenvalues
 		addEllipse(p, math.Sqrt(lim*ev[a]), math.Sqrt(lim*ev[b]), "95 % Hotelling T² ellipse")
 	}
-	left := addGroupedPoints(p, res.Table, x, y)
+	flagged := flaggedSamples(res)
+	th := thinSamples(x, y, flagged, groupIndex(res.Table))
+	left := addGroupedPoints(p, res.Table, x, y, th)
 	ann := &labeller{}
-	ann.addPoints(x, y, vg.Points(sampleRadius))
+	ann.addPoints(th.subset(x), th.subset(y), vg.Points(sampleRadius))
 	addExcludedScores(p, ann, res, a, b)
-	nameSamples(ann, res.Table.IDs, flaggedSamples(res), x, y, beyond99)
+	nameSamples(ann, res.Table.IDs, flagged, x, y, beyond99)
 	groupNote(ann, res.Table)
-	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann}
+	dr := drawing{plot: p, w: figWidth, h: figTall, equalAspect: true, ann: ann, sampled: th.caption(beyond99)}
 	dr.leaveOut(left, "sample")
 	return dr
 }
@@ -747,12 +770,14 @@ func indexScoresFigure(res *analysis.Result) drawing {
 	if lim := analysis.T2LimitModel(n, 1, analysis.Conf95); !math.IsNaN(lim) {
 		addLimitPair(p, ann, math.Sqrt(lim*res.Decomp.Eigenvalues[0]))
 	}
-	left := addGroupedPoints(p, res.Table, x, y)
-	ann.addPoints(x, y, vg.Points(sampleRadius))
+	flagged := flaggedSamples(res)
+	th := thinSamples(x, y, flagged, groupIndex(res.Table))
+	left := addGroupedPoints(p, res.Table, x, y, th)
+	ann.addPoints(th.subset(x), th.subset(y), vg.Points(sampleRadius))
 	addExcludedScores(p, ann, res, 0, -1)
-	nameSamples(ann, res.Table.IDs, flaggedSamples(res), x, y, beyond99)
+	nameSamples(ann, res.Table.IDs, flagged, x, y, beyond99)
 	groupNote(ann, res.Table)
-	dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann}
+	dr := drawing{plot: p, w: figWidth, h: figHeight, ann: ann, sampled: th.caption(beyond99)}
 	dr.leaveOut(left, "sample")
 	return dr
 }
@@ -816,9 +841,10 @@ func biplotFigure(res *analysis.Result) drawing {
 	}
 	pl := newPlot("Biplot, PC1 and PC2", componentLabel(res, 0)+" (standardised scores)", componentLabel(res, 1)+" (standardised scores)")
 	pl.Add(guides{})
-	left := addGroupedPoints(pl, res.Table, x, y)
+	th := thinSamples(x, y, flaggedSamples(res), groupIndex(res.Table))
+	left := addGroupedPoints(pl, res.Table, x, y, th)
 	ann := &labeller{}
-	ann.addPoints(x, y, vg.Points(sampleRadius))
+	ann.addPoints(th.subset(x), th.subset(y), vg.Points(sampleRadius))
 	var ar arrows
 	for k, a := range all {
 		ax, ay := a.u*stretch, a.w*stretch
@@ -836,7 +862,7 @@ func biplotFigure(res *analysis.Result) drawing {
 		}
 		return fmt.Sprintf("The %d longest arrows are named; the table below lists the other %d variables, longest arrow first.", named, total-named)
 	}
-	dr := drawing{plot: pl, w: figWidth, h: figTall, equalAspect: true, ann: ann}
+	dr := drawing{plot: pl, w: figWidth, h: figTall, equalAspect: true, ann: ann, sampled: th.caption(beyond99)}
 	dr.table = func(named int) ([]string, [][]string) {
 		if named >= total {
 			return nil, nil
@@ -873,15 +899,16 @@ func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []i
 	for _, i := range flaggedIdx {
 		flagged[i] = true
 	}
+	th := thinSamples(t2, q, flaggedIdx, nil)
 	var ix, iy, fx, fy []float64
-	for i := range t2 {
+	for _, i := range th.indices(len(t2)) {
 		if flagged[i] {
 			fx, fy = append(fx, t2[i]), append(fy, q[i])
 		} else {
 			ix, iy = append(ix, t2[i]), append(iy, q[i])
 		}
 	}
-	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the 99 % limits")
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: th.glyph(vg.Points(2.2))}, "within the 99 % limits")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "beyond a 99 % limit")
 	ann.addPoints(ix, iy, vg.Points(2.2))
 	ann.addPoints(fx, fy, vg.Points(3))
@@ -891,8 +918,8 @@ func t2qDrawing(title string, t2, q []float64, l analysis.Limits, flaggedIdx []i
 		return "Hollow grey rings: samples within both 99 % limits; filled red triangles: samples beyond one. " + named(k)
 	}
 	pl.X.Min, pl.Y.Min = 0, 0
-	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann}
-	dr.leaveOut(left+l2, "sample")
+	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann, sampled: th.caption("beyond a 99 % limit")}
+	dr.leaveOut(left+l2+th.unseen(len(t2)), "sample")
 	return dr
 }
 
@@ -911,19 +938,25 @@ func influenceFigure(res *analysis.Result) drawing {
 		ann.addRef(pl, refLine{at: lim, style: lineStyle(accent95, 1, 4, 2), label: "bootstrap 95th percentile"})
 	}
 	var flagged []int
-	var ix, iy, fx, fy []float64
 	x := make([]float64, n)
 	for i, a := range inf.Angle {
 		x[i] = float64(i + 1)
 		if i < len(inf.Limit) && a > inf.Limit[i] {
 			flagged = append(flagged, i)
+		}
+	}
+	slices.SortStableFunc(flagged, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
+	th := thinSamples(x, inf.Angle, flagged, groupIndex(res.Table))
+	var ix, iy, fx, fy []float64
+	for _, i := range th.indices(n) {
+		a := inf.Angle[i]
+		if i < len(inf.Limit) && a > inf.Limit[i] {
 			fx, fy = append(fx, x[i]), append(fy, a)
 		} else {
 			ix, iy = append(ix, x[i]), append(iy, a)
 		}
 	}
-	slices.SortStableFunc(flagged, func(a, b int) int { return cmp.Compare(inf.Angle[b], inf.Angle[a]) })
-	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within the bootstrap's range")
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: th.glyph(vg.Points(2.2))}, "within the bootstrap's range")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "turns the model more")
 	ann.addPoints(ix, iy, vg.Points(2.2))
 	ann.addPoints(fx, fy, vg.Points(3))
@@ -933,8 +966,8 @@ func influenceFigure(res *analysis.Result) drawing {
 		return "Hollow grey rings: samples within the yardstick; filled red triangles: samples beyond it. " + named(k)
 	}
 	pl.Y.Min = 0
-	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann}
-	dr.leaveOut(left+l2, "sample")
+	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann, sampled: th.caption("beyond their own yardstick")}
+	dr.leaveOut(left+l2+th.unseen(n), "sample")
 	return dr
 }
 

@@ -55,15 +55,16 @@ func robustFigure(res *analysis.Result) drawing {
 	ann.addRef(pl, refLine{vertical: true, at: rf.SDCutoff, style: lineStyle(accent99, 1), label: "SD cut-off"})
 	ann.addRef(pl, refLine{at: rf.ODCutoff, style: lineStyle(accent99, 1), label: "OD cut-off"})
 	down := rf.DownWeighted()
+	th := thinSamples(rf.SD, rf.OD, down, groupIndex(res.Table))
 	var ix, iy, fx, fy []float64
-	for i := range rf.SD {
+	for _, i := range th.indices(len(rf.SD)) {
 		if rf.Beyond(i) {
 			fx, fy = append(fx, rf.SD[i]), append(fy, rf.OD[i])
 		} else {
 			ix, iy = append(ix, rf.SD[i]), append(iy, rf.OD[i])
 		}
 	}
-	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: vg.Points(2.2)}, "within both cut-offs")
+	_, left := addScatter(pl, ix, iy, draw.GlyphStyle{Color: mutedColor, Shape: draw.RingGlyph{}, Radius: th.glyph(vg.Points(2.2))}, "within both cut-offs")
 	_, l2 := addScatter(pl, fx, fy, draw.GlyphStyle{Color: accent99, Shape: draw.PyramidGlyph{}, Radius: vg.Points(3)}, "beyond a cut-off")
 	ann.addPoints(ix, iy, vg.Points(2.2))
 	ann.addPoints(fx, fy, vg.Points(3))
@@ -73,7 +74,7 @@ func robustFigure(res *analysis.Result) drawing {
 		return "Hollow grey rings: samples within both cut-offs; filled red triangles: samples the robust fit sets aside. " + named(k)
 	}
 	pl.X.Min, pl.Y.Min = 0, 0
-	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann}
-	dr.leaveOut(left+l2, "sample")
+	dr := drawing{plot: pl, w: figWidth, h: figHeight, ann: ann, sampled: th.caption("the robust fit sets aside")}
+	dr.leaveOut(left+l2+th.unseen(len(rf.SD)), "sample")
 	return dr
 }
