@@ -30,6 +30,7 @@ type auditFlags struct {
 	delim        string
 	decimal      string
 	encoding     string
+	sheet        string
 	transform    string
 	scale        string
 	components   string
@@ -60,6 +61,7 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.delim, "delim", "auto", "")
 	fs.StringVar(&f.decimal, "decimal", "point", "")
 	fs.StringVar(&f.encoding, "encoding", string(intake.EncodingUTF8), "")
+	fs.StringVar(&f.sheet, "sheet", "", "")
 	fs.StringVar(&f.transform, "transform", string(intake.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
@@ -192,6 +194,7 @@ func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
 		return opt, usagef("invalid --encoding %q: use utf-8, latin1 or cp1252", f.encoding)
 	}
 	opt.Encoding = enc
+	opt.Sheet = f.sheet
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
 	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean}); err != nil {
@@ -290,7 +293,8 @@ func (f *auditFlags) effective(read intake.ReadOptions, t *intake.Table) report.
 		{Name: "drop", Value: list(read.Drop)},
 		{Name: "missing", Value: string(read.Missing)},
 		{Name: "delim", Value: delim},
-		{Name: "delim_used", Value: string(t.Delimiter)},
+		{Name: "delim_used", Value: delimUsed(t)},
+		{Name: "sheet", Value: t.Sheet},
 		{Name: "decimal", Value: f.decimal},
 		{Name: "encoding", Value: string(read.Encoding)},
 		{Name: "transform", Value: string(read.Transform)},
@@ -420,4 +424,13 @@ func (f *auditFlags) validate(reads ...string) (intake.ReadOptions, error) {
 		return read, err
 	}
 	return read, nil
+}
+
+// delimUsed is the field separator the table was read with; a spreadsheet
+// has none.
+func delimUsed(t *intake.Table) string {
+	if t.Delimiter == 0 {
+		return ""
+	}
+	return string(t.Delimiter)
 }
