@@ -1,6 +1,7 @@
 package intake
 
 import (
+	"archive/zip"
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
@@ -259,6 +260,9 @@ func openSheet(path, sheet string) (*sheetSource, error) {
 		}
 		return nil, refuse("not an .xlsx workbook (an .xlsx file is a zip archive); " + saveAs)
 	}
+	if !hasWorkbookPart(data) {
+		return nil, refuse("a zip archive without xl/workbook.xml, so not an .xlsx workbook; " + saveAs)
+	}
 	book, err := excelize.OpenReader(bytes.NewReader(data), excelize.Options{UnzipSizeLimit: unzipLimit, UnzipXMLSizeLimit: unzipXMLLimit})
 	if err != nil {
 		return nil, refuse("cannot read as an .xlsx workbook (" + err.Error() + "); " + saveAs)
@@ -286,6 +290,22 @@ func openSheet(path, sheet string) (*sheetSource, error) {
 		src.date1904 = *props.Date1904
 	}
 	return src, nil
+}
+
+// hasWorkbookPart reports whether the zip archive data holds the part every
+// .xlsx workbook has, so that any other zip is refused by name rather than
+// by whatever excelize makes of it.
+func hasWorkbookPart(data []byte) bool {
+	zr, err := zip.NewReader(bytes.NewReader(data), int64(len(data)))
+	if err != nil {
+		return false
+	}
+	for _, f := range zr.File {
+		if strings.EqualFold(f.Name, "xl/workbook.xml") {
+			return true
+		}
+	}
+	return false
 }
 
 // chooseSheet picks the sheet named by --sheet, by name or by its 1-based
