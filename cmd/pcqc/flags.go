@@ -97,6 +97,8 @@ const auditFlagHelp = `Input:
                       and cp1252 (Windows-1252) are converted to UTF-8 as
                       they are read. Text that is not UTF-8 is refused
                       without it
+  --sheet NAME|N      the worksheet of an .xlsx workbook to read, by name or
+                      number from 1 (default: the first sheet)
 
 Preprocessing (centring is always done):
   --transform T       none | log | log10 | log1p (default none)
