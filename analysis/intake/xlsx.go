@@ -23,10 +23,11 @@ var Workbook = FileKind{What: "the workbook", Max: 256 << 20}
 // Unzipped size limits handed to excelize, so that a small file that
 // inflates to gigabytes (a zip bomb) is refused rather than unpacked: all
 // parts together at most 2 GiB, and a worksheet above 64 MiB of XML is
-// spilled to a temporary file instead of memory.
-const (
-	unzipLimit    = 2 << 30
-	unzipXMLLimit = 64 << 20
+// spilled to a temporary file instead of memory. Variables so that a test
+// can lower them.
+var (
+	unzipLimit    int64 = 2 << 30
+	unzipXMLLimit int64 = 64 << 20
 )
 
 // sheetSource gives the rows of one worksheet as records, so that a
@@ -264,7 +265,11 @@ func openSheet(path, sheet string) (*sheetSource, error) {
 		return nil, refuse("a zip archive without xl/workbook.xml, so not an .xlsx workbook; " + saveAs)
 	}
 	book, err := excelize.OpenReader(bytes.NewReader(data), excelize.Options{UnzipSizeLimit: unzipLimit, UnzipXMLSizeLimit: unzipXMLLimit})
-	if err != nil {
+	switch {
+	case err != nil && strings.HasPrefix(err.Error(), "unzip size exceeds"):
+		// excelize has no sentinel for this error, only its text.
+		return nil, refuse(fmt.Sprintf("the workbook unpacks to more than %s (a zip bomb, or more than pcqc reads in memory); export the sheet as CSV", byteSize(unzipLimit)))
+	case err != nil:
 		return nil, refuse("cannot read as an .xlsx workbook (" + err.Error() + "); " + saveAs)
 	}
 	if book.WorkBook == nil || len(book.GetSheetList()) == 0 {

@@ -174,3 +174,17 @@ func TestSpreadsheetKind(t *testing.T) {
 		}
 	}
 }
+
+// A workbook that unpacks to more than the limit is refused before it is
+// unpacked (a zip bomb); the limit is lowered here to the size of a small
+// workbook rather than building gigabytes.
+func TestWorkbookUnzipLimit(t *testing.T) {
+	defer func(a, b int64) { unzipLimit, unzipXMLLimit = a, b }(unzipLimit, unzipXMLLimit)
+	unzipLimit, unzipXMLLimit = 2000, 1000
+	_, err := ReadTable(xlsxPath("wine.xlsx"), ReadOptions{})
+	var ie *InputError
+	if !errors.As(err, &ie) || !strings.Contains(ie.Error(), "the workbook unpacks to more than 1.95 KiB (a zip bomb") {
+		t.Fatalf("got %v, want a refusal", err)
+	}
+	t.Log(ie.Error())
+}
