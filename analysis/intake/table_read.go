@@ -147,6 +147,9 @@ func (r *tableReader) open(in io.Reader) error {
 // written.
 func (r *tableReader) readHeaderRow() error {
 	header, err := r.rr.read()
+	if err == io.EOF && r.sheet != nil {
+		return r.fail(0, 0, "", "", "empty sheet: a header row and at least 3 data rows are needed")
+	}
 	if err == io.EOF {
 		return r.fail(0, 0, "", "", "empty file: a header row and at least 3 data rows are needed")
 	}

@@ -286,6 +286,10 @@ func openSheet(path, sheet string) (*sheetSource, error) {
 		book.Close()
 		return nil, &InputError{File: path, Sheet: name, Reason: "cannot read the sheet: " + err.Error()}
 	}
+	if len(rows) == 0 && len(book.GetSheetList()) > 1 {
+		book.Close()
+		return nil, &InputError{File: path, Sheet: name, Reason: fmt.Sprintf("empty sheet; choose the sheet that holds the table with --sheet (the workbook's sheets are %s)", quotedList(book.GetSheetList()))}
+	}
 	sum := sha256.Sum256(data)
 	src := &sheetSource{book: book, name: name, sha256: hex.EncodeToString(sum[:]), rows: rows, dates: map[int]bool{}}
 	for _, r := range rows {
@@ -327,12 +331,17 @@ func chooseSheet(path string, sheets []string, want string) (string, error) {
 	if n, err := strconv.Atoi(want); err == nil && n >= 1 && n <= len(sheets) {
 		return sheets[n-1], nil
 	}
+	return "", &InputError{File: path, Text: want,
+		Reason: fmt.Sprintf("no such sheet in --sheet (the workbook's sheets are %s, or give their number 1 to %d):", quotedList(sheets), len(sheets))}
+}
+
+// quotedList names the sheets for a message.
+func quotedList(sheets []string) string {
 	quoted := make([]string, len(sheets))
 	for i, s := range sheets {
 		quoted[i] = strconv.Quote(s)
 	}
-	return "", &InputError{File: path, Text: want,
-		Reason: fmt.Sprintf("no such sheet in --sheet (the workbook's sheets are %s, or give their number 1 to %d):", ListNames(quoted, 12), len(sheets))}
+	return ListNames(quoted, 12)
 }
 
 // isWorkbook reports whether path is to be read as an .xlsx workbook, by

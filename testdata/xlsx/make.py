@@ -215,3 +215,12 @@ with open(os.path.join(BAD, "xlsx-encrypted.xlsx"), "wb") as out:
 with zipfile.ZipFile(os.path.join(BAD, "xlsx-not-a-workbook.xlsx"), "w") as z:
     info = zipfile.ZipInfo("notes.txt", date_time=(2024, 1, 1, 0, 0, 0))
     z.writestr(info, "a zip archive with a text file, not a workbook\n")
+
+# xlsx-empty-first-sheet.xlsx: the table is on the second sheet; the first,
+# read by default, is empty (bad: the message lists the sheets).
+wb = openpyxl.Workbook()
+wb.active.title = "Notes"
+ws = wb.create_sheet("Data")
+for r in BASE:
+    ws.append(r)
+save(wb, "xlsx-empty-first-sheet.xlsx", BAD)
