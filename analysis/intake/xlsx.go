@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"time"
@@ -36,7 +37,7 @@ var (
 // a formula gives its cached result; a date or time becomes ISO 8601 text,
 // which reads as a label in an id or group column and is refused as a
 // number in a variable; an empty cell holding a formula never calculated is
-// an error naming the cell.
+// an error naming the cell; a logical cell reads TRUE or FALSE.
 type sheetSource struct {
 	book     *excelize.File
 	name     string // the sheet
@@ -95,6 +96,13 @@ func (s *sheetSource) cell(col int, v string) (string, error) {
 	}
 	if _, kind := parseCell([]byte(v)); kind != cellNumber {
 		return v, nil
+	}
+	if v == "0" || v == "1" {
+		// A logical cell's raw value is 0 or 1; it is TRUE or FALSE, as a
+		// CSV export writes it, not a number.
+		if typ, err := s.book.GetCellType(s.name, ref); err == nil && typ == excelize.CellTypeBool {
+			return map[string]string{"0": "FALSE", "1": "TRUE"}[v], nil
+		}
 	}
 	style, err := s.book.GetCellStyle(s.name, ref)
 	if err != nil || !s.isDate(style) {
@@ -205,10 +213,7 @@ const saveAs = "save it as .xlsx or as CSV (File > Save As) and give that file"
 // spreadsheetKind says how to read a file from its name and first bytes:
 // "xlsx", "" for text, or a refusal for another spreadsheet format.
 func spreadsheetKind(path string, head []byte) (kind, refusal string) {
-	ext := strings.ToLower(path[strings.LastIndexByte(path, '.')+1:])
-	if !strings.Contains(path, ".") {
-		ext = ""
-	}
+	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(path), "."))
 	switch {
 	case bytes.HasPrefix(head, oleMagic) && bytes.Contains(head, utf16("EncryptionInfo")):
 		return "", "an encrypted (password-protected) workbook: pcqc does not read encrypted files; remove the password, then " + saveAs

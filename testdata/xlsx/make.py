@@ -123,6 +123,13 @@ wb, ws = book(BASE)
 ws.merge_cells("B1:C1")
 save(wb, "xlsx-merged-header.xlsx", BAD)
 
+# xlsx-logical-cell.xlsx: a logical cell (TRUE) in a numeric column, C5
+# (bad: not read as 1).
+rows = [r[:] for r in BASE]
+rows[4][2] = True
+wb, ws = book(rows)
+save(wb, "xlsx-logical-cell.xlsx", BAD)
+
 # xlsx-text-cell.xlsx: text in a numeric column, D5 (bad).
 rows = [r[:] for r in BASE]
 rows[4][3] = "n.d."
