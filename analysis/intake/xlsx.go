@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -369,8 +370,24 @@ func isWorkbook(path string, opt ReadOptions) (bool, error) {
 		return false, &InputError{File: path, Reason: refusal}
 	case kind == "" && opt.Sheet != "":
 		return false, &InputError{File: path, Text: opt.Sheet, Reason: "--sheet is for .xlsx workbooks, and this is a text table:"}
+	case kind == "xlsx" && !namedWorkbook(path):
+		// A zip by its content alone is read as a workbook only when it
+		// holds one; any other zip is left to the text reader, which
+		// refuses binary input.
+		zr, err := zip.OpenReader(path)
+		if err != nil {
+			return false, nil
+		}
+		defer zr.Close()
+		return slices.ContainsFunc(zr.File, func(f *zip.File) bool { return strings.EqualFold(f.Name, "xl/workbook.xml") }), nil
 	}
 	return kind == "xlsx", nil
+}
+
+// namedWorkbook reports whether path has an .xlsx or .xlsm extension.
+func namedWorkbook(path string) bool {
+	ext := strings.ToLower(filepath.Ext(path))
+	return ext == ".xlsx" || ext == ".xlsm"
 }
 
 // workbookHeader returns the column names on the chosen sheet, as

@@ -3,6 +3,7 @@ package intake
 import (
 	"errors"
 	"math"
+	"os"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -187,4 +188,25 @@ func TestWorkbookUnzipLimit(t *testing.T) {
 		t.Fatalf("got %v, want a refusal", err)
 	}
 	t.Log(ie.Error())
+}
+
+// A workbook is known by its content under any name; a zip that holds no
+// workbook is left to the text reader, which refuses it as binary.
+func TestWorkbookByContent(t *testing.T) {
+	b, err := os.ReadFile(xlsxPath("values.xlsx"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "export.dat")
+	if err := os.WriteFile(path, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	tab, err := ReadTable(path, ReadOptions{})
+	if err != nil || tab.Sheet != "Lab" {
+		t.Fatalf("read %v, err %v; want the sheet Lab", tab, err)
+	}
+	_, err = ReadTable(filepath.Join("..", "..", "testdata", "bad", "binary.bin"), ReadOptions{})
+	if err == nil || !strings.Contains(err.Error(), "not a text table") {
+		t.Errorf("binary zip: %v", err)
+	}
 }
