@@ -125,7 +125,7 @@ func CheckNewValues(m *Model, t *intake.Table) error {
 // cellError reports the value of variable c of sample i of t, named by its
 // line and column in the file where the table records them.
 func cellError(t *intake.Table, i, c int, value, reason string) *intake.InputError {
-	e := &intake.InputError{File: t.File, Name: t.Variables[c], Text: value, Reason: reason}
+	e := &intake.InputError{File: t.File, Sheet: t.Sheet, Name: t.Variables[c], Text: value, Reason: reason}
 	if i < len(t.Lines) {
 		e.Line = t.Lines[i]
 	}

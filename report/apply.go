@@ -51,6 +51,7 @@ type ApplySummary struct {
 type ApplyInput struct {
 	File         string                   `json:"file"`
 	SHA256       string                   `json:"sha256"`
+	Sheet        string                   `json:"sheet,omitempty"` // the worksheet read, for a workbook
 	Rows         int                      `json:"rows"`
 	RowsRead     int                      `json:"rows_read"`
 	RowsDropped  int                      `json:"rows_dropped"`
@@ -92,7 +93,7 @@ func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
 	t, m := app.Table, app.Model
 	s := ApplySummary{
 		Tool: ToolInfo{Name: "pcqc", Version: meta.Version},
-		Input: ApplyInput{File: t.File, SHA256: t.SHA256, Rows: t.Rows(), RowsRead: t.RowsRead, RowsDropped: t.RowsDropped,
+		Input: ApplyInput{File: t.File, SHA256: t.SHA256, Sheet: t.Sheet, Rows: t.Rows(), RowsRead: t.RowsRead, RowsDropped: t.RowsDropped,
 			MissingCells: t.MissingCells, ImputedCells: t.ImputedCells, Missing: missingInfo(t, batchImputedCells(t)),
 			IDColumn: optional(t.IDColumn), GroupColumn: optional(t.GroupColumn), Ignored: app.Extra, Dropped: t.DroppedVariables},
 		Model: ApplyModelInfo{AuditDir: run.AuditDir, File: m.Input.File, SHA256: m.Input.SHA256, Rows: m.Input.Rows, Retained: m.Retained,
@@ -177,6 +178,7 @@ type ApplyDocument struct {
 
 	NewFile, NewSHA256   string
 	MissingLists         MissingBlock
+	NewSheet             string // the worksheet read, for a workbook
 	Rows, RowsRead       int
 	Missing              string // how missing cells were handled
 	ModelFile, ModelHash string
@@ -221,7 +223,7 @@ func BuildApplyDocument(run ApplyRun, meta Meta, opt ReportOptions) *ApplyDocume
 	t, m := app.Table, app.Model
 	d := &ApplyDocument{
 		Title: opt.Title, Author: opt.Author, Date: opt.Date, Version: meta.Version, Invented: opt.Invented,
-		NewFile: t.File, NewSHA256: t.SHA256, Rows: t.Rows(), RowsRead: t.RowsRead,
+		NewFile: t.File, NewSHA256: t.SHA256, NewSheet: t.Sheet, Rows: t.Rows(), RowsRead: t.RowsRead,
 		ModelFile: m.Input.File, ModelHash: m.Input.SHA256, ModelRows: m.Input.Rows, Retained: m.Retained, ModelVersion: m.Tool.Version,
 		Preprocessing: fmt.Sprintf("transform: %s; centred with the training means; scaling: %s, with the training scales", transformText(m.Transform), scalingText(m.Scaling)),
 		Variables:     strings.Join(m.Variables, ", "),

@@ -164,6 +164,9 @@ func excludedBlock(res *analysis.Result) *ExcludedBlock {
 			countNoun(n, "sample")+" "+was(n), g4(app.Limits.T2_99), g4(app.Limits.Q99)),
 		Header: []string{"Sample", "Line", "T²", "Q", "Beyond"},
 	}
+	if app.Table.Sheet != "" {
+		b.Header[1] = "Row" // of the sheet
+	}
 	for a := 0; a < res.Retained; a++ {
 		b.Header = append(b.Header, componentName(a))
 	}

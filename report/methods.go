@@ -189,8 +189,12 @@ func methods(res *analysis.Result, meta Meta) (string, []Reference) {
 
 func dataSentence(res *analysis.Result, meta Meta) string {
 	t := res.Table
-	return fmt.Sprintf("Principal component analysis (Jolliffe & Cadima 2016) was carried out with pcqc %s on %s and %s of %s (SHA-256 %s…).",
-		meta.Version, countNoun(t.Rows(), "sample"), countNoun(len(t.Variables), "variable"), t.File, t.SHA256[:min(12, len(t.SHA256))])
+	sheet := ""
+	if t.Sheet != "" {
+		sheet = "sheet " + strconv.Quote(t.Sheet) + ", "
+	}
+	return fmt.Sprintf("Principal component analysis (Jolliffe & Cadima 2016) was carried out with pcqc %s on %s and %s of %s (%sSHA-256 %s…).",
+		meta.Version, countNoun(t.Rows(), "sample"), countNoun(len(t.Variables), "variable"), t.File, sheet, t.SHA256[:min(12, len(t.SHA256))])
 }
 
 // layoutSentence says how the text around the table was read, when it

@@ -139,6 +139,7 @@ func briefLimit(v any) string {
 
 type DataBlock struct {
 	File, SHA256                string
+	Sheet                       string // the worksheet read, for a workbook
 	RowsRead, Rows, RowsDropped int
 	VariablesUsed               int
 	VariableList                string
@@ -435,7 +436,7 @@ func optionText(v any) string {
 func dataBlock(res *analysis.Result) DataBlock {
 	t := res.Table
 	b := DataBlock{
-		File: t.File, SHA256: t.SHA256,
+		File: t.File, SHA256: t.SHA256, Sheet: t.Sheet,
 		RowsRead: t.RowsRead, Rows: t.Rows(), RowsDropped: t.RowsDropped,
 		VariablesUsed: len(t.Variables), Dropped: t.DroppedVariables,
 		IDColumn: t.IDColumn, GroupColumn: t.GroupColumn,

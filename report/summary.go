@@ -80,6 +80,7 @@ type ToolInfo struct {
 type InputInfo struct {
 	File             string                   `json:"file"`
 	SHA256           string                   `json:"sha256"`
+	Sheet            string                   `json:"sheet,omitempty"` // the worksheet read, for a workbook
 	Rows             int                      `json:"rows"`
 	RowsRead         int                      `json:"rows_read"`
 	RowsDropped      int                      `json:"rows_dropped"`
@@ -428,6 +429,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 		Input: InputInfo{
 			File:             t.File,
 			SHA256:           t.SHA256,
+			Sheet:            t.Sheet,
 			Rows:             t.Rows(),
 			RowsRead:         t.RowsRead,
 			RowsDropped:      t.RowsDropped,

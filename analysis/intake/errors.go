@@ -5,6 +5,7 @@ import (
 	"pcqc/internal/safetext"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 )
 
@@ -19,6 +20,9 @@ type InputError struct {
 	Name   string // column name, when known
 	Text   string // the offending cell or argument, when there is one
 	Reason string
+	// Sheet, set for a spreadsheet, makes Line the sheet's row and Column
+	// its column, written as the spreadsheet writes them: Sheet1!C17.
+	Sheet string
 }
 
 // Error formats the error as one line. Every field may hold text from the
@@ -28,7 +32,10 @@ type InputError struct {
 func (e *InputError) Error() string {
 	var b strings.Builder
 	b.WriteString(escapeControls(e.File))
-	if e.Line > 0 {
+	if e.Sheet != "" {
+		b.WriteString(": ")
+		b.WriteString(escapeControls(CellName(e.Sheet, e.Line, e.Column)))
+	} else if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
 		if e.Column > 0 {
 			fmt.Fprintf(&b, ":%d", e.Column)
@@ -68,3 +75,34 @@ func QuoteText(s string) string {
 // instead of showing (see internal/safetext), line ends and tabs included,
 // so that a message stays one line.
 func escapeControls(s string) string { return safetext.Escape(s) }
+
+// CellName writes a position in a sheet as a spreadsheet does: Sheet1!C17
+// for a cell, 'Lab data'!C17 when the sheet's name needs quotes, and
+// "Sheet1 row 17" or "Sheet1 column C" when only one of them is known.
+func CellName(sheet string, row, col int) string {
+	s := sheet
+	if strings.ContainsFunc(sheet, func(r rune) bool {
+		return !(r == '_' || r == '.' || unicode.IsLetter(r) || unicode.IsDigit(r))
+	}) {
+		s = "'" + strings.ReplaceAll(sheet, "'", "''") + "'"
+	}
+	switch {
+	case row > 0 && col > 0:
+		return s + "!" + ColumnLetters(col) + strconv.Itoa(row)
+	case row > 0:
+		return s + " row " + strconv.Itoa(row)
+	case col > 0:
+		return s + " column " + ColumnLetters(col)
+	}
+	return s
+}
+
+// ColumnLetters names a 1-based column as spreadsheets do: A … Z, AA … ZZ,
+// AAA and so on.
+func ColumnLetters(col int) string {
+	var b []byte
+	for ; col > 0; col = (col - 1) / 26 {
+		b = append([]byte{byte('A' + (col-1)%26)}, b...)
+	}
+	return string(b)
+}

@@ -59,6 +59,20 @@ var errLineTooLong = fmt.Errorf("the line is longer than %d MiB without a line e
 // when the input ends inside a quoted field.
 var errUnterminatedQuote = errors.New("quoted field is not closed before the end of the file")
 
+// recordSource gives a table's records one at a time: the lines of
+// delimited text, or the rows of a spreadsheet's sheet. The fields of a
+// record are valid until the next read; position is the line (or sheet row)
+// on which the record last returned starts.
+type recordSource interface {
+	read() ([][]byte, error)
+	position() int
+	// commentCount is the number of comment lines passed over so far.
+	commentCount() int
+}
+
+func (r *recordReader) position() int     { return r.recLine }
+func (r *recordReader) commentCount() int { return r.comments }
+
 func newRecordReader(br *bufio.Reader, delim byte) *recordReader {
 	return &recordReader{br: br, delim: delim}
 }

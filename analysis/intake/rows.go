@@ -6,7 +6,9 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"regexp"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 
@@ -153,6 +155,10 @@ func (rp *rowParser) textHint(raw []byte) string {
 	switch {
 	case strings.HasPrefix(t, "<") || strings.HasPrefix(t, ">"):
 		return "cannot read as a number (a limit needs its value, as in <0.05; then use --censored half or --censored sqrt2):"
+	case slices.Contains(spreadsheetErrors, strings.ToUpper(t)):
+		return "cannot read as a number (a spreadsheet error value; correct the formula, or clear the cell to mark it missing):"
+	case isoDateText.MatchString(t):
+		return "cannot read as a number (a date; a date column can be the --id or the --group, or left out with --drop):"
 	case len(unsigned) > 2 && unsigned[0] == '0' && (unsigned[1] == 'x' || unsigned[1] == 'X'):
 		return "cannot read as a number (hexadecimal notation; write the number in decimal):"
 	case strings.Contains(t, "_"):
@@ -188,6 +194,14 @@ func (rp *rowParser) commaAdvice(t string) string {
 	}
 	return fmt.Sprintf("cannot read as a number (a decimal comma? %s):", dec)
 }
+
+// spreadsheetErrors are the error values a spreadsheet writes in a cell
+// whose formula failed (#N/A is read as a missing cell instead).
+var spreadsheetErrors = []string{"#NULL!", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#GETTING_DATA", "#SPILL!", "#CALC!", "#FIELD!", "#BLOCKED!", "#CONNECT!", "#BUSY!", "#UNKNOWN!"}
+
+// isoDateText matches a date as a spreadsheet's date cell is read
+// (2024-03-05, with an optional time of day).
+var isoDateText = regexp.MustCompile(`^\d{4}-\d\d-\d\d(T\d\d:\d\d:\d\d)?$`)
 
 // looksGrouped reports whether t reads as digits grouped by thousands
 // separators, such as 1,234,567 or 1.234,5 or 1 234.

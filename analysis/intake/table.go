@@ -75,6 +75,9 @@ type ReadOptions struct {
 	// numbers written in well-formed groups of three ("1,234,567"); ' '
 	// stands for a space, a no-break space or a narrow no-break space.
 	Thousands byte
+	// Sheet names the worksheet of an .xlsx workbook to read, by name or
+	// 1-based number; empty means the first.
+	Sheet string
 
 	// For new samples scored against a saved model (apply): MinRows is the
 	// fewest rows accepted (default 3, which a PCA needs); KeepConstant
@@ -111,6 +114,7 @@ type DroppedRow struct {
 // came from.
 type Table struct {
 	File      string // file name as given by the user
+	Sheet     string // the sheet read, for a spreadsheet; "" for text
 	SHA256    string // of the bytes read
 	Delimiter byte
 	Encoding  Encoding // the text encoding the file was read in
@@ -292,6 +296,12 @@ func isInfinityWord(b []byte) bool {
 
 // ReadTable reads and validates the table in the named file.
 func ReadTable(path string, opt ReadOptions) (*Table, error) {
+	if book, err := isWorkbook(path, opt); err != nil || book {
+		if err != nil {
+			return nil, err
+		}
+		return readWorkbook(path, opt)
+	}
 	f, err := openData(path)
 	if err != nil {
 		return nil, err
@@ -466,9 +476,13 @@ func checkWidth(name string, line int, rec [][]byte, names []string) error {
 		Reason: fmt.Sprintf("ragged row: %d fields but the header has %d", len(rec), len(names))}
 }
 
-func readError(name string, rr *recordReader, err error) error {
+func readError(name string, src recordSource, err error) error {
 	if te, ok := err.(*textError); ok {
 		return &InputError{File: name, Line: te.line, Column: te.col, Text: te.text, Reason: te.reason}
+	}
+	rr, ok := src.(*recordReader)
+	if !ok {
+		return &InputError{File: name, Line: src.position(), Reason: "read error: " + err.Error()}
 	}
 	switch err {
 	case errUnterminatedQuote:
@@ -481,7 +495,7 @@ func readError(name string, rr *recordReader, err error) error {
 
 // namedReadError is readError for a record under a known header: a bad byte
 // in a data row is named by its column, as a bad number would be.
-func namedReadError(name string, rr *recordReader, err error, names []string) error {
+func namedReadError(name string, rr recordSource, err error, names []string) error {
 	e := readError(name, rr, err)
 	if ie, ok := e.(*InputError); ok && ie.Column > 0 && ie.Column <= len(names) {
 		ie.Name = names[ie.Column-1]
@@ -545,6 +559,12 @@ func TableFromMatrix(name string, x *mat.Dense, variables, ids []string) *Table 
 // name them, so that callers can choose columns before reading. It uses the
 // Delimiter, Encoding, Skip and Comment of opt.
 func ReadHeader(path string, opt ReadOptions) ([]string, error) {
+	if book, err := isWorkbook(path, opt); err != nil || book {
+		if err != nil {
+			return nil, err
+		}
+		return workbookHeader(path, opt)
+	}
 	f, err := openData(path)
 	if err != nil {
 		return nil, err

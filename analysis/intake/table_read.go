@@ -27,8 +27,11 @@ type tableReader struct {
 
 	hasher hash.Hash // of the bytes read, when there was no first pass
 	src    *textSource
-	rr     *recordReader
+	rr     recordSource
 	delim  byte
+	// sheet is set instead of src for a spreadsheet: its records come
+	// from the sheet's rows, already hashed.
+	sheet *sheetSource
 
 	// From the header.
 	names      []string
@@ -68,9 +71,23 @@ func (r *tableReader) fail(line, col int, colName, text, reason string) error {
 // without quotes be parsed in parallel.
 func readTable(name string, r io.Reader, opt ReadOptions, scan *scanned) (*Table, error) {
 	tr := &tableReader{name: name, opt: withDefaults(opt), scan: scan, idCol: -1, groupCol: -1}
+	return tr.read(func() error { return tr.open(r) })
+}
+
+// readSheet reads a table from a spreadsheet's rows through the same steps
+// as delimited text, so that every check and message applies to both.
+func readSheet(name string, sheet *sheetSource, opt ReadOptions) (*Table, error) {
+	tr := &tableReader{name: name, opt: withDefaults(opt), sheet: sheet, rr: sheet, idCol: -1, groupCol: -1}
+	sheet.comment = opt.Comment
+	return tr.read(func() error { return sheet.skipRows(name, opt.Skip) })
+}
+
+// read runs the steps after open, which starts the records.
+func (tr *tableReader) read(open func() error) (*Table, error) {
 	steps := []func() error{
-		func() error { return tr.open(r) },
+		open,
 		tr.readHeaderRow,
+		tr.checkSheetHeader,
 		tr.readUnitsRow,
 		tr.chooseColumns,
 		tr.sampleRows,
@@ -151,6 +168,9 @@ func (r *tableReader) open(in io.Reader) error {
 // written.
 func (r *tableReader) readHeaderRow() error {
 	header, err := r.rr.read()
+	if err == io.EOF && r.sheet != nil {
+		return r.fail(0, 0, "", "", "empty sheet: a header row and at least 3 data rows are needed")
+	}
 	if err == io.EOF {
 		return r.fail(0, 0, "", "", "empty file: a header row and at least 3 data rows are needed")
 	}
@@ -166,12 +186,15 @@ func (r *tableReader) readHeaderRow() error {
 			if r.names[k] != n {
 				reason = fmt.Sprintf("duplicate column name (also column %d, the same name in another Unicode normal form):", k+1)
 			}
-			return r.fail(r.rr.recLine, j+1, "", n, reason)
+			return r.fail(r.rr.position(), j+1, "", n, reason)
 		}
 		r.seen[key] = j
 	}
-	r.headerLine = r.rr.recLine
-	r.dataFrom, r.leadComments = r.headerLine, r.rr.comments
+	r.headerLine = r.rr.position()
+	if len(r.names) < 2 && r.sheet != nil {
+		return r.fail(r.headerLine, 0, "", "", "the header row has a single column; a table needs a header cell above each column")
+	}
+	r.dataFrom, r.leadComments = r.headerLine, r.rr.commentCount()
 	if len(r.names) < 2 {
 		return r.fail(r.headerLine, 0, "", "", fmt.Sprintf("the header has a single column; fields are separated by %s here (use --delim if that is wrong)", delimName(r.delim)))
 	}
@@ -238,10 +261,10 @@ func (r *tableReader) sampleRows() error {
 		if err != nil {
 			return namedReadError(r.name, r.rr, err, r.names)
 		}
-		if rec, err = dropTrailing(r.name, r.rr.recLine, rec, r.names, r.trailing); err != nil {
+		if rec, err = dropTrailing(r.name, r.rr.position(), rec, r.names, r.trailing); err != nil {
 			return err
 		}
-		if err := checkWidth(r.name, r.rr.recLine, rec, r.names); err != nil {
+		if err := checkWidth(r.name, r.rr.position(), rec, r.names); err != nil {
 			return err
 		}
 		row := make([]string, len(rec))
@@ -249,7 +272,7 @@ func (r *tableReader) sampleRows() error {
 			row[j] = string(c)
 		}
 		r.sample = append(r.sample, row)
-		r.sampleLines = append(r.sampleLines, r.rr.recLine)
+		r.sampleLines = append(r.sampleLines, r.rr.position())
 	}
 	if len(r.sample) == 0 {
 		return r.fail(r.headerLine, 0, "", "", "the file has a header but no data rows")
@@ -368,12 +391,15 @@ func (r *tableReader) parseRows() error {
 			return namedReadError(r.name, r.rr, err, r.names)
 		}
 		r.sink.ensure(n)
-		if err := r.rp.parse(rec, r.rr.recLine, n+1, n, r.sink); err != nil {
+		if err := r.rp.parse(rec, r.rr.position(), n+1, n, r.sink); err != nil {
 			return err
 		}
 		n++
 	}
 	r.sink.truncate(n)
+	if r.src == nil {
+		return nil
+	}
 	if _, err := io.Copy(io.Discard, r.src.br); err != nil {
 		return r.fail(0, 0, "", "", "read error: "+err.Error())
 	}
@@ -404,9 +430,12 @@ func (r *tableReader) parseParallel() error {
 // newTable starts the Table from what was read: provenance and counts.
 func (r *tableReader) newTable() *Table {
 	hash := ""
-	if r.scan != nil {
+	switch {
+	case r.sheet != nil:
+		hash = r.sheet.sha256
+	case r.scan != nil:
 		hash = r.scan.sha256
-	} else {
+	default:
 		hash = hex.EncodeToString(r.hasher.Sum(nil))
 	}
 	t := &Table{
@@ -423,11 +452,16 @@ func (r *tableReader) newTable() *Table {
 		SkippedLines: r.opt.Skip,
 		// The sequential reader saw every comment after the preamble; the
 		// parallel one re-read the data rows, counted in the sink.
-		CommentLines:   r.src.comments + r.rr.comments,
+		CommentLines:   r.rr.commentCount(),
 		GroupedNumbers: r.sink.grouped,
 	}
-	if r.sink.chunked {
+	switch {
+	case r.sheet != nil:
+		t.Sheet = r.sheet.name
+	case r.sink.chunked:
 		t.CommentLines = r.src.comments + r.leadComments + r.sink.comments
+	default:
+		t.CommentLines += r.src.comments
 	}
 	if r.idCol >= 0 {
 		t.IDColumn = r.names[r.idCol]

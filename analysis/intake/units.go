@@ -21,10 +21,10 @@ func (r *tableReader) readUnitsRow() error {
 	if err != nil {
 		return namedReadError(r.name, r.rr, err, r.names)
 	}
-	if rec, err = dropTrailing(r.name, r.rr.recLine, rec, r.names, r.trailing); err != nil {
+	if rec, err = dropTrailing(r.name, r.rr.position(), rec, r.names, r.trailing); err != nil {
 		return err
 	}
-	if err := checkWidth(r.name, r.rr.recLine, rec, r.names); err != nil {
+	if err := checkWidth(r.name, r.rr.position(), rec, r.names); err != nil {
 		return err
 	}
 	r.units = make([]string, len(rec))
@@ -33,8 +33,8 @@ func (r *tableReader) readUnitsRow() error {
 			r.units[j] = u
 		}
 	}
-	r.unitsLine = r.rr.recLine
-	r.dataFrom, r.leadComments = r.unitsLine, r.rr.comments
+	r.unitsLine = r.rr.position()
+	r.dataFrom, r.leadComments = r.unitsLine, r.rr.commentCount()
 	return nil
 }
 

@@ -35,6 +35,7 @@ type auditFlags struct {
 	comment      string
 	unitsRow     bool
 	thousands    string
+	sheet        string
 	transform    string
 	scale        string
 	components   string
@@ -70,6 +71,7 @@ func (f *auditFlags) register(fs *flag.FlagSet, defaultOut string) {
 	fs.StringVar(&f.comment, "comment", "", "")
 	fs.BoolVar(&f.unitsRow, "units-row", false, "")
 	fs.StringVar(&f.thousands, "thousands", "", "")
+	fs.StringVar(&f.sheet, "sheet", "", "")
 	fs.StringVar(&f.transform, "transform", string(intake.TransformNone), "")
 	fs.StringVar(&f.scale, "scale", string(analysis.ScaleUnit), "")
 	fs.StringVar(&f.components, "components", analysis.DefaultComponentRule.String(), "")
@@ -122,6 +124,8 @@ const auditFlagHelp = `Input:
   --thousands SEP     , | . | space | ' : remove this digit-group separator
                       from numbers in groups of three (1,234,567); anything
                       else holding it is refused. Not the decimal mark
+  --sheet NAME|N      the worksheet of an .xlsx workbook to read, by name or
+                      number from 1 (default: the first sheet)
 
 Preprocessing (centring is always done):
   --transform T       none | log | log10 | log1p (default none)
@@ -253,6 +257,7 @@ func (f *auditFlags) readOptions() (intake.ReadOptions, error) {
 		return opt, usagef("invalid --encoding %q: use utf-8, latin1 or cp1252", f.encoding)
 	}
 	opt.Encoding = enc
+	opt.Sheet = f.sheet
 	opt.IDColumn, opt.GroupColumn = f.id, f.group
 	opt.Columns, opt.Drop = splitList(f.columns), splitList(f.drop)
 	if opt.Missing, err = oneOf("missing", f.missing, []intake.MissingPolicy{intake.MissingFail, intake.MissingDrop, intake.MissingMean, intake.MissingIterative}); err != nil {
@@ -355,7 +360,8 @@ func (f *auditFlags) effective(read intake.ReadOptions, t *intake.Table) report.
 		{Name: "missing", Value: string(read.Missing)},
 		{Name: "censored", Value: string(read.Censored)},
 		{Name: "delim", Value: delim},
-		{Name: "delim_used", Value: string(t.Delimiter)},
+		{Name: "delim_used", Value: delimUsed(t)},
+		{Name: "sheet", Value: t.Sheet},
 		{Name: "decimal", Value: f.decimal},
 		{Name: "encoding", Value: string(read.Encoding)},
 		{Name: "skip", Value: read.Skip},
@@ -489,4 +495,13 @@ func (f *auditFlags) validate(reads ...string) (intake.ReadOptions, error) {
 		return read, err
 	}
 	return read, nil
+}
+
+// delimUsed is the field separator the table was read with; a spreadsheet
+// has none.
+func delimUsed(t *intake.Table) string {
+	if t.Delimiter == 0 {
+		return ""
+	}
+	return string(t.Delimiter)
 }
