@@ -126,16 +126,18 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 }
 
 // limitMemory sets a soft limit on the heap from the size of the data
-// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 96 MiB,
-// and never below 384 MiB. The analysis itself needs about two copies (the
-// preprocessed matrix and one resampling workspace); without a limit the
-// garbage collector lets the heap grow to twice what is live before it
-// collects, which for large tables means gigabytes of garbage.
+// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 64 MiB.
+// The analysis itself needs about two copies (the preprocessed matrix and
+// one resampling or permutation workspace); without a limit the garbage
+// collector lets the heap grow to twice what is live before it collects,
+// which for large tables means hundreds of megabytes of garbage. The limit
+// is soft: when more is live, the collector runs more often and the heap
+// grows past it rather than failing.
 func limitMemory(t *intake.Table) {
 	if os.Getenv("GOMEMLIMIT") != "" {
 		return
 	}
 	n, p := t.X.Dims()
 	data := int64(8 * n * p)
-	debug.SetMemoryLimit(max(384<<20, data*9/4+96<<20))
+	debug.SetMemoryLimit(data*9/4 + 64<<20)
 }
