@@ -81,7 +81,11 @@ type imputeRun struct {
 //     completed data, z = (x − m)/c;
 //  2. takes the SVD z = U D Vᵀ, with eigenvalues λ_s ∝ d_s², and estimates
 //     the noise variance σ² as the mean of the eigenvalues beyond the first
-//     S (of the min(n−1, p) a centred matrix has);
+//     S (of the min(n−1, p) a centred matrix has), the simple form of the
+//     paper's estimate (from memory: the authors also describe a version
+//     with a degrees-of-freedom correction of the denominator, which pcqc
+//     does not use; the numpy reference in testdata/impute uses the same
+//     simple form, so the agreement tested is with this form);
 //  3. reconstructs ẑ = Σ_{s≤S} d_s·(λ_s − σ²)/λ_s · u_s v_sᵀ, the
 //     singular values shrunk towards zero by the noise share, which keeps
 //     the imputation from overfitting the observed cells;
