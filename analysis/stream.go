@@ -77,8 +77,9 @@ type StreamResult struct {
 // StreamAnalyze audits the table at path in two passes over the file: the
 // first accumulates the sums (and the reservoir and bootstrap sums), the
 // second computes each sample's scores, T², Q and limits and hands them to
-// each (for the samples table), in file order.
-func StreamAnalyze(path string, read intake.ReadOptions, opt StreamOptions, each func(StreamSample) error) (*StreamResult, error) {
+// each (for the samples table), in file order. ready, when not nil, is
+// called between the passes, once the decomposition is known.
+func StreamAnalyze(path string, read intake.ReadOptions, opt StreamOptions, each func(StreamSample) error, ready func(*StreamResult) error) (*StreamResult, error) {
 	if opt.Scaling == "" {
 		opt.Scaling = ScaleUnit
 	}
@@ -110,7 +111,15 @@ func StreamAnalyze(path string, read intake.ReadOptions, opt StreamOptions, each
 	}
 	r.Limits = TrainingLimits(r.Rows, r.Retained, r.Decomp.Eigenvalues)
 	r.summariseBootstrap(fp.boot, keep)
-	return r, r.secondPass(st, keep, each)
+	if ready != nil {
+		if err := ready(r); err != nil {
+			return nil, err
+		}
+	}
+	if err := r.secondPass(st, keep, each); err != nil {
+		return nil, err
+	}
+	return r, nil
 }
 
 // firstPass reads the file once into sums.

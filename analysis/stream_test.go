@@ -72,7 +72,7 @@ func TestStreamAnalyzeMatchesInMemory(t *testing.T) {
 				got, err := StreamAnalyze(tb.path, tb.read, StreamOptions{Scaling: sc, Components: rule}, func(s StreamSample) error {
 					t2, q, lev, ids = append(t2, s.T2), append(q, s.Q), append(lev, s.Lev), append(ids, s.ID)
 					return nil
-				})
+				}, nil)
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -132,7 +132,7 @@ func TestStreamParallelAnalysisAgreesWithFullPermutations(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			got, err := StreamAnalyze(path, intake.ReadOptions{}, StreamOptions{Permutations: 500, Reservoir: tc.reservoir}, func(StreamSample) error { return nil })
+			got, err := StreamAnalyze(path, intake.ReadOptions{}, StreamOptions{Permutations: 500, Reservoir: tc.reservoir}, func(StreamSample) error { return nil }, nil)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -171,7 +171,7 @@ func TestStreamBootstrapAgreesWithInMemory(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	got, err := StreamAnalyze(path, intake.ReadOptions{}, StreamOptions{Components: rule, Bootstrap: 300}, func(StreamSample) error { return nil })
+	got, err := StreamAnalyze(path, intake.ReadOptions{}, StreamOptions{Components: rule, Bootstrap: 300}, func(StreamSample) error { return nil }, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
