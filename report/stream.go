@@ -82,7 +82,16 @@ func WriteStream(dir string, res *analysis.StreamResult, meta Meta, ropt ReportO
 	if !md {
 		return nil
 	}
-	return os.WriteFile(filepath.Join(dir, "report.md"), []byte(streamMarkdown(res, meta, ropt)), 0o644)
+	caption, drawn, err := streamScoreFigure(res, dir)
+	if err != nil {
+		return err
+	}
+	text := streamMarkdown(res, meta, ropt)
+	if drawn {
+		fig := fmt.Sprintf("\n![%s](figures/stream-scores.png)\n\n*%s*\n", caption, caption)
+		text = strings.Replace(text, "\n## Cautions", fig+"\n## Cautions", 1)
+	}
+	return os.WriteFile(filepath.Join(dir, "report.md"), []byte(text), 0o644)
 }
 
 func streamVarianceRows(res *analysis.StreamResult) [][]string {

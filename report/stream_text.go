@@ -39,7 +39,7 @@ var streamNotRun = []string{
 	"cross-validation (PRESS): needs every row",
 	"leave-one-out influence, robust fit, refit without flagged samples: need every row",
 	"tail-adapted and Phase I control limits: need every sample's scores; the limits are normal theory",
-	"figures, PDF and HTML: the report is Markdown",
+	"PDF and HTML renderings and the figures other than one score plot: the report is Markdown",
 }
 
 func streamSummary(res *analysis.StreamResult, meta Meta) streamSummaryJSON {

@@ -20,7 +20,7 @@ Tables larger than memory:
                       on a random sample of 10,000 rows; the bootstrap weights
                       rows by Poisson(1) counts; cross-validation, influence,
                       the robust fit, tail-adapted limits, the checks and the
-                      figures are left out; the report is Markdown. Refused
+                      figures but one score plot are left out; the report is Markdown. Refused
                       with --exclude, --exclude-file and --components cv
 `
 

@@ -90,7 +90,7 @@ func TestStreamRunWritesOutputs(t *testing.T) {
 		t.Fatalf("summary.json: %v %v", err, sum)
 	}
 	md, _ := os.ReadFile(filepath.Join(out, "report.md"))
-	for _, want := range []string{"streamed", "reservoir", "Poisson", "Left out", "cross-validation"} {
+	for _, want := range []string{"streamed", "reservoir", "Poisson", "Left out", "cross-validation", "figures/stream-scores.png"} {
 		if !strings.Contains(string(md), want) {
 			t.Errorf("report.md does not mention %q", want)
 		}
