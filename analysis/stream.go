@@ -26,6 +26,12 @@ type StreamOptions struct {
 // clearly above noise; the score plots draw at most about 5,000 points.
 const DefaultReservoir = 10000
 
+// MaxStreamVariables bounds p in stream mode: the sums hold p(p+1)/2
+// numbers and the reservoir DefaultReservoir·p, 16 MB and 160 MB at p =
+// 2,000, and the p×p eigen-decomposition takes a few seconds there. Wider
+// tables are audited in memory, where the n×n route serves them.
+const MaxStreamVariables = 2000
+
 // MaxBootstrapSums bounds B·p(p+1)/2, the numbers the Poisson bootstrap
 // keeps (8 bytes each): 32 million is 256 MB, e.g. B = 500 with p ≤ 357.
 const MaxBootstrapSums = 32 << 20
@@ -131,6 +137,9 @@ func (r *StreamResult) firstPass(st *intake.Stream) (*firstPass, error) {
 	}
 	wide := false
 	err := st.Pass(func(row intake.StreamRow) error {
+		if fp.sums == nil && len(row.Values) > MaxStreamVariables {
+			return &intake.InputError{File: st.Path(), Line: row.Line, Reason: fmt.Sprintf("--stream is for tall tables of at most %d variables (this one has %d); audit it in memory, or choose columns with --columns", MaxStreamVariables, len(row.Values))}
+		}
 		if fp.sums == nil && len(fp.boot)*len(row.Values)*(len(row.Values)+1)/2 > MaxBootstrapSums {
 			fp.boot, wide = nil, true
 		}

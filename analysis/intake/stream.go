@@ -214,3 +214,6 @@ func (r *tableReader) streamInfo(rows int) StreamInfo {
 // IsConstantRange reports whether a column spanning [lo, hi] is constant
 // in the sense ReadTable drops constant columns.
 func IsConstantRange(lo, hi float64) bool { return isConstant(lo, hi) }
+
+// Path returns the streamed file's name as given.
+func (s *Stream) Path() string { return s.path }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -100,6 +101,19 @@ func TestStreamRunWritesOutputs(t *testing.T) {
 	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
 		t.Fatal(err)
 	}
+	var header, row strings.Builder
+	for j := 0; j <= 2000; j++ {
+		fmt.Fprintf(&header, "v%d,", j)
+		fmt.Fprintf(&row, "%d,", j%7)
+	}
+	wide := filepath.Join(dir, "wide.csv")
+	text := strings.TrimSuffix(header.String(), ",") + "\n"
+	for i := 0; i < 4; i++ {
+		text += strings.TrimSuffix(row.String(), ",") + "\n"
+	}
+	if err := os.WriteFile(wide, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	refusals := []struct {
 		name string
 		args []string
@@ -108,6 +122,7 @@ func TestStreamRunWritesOutputs(t *testing.T) {
 		{"exclude", []string{"../../testdata/datasets/usarrests.csv", "--exclude", "Ohio"}, "--exclude"},
 		{"cv", []string{"../../testdata/datasets/usarrests.csv", "--components", "cv"}, "--components cv"},
 		{"fifo", []string{fifo}, "regular file"},
+		{"wide", []string{wide}, "tall tables"},
 	}
 	for _, tc := range refusals {
 		t.Run(tc.name, func(t *testing.T) {
