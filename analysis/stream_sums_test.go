@@ -200,3 +200,19 @@ func assertDecompositionsEqual(t *testing.T, got, want *Decomposition, tol float
 		}
 	}
 }
+
+// A row added with weight w has the sums of the row added w times (West
+// 1979), and weight 0 leaves the sums as they were.
+func TestSumsWeightedEqualsRepeated(t *testing.T) {
+	x := synth.Gaussian(synth.RNG(2, 2), 200, 4)
+	weights := []float64{0, 1, 2, 3, 0, 5}
+	weighted, repeated := NewSums(4), NewSums(4)
+	for i := 0; i < 200; i++ {
+		w := weights[i%len(weights)]
+		weighted.AddWeighted(x.RawRowView(i), w)
+		for c := 0; c < int(w); c++ {
+			repeated.Add(x.RawRowView(i))
+		}
+	}
+	assertSumsEqual(t, weighted, repeated, 1e-12)
+}

@@ -38,6 +38,30 @@ func writeCSV(t *testing.T, x *mat.Dense) string {
 	return path
 }
 
+// withGaps writes x with every 97th cell (in row-major order) missing.
+func withGaps(t *testing.T, x *mat.Dense) string {
+	path := writeCSV(t, x)
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(raw), "\n")
+	cell := 0
+	for i := 1; i < len(lines); i++ {
+		fields := strings.Split(lines[i], ",")
+		for j := 1; j < len(fields); j++ {
+			if cell++; cell%97 == 0 {
+				fields[j] = "NA"
+			}
+		}
+		lines[i] = strings.Join(fields, ",")
+	}
+	if err := os.WriteFile(path, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
 func near(a, b, tol float64) bool {
 	return math.Abs(a-b) <= tol*math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
 }
@@ -54,6 +78,8 @@ func TestStreamAnalyzeMatchesInMemory(t *testing.T) {
 	}{
 		{"wine", filepath.Join("..", "testdata", "datasets", "wine.csv"), intake.ReadOptions{GroupColumn: "cultivar"}}, // UCI wine via scikit-learn 1.2
 		{"generated", writeCSV(t, gen), intake.ReadOptions{}},
+		{"gaps dropped", withGaps(t, gen), intake.ReadOptions{Missing: intake.MissingDrop}},
+		{"gaps filled", withGaps(t, gen), intake.ReadOptions{Missing: intake.MissingMean}},
 	}
 	for _, tb := range tables {
 		for _, sc := range []Scaling{ScaleUnit, ScaleRange, ScaleNone} {
