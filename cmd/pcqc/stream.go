@@ -16,12 +16,13 @@ Tables larger than memory:
   --stream            read DATA twice, row by row, instead of into memory: the
                       first pass accumulates the sums the decomposition needs,
                       the second writes samples.csv. DATA must be a regular
-                      CSV file (not stdin or a pipe). Parallel analysis runs
-                      on a random sample of 10,000 rows; the bootstrap weights
-                      rows by Poisson(1) counts; cross-validation, influence,
-                      the robust fit, tail-adapted limits, the checks and the
-                      figures but one score plot are left out; the report is Markdown. Refused
-                      with --exclude, --exclude-file and --components cv
+                      CSV file (not stdin or a pipe) of at most 2,000
+                      variables. Parallel analysis runs on a random sample of
+                      10,000 rows; the bootstrap weights rows by Poisson(1)
+                      counts; cross-validation, influence, the robust fit,
+                      tail-adapted limits, the checks and all figures but one
+                      score plot are left out; the report is Markdown.
+                      Refused with --exclude, --exclude-file, --components cv
 `
 
 // streamRefusal says why the flags given cannot stream, or "".
