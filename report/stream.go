@@ -91,6 +91,10 @@ func WriteStream(dir string, res *analysis.StreamResult, meta Meta, ropt ReportO
 		fig := fmt.Sprintf("\n![%s](figures/stream-scores.png)\n\n*%s*\n", caption, caption)
 		text = strings.Replace(text, "\n## Cautions", fig+"\n## Cautions", 1)
 	}
+	text += "\n## References\n\n"
+	for _, r := range referencesIn(text) {
+		text += "- " + r.Citation + "\n"
+	}
 	return os.WriteFile(filepath.Join(dir, "report.md"), []byte(text), 0o644)
 }
 

@@ -91,7 +91,8 @@ func TestStreamRunWritesOutputs(t *testing.T) {
 		t.Fatalf("summary.json: %v %v", err, sum)
 	}
 	md, _ := os.ReadFile(filepath.Join(out, "report.md"))
-	for _, want := range []string{"streamed", "reservoir", "Poisson", "Left out", "cross-validation", "figures/stream-scores.png"} {
+	for _, want := range []string{"streamed", "reservoir", "Poisson", "Left out", "cross-validation", "figures/stream-scores.png",
+		"Chan, T. F., Golub, G. H. & LeVeque", "Vitter, J. S. (1985)", "Hanley, J. A. & MacGibbon", "Horn, J. L. (1965)"} {
 		if !strings.Contains(string(md), want) {
 			t.Errorf("report.md does not mention %q", want)
 		}
