@@ -29,7 +29,7 @@ outputs are written), 2 usage or input error (nothing is written), 3 the
 file system refused the outputs, 70 an internal error (a bug; please
 report it), 129/130/143 interrupted.
 
-` + auditFlagHelp + excludeFlagHelp,
+` + auditFlagHelp + excludeFlagHelp + streamFlagHelp,
 	run: runRun,
 }
 
@@ -38,6 +38,7 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	var f auditFlags
 	f.register(fs, "")
 	f.exclude.register(fs)
+	stream := fs.Bool("stream", false, "")
 	pos, helped, err := parseCommand("run", fs, &f, args, 1, "one data file", stdout)
 	if helped || err != nil {
 		return exitOK, err
@@ -52,6 +53,9 @@ func runRun(args []string, stdout, stderr io.Writer) (int, error) {
 	}
 	if _, err := os.Stat(data); err != nil {
 		return 0, &intake.InputError{File: data, Reason: "cannot open: " + pathReason(err)}
+	}
+	if *stream {
+		return runStream(&f, read, data, append([]string{"pcqc", "run"}, args...), stdout, stderr)
 	}
 	t, err := intake.ReadTable(data, read)
 	if err != nil {
