@@ -9,8 +9,8 @@ import (
 
 // Random streams of the streamed audit (see taskRNG).
 const (
-	streamReservoir = 5 << 40
-	streamPoisson   = 6 << 40
+	streamReservoir = 11 << 40
+	streamPoisson   = 12 << 40
 )
 
 // Reservoir is a uniform random sample of rows kept while a table streams

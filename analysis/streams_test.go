@@ -11,6 +11,7 @@ func TestRandomStreamsAreDistinct(t *testing.T) {
 		"cross-validation": streamCrossValidation, "robust direction": streamRobustDirection,
 		"robust MCD": streamRobustMCD, "impute CV": streamImputeCV,
 		"BLB subset": streamBLBSubset, "BLB resample": streamBLBResample,
+		"stream reservoir": streamReservoir, "stream Poisson": streamPoisson,
 	}
 	seen := map[uint64]string{}
 	for name, s := range streams {

@@ -60,6 +60,12 @@ func OpenStream(path string, opt ReadOptions) (*Stream, error) {
 	if !st.Mode().IsRegular() {
 		return nil, &InputError{File: path, Reason: "--stream reads the file twice and needs a regular file, not a pipe, device or folder; save the data to a file first"}
 	}
+	if book, err := isWorkbook(path, opt); err != nil || book {
+		if err != nil {
+			return nil, err
+		}
+		return nil, &InputError{File: path, Reason: "--stream reads delimited text (CSV) only; a workbook is read whole: run without --stream, or export the sheet as CSV"}
+	}
 	s := &Stream{path: path, opt: opt, fill: opt.ImputeWith}
 	if opt.Missing == MissingMean && s.fill == nil {
 		if err := s.findFill(); err != nil {
@@ -179,7 +185,7 @@ func (r *tableReader) streamRows(fn func(StreamRow) error, fill []float64) (int,
 		if err != nil {
 			return 0, namedReadError(r.name, r.rr, err, r.names)
 		}
-		if err := one(rec, r.rr.recLine); err != nil {
+		if err := one(rec, r.rr.position()); err != nil {
 			return 0, err
 		}
 	}
