@@ -104,3 +104,25 @@ func TestBLBAgreesWithFullBootstrap(t *testing.T) {
 		})
 	}
 }
+
+// Under the little bootstraps every sample's influence yardstick is the
+// 95th percentile of all resamples' angles (they do not draw from every
+// sample): never zero, which would flag every sample whose leave-one-out
+// angle is above zero (it once did, on every sample of a 100,000-row table).
+func TestInfluenceLimitsUnderBLB(t *testing.T) {
+	angles := make([]float64, 200)
+	for r := range angles {
+		angles[r] = float64(r + 1) // 1 … 200 degrees
+	}
+	st := Stability{Scheme: SchemeBLB, SubspaceAngles: angles}
+	inf := Influence{Angle: []float64{0.5, 300, math.NaN()}}
+	want := percentile(angles, 95) // numpy.percentile(range(1, 201), 95) = 190.05
+	if math.Abs(want-190.05) > 1e-9 {
+		t.Fatalf("95th percentile %v, want 190.05 (numpy 1.24.2)", want)
+	}
+	for i, l := range InfluenceLimits(inf, st, 1) {
+		if l != want {
+			t.Errorf("sample %d: yardstick %v, want %v", i, l, want)
+		}
+	}
+}

@@ -494,6 +494,9 @@ func InfluenceLimits(inf Influence, st Stability, seed uint64) []float64 {
 		// Little bootstraps draw from subsets, not from every sample, and
 		// their angles are to the subset's own estimate: every sample gets
 		// the 95th percentile of all of them.
+		for i := range limits {
+			limits[i] = p95
+		}
 		return limits
 	}
 	var cand []int

@@ -10,21 +10,18 @@
 # For every size it generates a planted CSV (go run ./bench/gencsv: three
 # latent factors plus unit noise, six significant digits) and runs, under
 # GNU time (/usr/bin/time -v, Debian package "time"):
-#   bare     --bootstrap 0 --permutations 0 --format none
+#   bare     --bootstrap 0 --permutations 0 --format none --components 3 (the
+#            planted count: without permutations the default rule cannot run)
 #   nobs     --bootstrap 0 --format none         (memory bound: 2.5× matrix + 100 MB;
 #                                                  3× + 100 MB when p ≥ 10,000)
 #   default  the default audit, every format       (3× matrix + 150 MB; time ≤ 6× bare)
 # and prints, per run: wall seconds, peak RSS in MB, RSS / matrix, the bound,
 # and wall / bare. The matrix is 8·n·p bytes (float64).
 #
-# With --stream-rows N it also generates N × 20 (N = 20,000,000 makes a file
-# of about 3.5 GB: check `df -h` first) and runs
-#   read     --bootstrap 0 --permutations 0 --format none --stream-read-only
-# when pcqc has it, else times one plain read of the file (the ReadTableFile
-# benchmark's path, `pcqc run --stream --bootstrap 0 --permutations 0
-# --format none` is compared against it), then
-#   stream   --stream (default options otherwise, every format)
-# against the targets: peak RSS ≤ 1 GB, time ≤ 4× the plain read.
+# With --stream-rows N it also runs bench/stream.sh N 20 (N = 20,000,000
+# makes a file of about 3.6 GB: check `df -h` first), which times
+# `pcqc run --stream` against one plain read of the file by the same
+# streaming reader, against the targets: peak RSS ≤ 1 GB, time ≤ 4× the read.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
@@ -72,7 +69,7 @@ for size in $sizes; do
   bare=""
   for case in bare nobs default; do
     case $case in
-      bare) run "$case" "$file" --bootstrap 0 --permutations 0 --format none ;;
+      bare) run "$case" "$file" --bootstrap 0 --permutations 0 --components 3 --format none ;;
       nobs) run "$case" "$file" --bootstrap 0 --format none ;;
       default) run "$case" "$file" ;;
     esac
@@ -88,15 +85,5 @@ for size in $sizes; do
 done
 
 if [ "$stream_rows" -gt 0 ]; then
-  size="${stream_rows}x20"
-  file="$data/scale-$size.csv"
-  [ -f "$file" ] || "$work/gencsv" -n "$stream_rows" -p 20 -o "$file"
-  # One plain read: the bare streaming pass (parse every row, accumulate
-  # nothing beyond the sums) is what the target compares against.
-  run read "$file" --stream --bootstrap 0 --permutations 0 --format none
-  read_secs=$secs
-  printf '%-14s %-8s %9.1f %9d\n' "$size" "read" "$secs" "$rss_mb"
-  run stream "$file" --stream
-  printf '%-14s %-8s %9.1f %9d %8s %10d %8.1f (× the plain read; targets: ≤ 1000 MB, ≤ 4×)\n' "$size" "stream" "$secs" "$rss_mb" "-" 1000 \
-    "$(awk -v s="$secs" -v b="$read_secs" 'BEGIN {print s / b}')"
+  bench/stream.sh "$stream_rows" 20 0 1
 fi

@@ -3,7 +3,6 @@ package report
 import (
 	"fmt"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 
@@ -203,6 +202,11 @@ type WhatIfBlock struct {
 	Rows   [][]string
 }
 
+// whatIfNamed is how many flagged samples the refit's sentence names; a
+// sentence naming thousands helps no reader (and a long paragraph is slow
+// to lay out in the PDF).
+const whatIfNamed = 20
+
 // whatIfBlock is nil when no sample is flagged.
 func whatIfBlock(res *analysis.Result) *WhatIfBlock {
 	w := res.WhatIf
@@ -210,10 +214,14 @@ func whatIfBlock(res *analysis.Result) *WhatIfBlock {
 		return nil
 	}
 	var ids []string
-	for _, i := range w.Flagged {
-		ids = append(ids, res.Table.IDs[i]+" ("+strings.Join(w.Why[slices.Index(w.Flagged, i)], ", ")+")")
+	for k, i := range w.Flagged[:min(len(w.Flagged), whatIfNamed)] {
+		ids = append(ids, res.Table.IDs[i]+" ("+strings.Join(w.Why[k], ", ")+")")
 	}
-	who := fmt.Sprintf("The outlier and influence checks flag %s: %s.", countNoun(len(w.Flagged), "sample"), strings.Join(ids, "; "))
+	list := strings.Join(ids, "; ")
+	if more := len(w.Flagged) - len(ids); more > 0 {
+		list += fmt.Sprintf("; and %d more (samples.csv marks every sample's flags)", more)
+	}
+	who := fmt.Sprintf("The outlier and influence checks flag %s: %s.", countNoun(len(w.Flagged), "sample"), list)
 	if w.Refit == nil {
 		return &WhatIfBlock{Text: who + " They were not refitted: " + w.Skipped + "."}
 	}

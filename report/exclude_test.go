@@ -1,6 +1,8 @@
 package report
 
 import (
+	"fmt"
+	"strings"
 	"testing"
 
 	"pcqc/analysis"
@@ -55,5 +57,26 @@ func TestWhatIfMethodSentence(t *testing.T) {
 		if got != c.want {
 			t.Errorf("%s:\n got %q\nwant %q", c.name, got, c.want)
 		}
+	}
+}
+
+// The refit's sentence names at most whatIfNamed flagged samples and counts
+// the rest: a table where thousands are flagged must not put thousands of
+// names in one paragraph.
+func TestWhatIfSentenceNamesAFew(t *testing.T) {
+	const n = 500
+	ids := make([]string, n)
+	flagged := make([]int, n)
+	why := make([][]string, n)
+	for i := range ids {
+		ids[i], flagged[i], why[i] = fmt.Sprintf("s%d", i+1), i, []string{"q"}
+	}
+	res := &analysis.Result{Table: &intake.Table{IDs: ids}, WhatIf: &analysis.WhatIf{Flagged: flagged, Why: why, Skipped: "test"}}
+	b := whatIfBlock(res)
+	if got := strings.Count(b.Text, "(q)"); got != whatIfNamed {
+		t.Errorf("%d samples named, want %d: %.200s", got, whatIfNamed, b.Text)
+	}
+	if !strings.Contains(b.Text, fmt.Sprintf("and %d more", n-whatIfNamed)) || !strings.Contains(b.Text, "s20 (q)") || strings.Contains(b.Text, "s21 (q)") {
+		t.Errorf("sentence: %.300s", b.Text)
 	}
 }
