@@ -53,6 +53,9 @@ func OpenStream(path string, opt ReadOptions) (*Stream, error) {
 	if opt.Missing == MissingIterative {
 		return nil, &InputError{File: path, Reason: "--missing iterative needs every row in memory; it cannot be combined with --stream (use --missing mean or drop)"}
 	}
+	if opt.Censored == CensorHalf || opt.Censored == CensorSqrt2 {
+		return nil, &InputError{File: path, Reason: "--censored " + string(opt.Censored) + " lists every substituted cell, which --stream does not keep; run without --stream"}
+	}
 	st, err := os.Stat(path)
 	if err != nil {
 		return nil, &InputError{File: path, Reason: "cannot open: " + unwrapPathError(err)}
@@ -116,17 +119,8 @@ func (s *Stream) pass(fn func(StreamRow) error, fill bool) error {
 	}
 	defer f.Close()
 	r := &tableReader{name: s.path, opt: s.opt, idCol: -1, groupCol: -1}
-	steps := []func() error{
-		func() error { return r.open(f) },
-		r.readHeaderRow,
-		r.chooseColumns,
-		r.sampleRows,
-		r.classifyColumns,
-	}
-	for _, step := range steps {
-		if err := step(); err != nil {
-			return err
-		}
+	if err := runSteps(r.headSteps(func() error { return r.open(f) })); err != nil {
+		return err
 	}
 	var fillWith []float64
 	if fill {
@@ -142,8 +136,7 @@ func (s *Stream) pass(fn func(StreamRow) error, fill bool) error {
 
 // streamRows parses each row into a one-row sink and hands it on.
 func (r *tableReader) streamRows(fn func(StreamRow) error, fill []float64) (int, error) {
-	r.rp = &rowParser{file: r.name, names: r.names, varCols: r.varCols, idCol: r.idCol, groupCol: r.groupCol,
-		missing: r.opt.Missing, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing}
+	r.rp = r.newRowParser()
 	r.sink = newRowSink(len(r.varCols), 1, r.groupCol >= 0)
 	n := 0
 	one := func(rec [][]byte, line int) error {

@@ -35,11 +35,19 @@ func TestStreamRowsEqualReadTable(t *testing.T) {
 	if err := os.WriteFile(withGaps, []byte("id,a,b,c\nr1,1,2,3\nr2,,5,7\nr3,4,NA,1\nr4,2,2,9\nr5,8,1,2\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
+	layout := filepath.Join(dir, "layout.csv")
+	if err := os.WriteFile(layout, []byte("River survey\nid,a,b,c\n,mg/L,µS/cm,°C\n# field note\nr1,1,2,3\nr2,3,5,7\n# resampled\nr3,4,\"1,200\",1\nr4,2,2,9\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	cases := []struct {
 		name string
 		path string
 		opt  ReadOptions
 	}{
+		// A preamble, a units row, comments and digit groups: the stream
+		// must read them as ReadTable does (it once took the units row for
+		// data).
+		{"layout", layout, ReadOptions{Skip: 1, UnitsRow: true, Comment: '#', Thousands: ','}},
 		{"wine", filepath.Join("..", "..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar"}},
 		{"wine log", filepath.Join("..", "..", "testdata", "datasets", "wine.csv"), ReadOptions{GroupColumn: "cultivar", Transform: TransformLog, Drop: []string{"alcalinity_of_ash"}}},
 		{"usarrests", filepath.Join("..", "..", "testdata", "datasets", "usarrests.csv"), ReadOptions{}},

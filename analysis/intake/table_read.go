@@ -82,9 +82,12 @@ func readSheet(name string, sheet *sheetSource, opt ReadOptions) (*Table, error)
 	return tr.read(func() error { return sheet.skipRows(name, opt.Skip) })
 }
 
-// read runs the steps after open, which starts the records.
-func (tr *tableReader) read(open func() error) (*Table, error) {
-	steps := []func() error{
+// headSteps are the steps that start every reading, after open: the
+// header, the units row, the columns' roles, and the first rows that
+// classify the columns. ReadTable then parses the rows into a matrix, and a
+// Stream hands them on one by one.
+func (tr *tableReader) headSteps(open func() error) []func() error {
+	return []func() error{
 		open,
 		tr.readHeaderRow,
 		tr.checkSheetHeader,
@@ -92,12 +95,23 @@ func (tr *tableReader) read(open func() error) (*Table, error) {
 		tr.chooseColumns,
 		tr.sampleRows,
 		tr.classifyColumns,
-		tr.parseRows,
 	}
+}
+
+// runSteps runs steps in order and stops at the first error.
+func runSteps(steps []func() error) error {
 	for _, step := range steps {
 		if err := step(); err != nil {
-			return nil, err
+			return err
 		}
+	}
+	return nil
+}
+
+// read runs the steps after open, which starts the records.
+func (tr *tableReader) read(open func() error) (*Table, error) {
+	if err := runSteps(append(tr.headSteps(open), tr.parseRows)); err != nil {
+		return nil, err
 	}
 	t := tr.newTable()
 	tr.recordMissing(t)
@@ -254,17 +268,11 @@ func (r *tableReader) chooseColumns() error {
 // columns are numeric before the rest of the file is parsed.
 func (r *tableReader) sampleRows() error {
 	for len(r.sample) < classifyRows {
-		rec, err := r.rr.read()
+		rec, err := r.nextRecord()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return namedReadError(r.name, r.rr, err, r.names)
-		}
-		if rec, err = dropTrailing(r.name, r.rr.position(), rec, r.names, r.trailing); err != nil {
-			return err
-		}
-		if err := checkWidth(r.name, r.rr.position(), rec, r.names); err != nil {
 			return err
 		}
 		row := make([]string, len(rec))
@@ -278,6 +286,26 @@ func (r *tableReader) sampleRows() error {
 		return r.fail(r.headerLine, 0, "", "", "the file has a header but no data rows")
 	}
 	return nil
+}
+
+// nextRecord reads the next record under the header, with its positioned
+// errors: a bad byte named by its column, a value in an unnamed trailing
+// column, a ragged row. It returns io.EOF at the end.
+func (r *tableReader) nextRecord() ([][]byte, error) {
+	rec, err := r.rr.read()
+	if err == io.EOF {
+		return nil, err
+	}
+	if err != nil {
+		return nil, namedReadError(r.name, r.rr, err, r.names)
+	}
+	if rec, err = dropTrailing(r.name, r.rr.position(), rec, r.names, r.trailing); err != nil {
+		return nil, err
+	}
+	if err := checkWidth(r.name, r.rr.position(), rec, r.names); err != nil {
+		return nil, err
+	}
+	return rec, nil
 }
 
 // firstText returns the first text cell of column j of the sample (its row,
@@ -355,12 +383,17 @@ func (r *tableReader) classifyColumns() error {
 	return r.fail(r.sampleLines[firstBadRow], firstBad+1, r.names[firstBad], firstBadText, reason)
 }
 
+// newRowParser is the parser of data rows under the header and options read.
+func (r *tableReader) newRowParser() *rowParser {
+	return &rowParser{file: r.name, names: r.names, varCols: r.varCols, idCol: r.idCol, groupCol: r.groupCol,
+		missing: r.opt.Missing, censored: r.opt.Censored, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing,
+		thousands: r.opt.Thousands, delim: r.delim, comment: r.opt.Comment}
+}
+
 // parseRows parses every data row into the sink: line ranges of a large
 // file in parallel when that is safe, otherwise one record after another.
 func (r *tableReader) parseRows() error {
-	r.rp = &rowParser{file: r.name, names: r.names, varCols: r.varCols, idCol: r.idCol, groupCol: r.groupCol,
-		missing: r.opt.Missing, censored: r.opt.Censored, tr: r.opt.Transform, decimal: r.opt.Decimal, trailing: r.trailing,
-		thousands: r.opt.Thousands, delim: r.delim, comment: r.opt.Comment}
+	r.rp = r.newRowParser()
 	scan := r.scan
 	if scan != nil && !scan.quotes && scan.size >= parallelThreshold && r.opt.Delimiter != '"' && !r.src.cr && r.src.enc == EncodingUTF8 {
 		return r.parseParallel()

@@ -14,17 +14,11 @@ func (r *tableReader) readUnitsRow() error {
 	if !r.opt.UnitsRow {
 		return nil
 	}
-	rec, err := r.rr.read()
+	rec, err := r.nextRecord()
 	if err == io.EOF {
 		return r.fail(r.headerLine, 0, "", "", "--units-row is given but no row follows the header")
 	}
 	if err != nil {
-		return namedReadError(r.name, r.rr, err, r.names)
-	}
-	if rec, err = dropTrailing(r.name, r.rr.position(), rec, r.names, r.trailing); err != nil {
-		return err
-	}
-	if err := checkWidth(r.name, r.rr.position(), rec, r.names); err != nil {
 		return err
 	}
 	r.units = make([]string, len(rec))
