@@ -175,7 +175,9 @@ func scaleOf(s Scaling, v []float64) float64 {
 // new minimum) with the given fold pattern; errors are divided by unit
 // (per variable) so that PRESS is in the units of the preprocessed table.
 func ekf(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k, maxA, patience int, tol float64, maxIter, threads int, progress Progress) CrossValidation {
-	x = mat.DenseCopyOf(x) // contiguous, for the raw loops below
+	if raw := x.RawMatrix(); raw.Stride != raw.Cols {
+		x = mat.DenseCopyOf(x) // contiguous, for the raw loops below
+	}
 	n, p := x.Dims()
 	cv := CrossValidation{Folds: k, Rows: n, FoldPRESS: make([][]float64, k)}
 	for j := 0; j < p; j++ {
@@ -190,83 +192,34 @@ func ekf(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k, maxA, p
 			cv.SS += d * d
 		}
 	}
-	// Each fold's state: its training centring and scaling, and the
-	// current filled matrix (training elements preprocessed, left-out
-	// elements imputed), carried from one count to the next as the warm
-	// start of the imputation.
-	type foldState struct {
-		mean, scale []float64
-		w           *mat.Dense
-		miss        []int // row-major offsets of the left-out elements
-		ssObs       float64
-		nObs        int
-		iters       int
-		unconverged bool
-	}
-	states := make([]*foldState, k)
-	for f := 0; f < k; f++ {
-		st := &foldState{mean: make([]float64, p), scale: make([]float64, p), w: mat.NewDense(n, p, nil)}
-		var train []float64
-		for j := 0; j < p; j++ {
-			train = train[:0]
-			for i := 0; i < n; i++ {
-				if fold[i][j] != f {
-					train = append(train, x.At(i, j))
-				}
-			}
-			m := 0.0
-			for _, t := range train {
-				m += t
-			}
-			if len(train) > 0 {
-				m /= float64(len(train))
-			}
-			s := scaleOf(scaling, train)
-			if !(s > 0) { // constant on the training elements: keep the table's scale
-				s = unit[j]
-			}
-			st.mean[j], st.scale[j] = m, s
-			for i := 0; i < n; i++ {
-				if fold[i][j] != f {
-					v := (x.At(i, j) - m) / s
-					st.w.Set(i, j, v)
-					st.ssObs += v * v
-					st.nObs++
-				} // left-out elements start at the training mean, 0
-			}
-		}
-		for i := 0; i < n; i++ {
-			for j := 0; j < p; j++ {
-				if fold[i][j] == f {
-					st.miss = append(st.miss, i*p+j)
-				}
-			}
-		}
-		states[f] = st
-	}
-	press := func(f int) float64 {
+	states := foldStates(x, scaling, unit, fold, k)
+	fold = nil // the states hold what is needed: let the n × p labels go
+	xd := x.RawMatrix().Data
+	press := func(f int, w []float64) float64 {
 		st := states[f]
 		e := 0.0
-		xd, wd := x.RawMatrix().Data, st.w.RawMatrix().Data
 		for _, o := range st.miss {
-			j := o % p
-			d := (xd[o] - (st.mean[j] + st.scale[j]*wd[o])) / unit[j]
+			j := int(o) % p
+			d := (xd[o] - (st.mean[j] + st.scale[j]*w[o])) / unit[j]
 			e += d * d
 		}
 		return e
 	}
 	for f := 0; f < k; f++ {
-		cv.FoldPRESS[f] = []float64{press(f)}
+		// Left-out elements start at the training mean, 0.
+		cv.FoldPRESS[f] = []float64{press(f, make([]float64, n*p))}
 	}
 	cv.PRESS = []float64{sumFold(cv.FoldPRESS, 0)}
 	best, since := 0, 0
 	for a := 1; a <= maxA && since < patience; a++ {
 		parallelFor(k, threads, func() *imputeWorkspace { return &imputeWorkspace{} }, func(ws *imputeWorkspace, f int) {
 			st := states[f]
-			it, ok := imputePCA(st.w, st.miss, st.ssObs, st.nObs, a, tol, maxIter, ws)
+			w := st.fill(x, ws)
+			it, ok := imputePCA(w, st.miss, st.ssObs, st.nObs, a, tol, maxIter, ws)
+			st.keep(w)
 			st.iters = max(st.iters, it)
 			st.unconverged = !ok
-			cv.FoldPRESS[f] = append(cv.FoldPRESS[f], press(f))
+			cv.FoldPRESS[f] = append(cv.FoldPRESS[f], press(f, w.RawMatrix().Data))
 		}, "cross-validation", nil)
 		if progress != nil {
 			progress("cross-validation", a, maxA)
@@ -300,12 +253,106 @@ func ekf(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k, maxA, p
 	return cv
 }
 
+// sumFold sums the folds' PRESS at a components.
 func sumFold(fp [][]float64, a int) float64 {
 	s := 0.0
 	for _, f := range fp {
 		s += f[a]
 	}
 	return s
+}
+
+// foldState is one fold's state between component counts: its training
+// centring and scaling, and the current imputed values of its left-out
+// elements, carried from one count to the next as the warm start of the
+// imputation. The filled matrix itself is rebuilt from x in the worker's
+// workspace (fill), so that k folds hold k·(n·p/k) imputed values rather
+// than k copies of the matrix: on wide tables those copies were most of
+// the audit's memory.
+type foldState struct {
+	mean, scale []float64
+	miss        []int32   // row-major offsets of the left-out elements
+	imp         []float64 // their current values, preprocessed
+	ssObs       float64
+	nObs        int
+	iters       int
+	unconverged bool
+}
+
+// foldStates sets up every fold: training means and scales per column, the
+// sum of squares of the preprocessed training elements, and the left-out
+// elements, which start at the training mean (0).
+func foldStates(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k int) []*foldState {
+	n, p := x.Dims()
+	states := make([]*foldState, k)
+	train := make([]float64, 0, n)
+	for f := 0; f < k; f++ {
+		st := &foldState{mean: make([]float64, p), scale: make([]float64, p)}
+		for j := 0; j < p; j++ {
+			train = train[:0]
+			for i := 0; i < n; i++ {
+				if fold[i][j] != f {
+					train = append(train, x.At(i, j))
+				}
+			}
+			m := 0.0
+			for _, t := range train {
+				m += t
+			}
+			if len(train) > 0 {
+				m /= float64(len(train))
+			}
+			s := scaleOf(scaling, train)
+			if !(s > 0) { // constant on the training elements: keep the table's scale
+				s = unit[j]
+			}
+			st.mean[j], st.scale[j] = m, s
+			for _, t := range train {
+				v := (t - m) / s
+				st.ssObs += v * v
+			}
+			st.nObs += len(train)
+		}
+		for i := 0; i < n; i++ {
+			for j := 0; j < p; j++ {
+				if fold[i][j] == f {
+					st.miss = append(st.miss, int32(i*p+j))
+				}
+			}
+		}
+		st.imp = make([]float64, len(st.miss))
+		states[f] = st
+	}
+	return states
+}
+
+// fill writes the fold's filled matrix into the workspace: the training
+// elements preprocessed with the fold's centring and scaling, the left-out
+// ones at their current imputed values.
+func (st *foldState) fill(x *mat.Dense, ws *imputeWorkspace) *mat.Dense {
+	n, p := x.Dims()
+	if ws.w == nil {
+		ws.w = mat.NewDense(n, p, nil)
+	}
+	xd, wd := x.RawMatrix().Data, ws.w.RawMatrix().Data
+	for i := 0; i < n; i++ {
+		for j, v := range xd[i*p : (i+1)*p] {
+			wd[i*p+j] = (v - st.mean[j]) / st.scale[j]
+		}
+	}
+	for c, o := range st.miss {
+		wd[o] = st.imp[c]
+	}
+	return ws.w
+}
+
+// keep stores the imputed values of w's left-out elements for the next
+// count.
+func (st *foldState) keep(w *mat.Dense) {
+	wd := w.RawMatrix().Data
+	for c, o := range st.miss {
+		st.imp[c] = wd[o]
+	}
 }
 
 // sampleSD is the standard deviation with the n−1 divisor; 0 for fewer
@@ -317,12 +364,13 @@ func sampleSD(v []float64) float64 {
 	return stat.StdDev(v, nil)
 }
 
-// imputeWorkspace is the reusable memory of imputePCA.
+// imputeWorkspace is the reusable memory of a cross-validation worker: the
+// filled matrix of the fold it works on, and the scratch of imputePCA.
 type imputeWorkspace struct {
-	fit mat.Dense
-	wc  *mat.Dense
-	mu  []float64
-	sym mat.EigenSym
+	w    *mat.Dense
+	mu   []float64
+	sym  mat.EigenSym
+	v, t mat.Dense
 }
 
 // imputePCA fits an a-component PCA model with column offsets to w, whose
@@ -333,37 +381,50 @@ type imputeWorkspace struct {
 // root mean square change of the imputed elements is below tol times the
 // root mean square of the training elements. w holds the imputed values on
 // return. It returns the iterations used and whether they converged.
-func imputePCA(w *mat.Dense, miss []int, ssObs float64, nObs int, a int, tol float64, maxIter int, ws *imputeWorkspace) (int, bool) {
+//
+// w is centred in place during the iteration (its column offsets kept in
+// ws.mu and added back at the end) and the model is evaluated only at the
+// missing elements, so that no other n × p matrix is needed.
+func imputePCA(w *mat.Dense, miss []int32, ssObs float64, nObs int, a int, tol float64, maxIter int, ws *imputeWorkspace) (int, bool) {
 	n, p := w.Dims()
 	data := w.RawMatrix().Data // w is contiguous: made by mat.NewDense
 	limit := tol * tol * ssObs / float64(max(nObs, 1)) * float64(max(len(miss), 1))
-	if ws.wc == nil {
-		ws.wc = mat.NewDense(n, p, nil)
+	if len(ws.mu) != p {
 		ws.mu = make([]float64, p)
 	}
-	wc, mu := ws.wc.RawMatrix().Data, ws.mu
+	mu := ws.mu
+	clear(mu)
+	shift := make([]float64, p)
+	defer func() { // w back to the filled values, offsets added
+		for i := 0; i < n; i++ {
+			for j := range mu {
+				data[i*p+j] += mu[j]
+			}
+		}
+	}()
 	for it := 1; it <= maxIter; it++ {
-		// Offsets: the column means of the filled matrix.
-		clear(mu)
+		// Offsets: the column means of the filled matrix, whose centred
+		// part data holds; data is re-centred by the change of the means.
+		clear(shift)
 		for i := 0; i < n; i++ {
 			for j, v := range data[i*p : (i+1)*p] {
-				mu[j] += v
+				shift[j] += v
 			}
 		}
-		for j := range mu {
-			mu[j] /= float64(n)
+		for j := range shift {
+			shift[j] /= float64(n)
+			mu[j] += shift[j]
 		}
 		for i := 0; i < n; i++ {
-			row, dst := data[i*p:(i+1)*p], wc[i*p:(i+1)*p]
-			for j, v := range row {
-				dst[j] = v - mu[j]
+			row := data[i*p : (i+1)*p]
+			for j := range row {
+				row[j] -= shift[j]
 			}
 		}
-		lowRank(ws.wc, a, ws)
-		fit := ws.fit.RawMatrix().Data
+		fitAt := lowRank(w, a, ws)
 		change := 0.0
 		for _, o := range miss {
-			v := mu[o%p] + fit[o]
+			v := fitAt(int(o))
 			d := v - data[o]
 			change += d * d
 			data[o] = v
@@ -375,29 +436,44 @@ func imputePCA(w *mat.Dense, miss []int, ssObs float64, nObs int, a int, tol flo
 	return maxIter, false
 }
 
-// lowRank writes into ws.fit the best rank-a approximation of wc, from the
-// eigenvectors of the smaller cross-product (p×p for tall, n×n for wide).
-func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) {
+// lowRank returns the best rank-a approximation of the centred wc as a
+// function of the row-major offset of an element, from the eigenvectors of
+// the smaller cross-product (p×p for tall, n×n for wide): only the missing
+// elements are ever evaluated.
+func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) func(o int) float64 {
 	n, p := wc.Dims()
-	ws.fit.Reset()
-	var t, v mat.Dense
+	ws.v.Reset()
+	ws.t.Reset()
 	if n >= p {
 		if !ws.sym.Factorize(crossProduct(wc, true), true) {
 			panic("analysis: symmetric eigendecomposition failed in cross-validation")
 		}
-		ws.sym.VectorsTo(&v)
-		va := v.Slice(0, p, p-a, p)
-		t.Mul(wc, va)
-		ws.fit.Mul(&t, va.T())
-		return
+		ws.sym.VectorsTo(&ws.v)
+		va := ws.v.Slice(0, p, p-a, p)
+		ws.t.Mul(wc, va) // n × a
+		return func(o int) float64 {
+			i, j := o/p, o%p
+			s := 0.0
+			for c := 0; c < a; c++ {
+				s += ws.t.At(i, c) * va.At(j, c)
+			}
+			return s
+		}
 	}
 	if !ws.sym.Factorize(crossProduct(wc, false), true) {
 		panic("analysis: symmetric eigendecomposition failed in cross-validation")
 	}
-	ws.sym.VectorsTo(&v)
-	ua := v.Slice(0, n, n-a, n)
-	t.Mul(ua.T(), wc)
-	ws.fit.Mul(ua, &t)
+	ws.sym.VectorsTo(&ws.v)
+	ua := ws.v.Slice(0, n, n-a, n)
+	ws.t.Mul(ua.T(), wc) // a × p
+	return func(o int) float64 {
+		i, j := o/p, o%p
+		s := 0.0
+		for c := 0; c < a; c++ {
+			s += ua.At(i, c) * ws.t.At(c, j)
+		}
+		return s
+	}
 }
 
 // crossProduct returns wcᵀwc (tall) or wc·wcᵀ (wide) as a symmetric matrix.
