@@ -121,16 +121,11 @@ func CrossValidate(z *mat.Dense, pp Preprocessing, seed uint64, threads int, pro
 		rows = rng.Perm(n)[:CVMaxRows]
 		slices.Sort(rows)
 	}
-	sub := mat.NewDense(len(rows), p, nil)
-	for r, i := range rows {
-		dst := sub.RawRowView(r)
-		for j, v := range z.RawRowView(i) {
-			dst[j] = v*pp.Scales[j] + pp.Means[j]
-		}
-	}
+	sub := cvTable{z: z, rows: rows, scale: pp.Scales, mean: pp.Means}
 	unit := make([]float64, p)
+	col := make([]float64, len(rows))
 	for j := range unit {
-		unit[j] = scaleOf(scaling, column(sub, j, nil))
+		unit[j] = scaleOf(scaling, sub.column(j, col))
 		if !(unit[j] > 0) {
 			unit[j] = 1
 		}
@@ -143,6 +138,49 @@ func CrossValidate(z *mat.Dense, pp Preprocessing, seed uint64, threads int, pro
 	cv := ekf(sub, scaling, unit, fold, CVFolds, maxA, CVPatience, CVTolerance, CVMaxIterations, threads, progress)
 	cv.RowsTotal = n
 	return cv
+}
+
+// cvTable is the transformed table that cross-validation works on: the
+// chosen rows of the preprocessed z turned back into x = z·scale + mean,
+// element by element when asked, so that no copy of the matrix is held.
+type cvTable struct {
+	z           *mat.Dense
+	rows        []int
+	scale, mean []float64
+}
+
+// tableOf wraps a matrix that is already the transformed table.
+func tableOf(x *mat.Dense) cvTable {
+	n, p := x.Dims()
+	t := cvTable{z: x, rows: make([]int, n), scale: make([]float64, p), mean: make([]float64, p)}
+	for i := range t.rows {
+		t.rows[i] = i
+	}
+	for j := range t.scale {
+		t.scale[j] = 1
+	}
+	return t
+}
+
+func (t cvTable) dims() (n, p int) { _, p = t.z.Dims(); return len(t.rows), p }
+
+// at returns element (i, j) of the table.
+func (t cvTable) at(i, j int) float64 { return t.z.At(t.rows[i], j)*t.scale[j] + t.mean[j] }
+
+// row writes row i of the table into dst.
+func (t cvTable) row(i int, dst []float64) {
+	for j, v := range t.z.RawRowView(t.rows[i]) {
+		dst[j] = v*t.scale[j] + t.mean[j]
+	}
+}
+
+// column writes column j of the table into dst.
+func (t cvTable) column(j int, dst []float64) []float64 {
+	dst = dst[:0]
+	for i := range t.rows {
+		dst = append(dst, t.at(i, j))
+	}
+	return dst
 }
 
 // column copies column j of x into dst.
@@ -174,14 +212,12 @@ func scaleOf(s Scaling, v []float64) float64 {
 // ekf computes PRESS for a = 0 … maxA (or until patience counts bring no
 // new minimum) with the given fold pattern; errors are divided by unit
 // (per variable) so that PRESS is in the units of the preprocessed table.
-func ekf(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k, maxA, patience int, tol float64, maxIter, threads int, progress Progress) CrossValidation {
-	if raw := x.RawMatrix(); raw.Stride != raw.Cols {
-		x = mat.DenseCopyOf(x) // contiguous, for the raw loops below
-	}
-	n, p := x.Dims()
+func ekf(x cvTable, scaling Scaling, unit []float64, fold [][]int, k, maxA, patience int, tol float64, maxIter, threads int, progress Progress) CrossValidation {
+	n, p := x.dims()
 	cv := CrossValidation{Folds: k, Rows: n, FoldPRESS: make([][]float64, k)}
+	v := make([]float64, n)
 	for j := 0; j < p; j++ {
-		v := column(x, j, nil)
+		v = x.column(j, v)
 		mean := 0.0
 		for _, t := range v {
 			mean += t
@@ -194,13 +230,12 @@ func ekf(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k, maxA, p
 	}
 	states := foldStates(x, scaling, unit, fold, k)
 	fold = nil // the states hold what is needed: let the n × p labels go
-	xd := x.RawMatrix().Data
 	press := func(f int, w []float64) float64 {
 		st := states[f]
 		e := 0.0
 		for _, o := range st.miss {
-			j := int(o) % p
-			d := (xd[o] - (st.mean[j] + st.scale[j]*w[o])) / unit[j]
+			i, j := int(o)/p, int(o)%p
+			d := (x.at(i, j) - (st.mean[j] + st.scale[j]*w[o])) / unit[j]
 			e += d * d
 		}
 		return e
@@ -282,8 +317,8 @@ type foldState struct {
 // foldStates sets up every fold: training means and scales per column, the
 // sum of squares of the preprocessed training elements, and the left-out
 // elements, which start at the training mean (0).
-func foldStates(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k int) []*foldState {
-	n, p := x.Dims()
+func foldStates(x cvTable, scaling Scaling, unit []float64, fold [][]int, k int) []*foldState {
+	n, p := x.dims()
 	states := make([]*foldState, k)
 	train := make([]float64, 0, n)
 	for f := 0; f < k; f++ {
@@ -292,7 +327,7 @@ func foldStates(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k i
 			train = train[:0]
 			for i := 0; i < n; i++ {
 				if fold[i][j] != f {
-					train = append(train, x.At(i, j))
+					train = append(train, x.at(i, j))
 				}
 			}
 			m := 0.0
@@ -329,15 +364,17 @@ func foldStates(x *mat.Dense, scaling Scaling, unit []float64, fold [][]int, k i
 // fill writes the fold's filled matrix into the workspace: the training
 // elements preprocessed with the fold's centring and scaling, the left-out
 // ones at their current imputed values.
-func (st *foldState) fill(x *mat.Dense, ws *imputeWorkspace) *mat.Dense {
-	n, p := x.Dims()
+func (st *foldState) fill(x cvTable, ws *imputeWorkspace) *mat.Dense {
+	n, p := x.dims()
 	if ws.w == nil {
 		ws.w = mat.NewDense(n, p, nil)
 	}
-	xd, wd := x.RawMatrix().Data, ws.w.RawMatrix().Data
+	wd := ws.w.RawMatrix().Data
 	for i := 0; i < n; i++ {
-		for j, v := range xd[i*p : (i+1)*p] {
-			wd[i*p+j] = (v - st.mean[j]) / st.scale[j]
+		row := wd[i*p : (i+1)*p]
+		x.row(i, row)
+		for j, v := range row {
+			row[j] = (v - st.mean[j]) / st.scale[j]
 		}
 	}
 	for c, o := range st.miss {

@@ -69,7 +69,7 @@ func TestCrossValidationMatchesNumpyReference(t *testing.T) {
 	want := readCSVFloats(t, "../testdata/crossval/usarrests_press.csv", 1, 0)
 	maxA := len(want) - 1
 	for _, threads := range []int{1, 3} {
-		cv := ekf(x, ScaleUnit, unit, fold, CVFolds, maxA, maxA+1, 1e-13, 100000, threads, nil)
+		cv := ekf(tableOf(x), ScaleUnit, unit, fold, CVFolds, maxA, maxA+1, 1e-13, 100000, threads, nil)
 		if len(cv.PRESS) != len(want) {
 			t.Fatalf("PRESS for %d counts, want %d", len(cv.PRESS), len(want))
 		}

@@ -126,7 +126,8 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 }
 
 // limitMemory sets a soft limit on the heap from the size of the data
-// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 64 MiB.
+// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 64 MiB
+// (3 copies plus 100 MiB for a wide table).
 // The analysis itself needs about two copies (the preprocessed matrix and
 // one resampling or permutation workspace); without a limit the garbage
 // collector lets the heap grow to twice what is live before it collects,
@@ -139,5 +140,12 @@ func limitMemory(t *intake.Table) {
 	}
 	n, p := t.X.Dims()
 	data := int64(8 * n * p)
-	debug.SetMemoryLimit(data*9/4 + 64<<20)
+	limit := data*9/4 + 64<<20
+	if p > n {
+		// Wide tables: element-wise cross-validation holds the matrix, the
+		// folds' imputed values and a filled copy per worker; below that
+		// the collector would run without pause.
+		limit = data*3 + 100<<20
+	}
+	debug.SetMemoryLimit(limit)
 }
