@@ -160,27 +160,8 @@ func (r *tableReader) streamRows(fn func(StreamRow) error, fill []float64) (int,
 		}
 		return fn(row)
 	}
-	for i, text := range r.sample {
-		rec := make([][]byte, len(text))
-		for j, c := range text {
-			rec[j] = []byte(c)
-		}
-		if err := one(rec, r.sampleLines[i]); err != nil {
-			return 0, err
-		}
-	}
-	r.sample, r.sampleLines = nil, nil
-	for {
-		rec, err := r.rr.read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return 0, namedReadError(r.name, r.rr, err, r.names)
-		}
-		if err := one(rec, r.rr.position()); err != nil {
-			return 0, err
-		}
+	if err := r.eachRecord(one); err != nil {
+		return 0, err
 	}
 	if _, err := io.Copy(io.Discard, r.src.br); err != nil {
 		return 0, r.fail(0, 0, "", "", "read error: "+err.Error())

@@ -390,6 +390,34 @@ func (r *tableReader) newRowParser() *rowParser {
 		thousands: r.opt.Thousands, delim: r.delim, comment: r.opt.Comment}
 }
 
+// eachRecord hands every data record to fn with its line, one after
+// another: first the rows sampled to classify the columns (which are then
+// let go), then the rest of the file.
+func (r *tableReader) eachRecord(fn func(rec [][]byte, line int) error) error {
+	for i, text := range r.sample {
+		rec := make([][]byte, len(text))
+		for j, c := range text {
+			rec[j] = []byte(c)
+		}
+		if err := fn(rec, r.sampleLines[i]); err != nil {
+			return err
+		}
+	}
+	r.sample, r.sampleLines = nil, nil
+	for {
+		rec, err := r.rr.read()
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			return namedReadError(r.name, r.rr, err, r.names)
+		}
+		if err := fn(rec, r.rr.position()); err != nil {
+			return err
+		}
+	}
+}
+
 // parseRows parses every data row into the sink: line ranges of a large
 // file in parallel when that is safe, otherwise one record after another.
 func (r *tableReader) parseRows() error {
@@ -404,30 +432,16 @@ func (r *tableReader) parseRows() error {
 	}
 	r.sink = newRowSink(len(r.varCols), rows, r.groupCol >= 0)
 	n := 0
-	for i, row := range r.sample {
-		rec := make([][]byte, len(row))
-		for j, c := range row {
-			rec[j] = []byte(c)
-		}
-		if err := r.rp.parse(rec, r.sampleLines[i], n+1, n, r.sink); err != nil {
-			return err
-		}
-		n++
-	}
-	r.sample, r.sampleLines = nil, nil
-	for {
-		rec, err := r.rr.read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return namedReadError(r.name, r.rr, err, r.names)
-		}
+	err := r.eachRecord(func(rec [][]byte, line int) error {
 		r.sink.ensure(n)
-		if err := r.rp.parse(rec, r.rr.position(), n+1, n, r.sink); err != nil {
+		if err := r.rp.parse(rec, line, n+1, n, r.sink); err != nil {
 			return err
 		}
 		n++
+		return nil
+	})
+	if err != nil {
+		return err
 	}
 	r.sink.truncate(n)
 	if r.src == nil {
