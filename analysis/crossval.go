@@ -517,11 +517,12 @@ func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) func(o int) float64 {
 func crossProduct(wc *mat.Dense, tall bool) *mat.SymDense {
 	raw := wc.RawMatrix()
 	a := blas64.General{Rows: raw.Rows, Cols: raw.Cols, Stride: raw.Stride, Data: raw.Data}
-	trans, k := blas.NoTrans, raw.Rows
 	if tall {
-		trans, k = blas.Trans, raw.Cols
+		c := blas64.Symmetric{N: raw.Cols, Stride: raw.Cols, Uplo: blas.Upper, Data: make([]float64, raw.Cols*raw.Cols)}
+		blas64.Syrk(blas.Trans, 1, a, 0, c)
+		return mat.NewSymDense(raw.Cols, c.Data)
 	}
-	c := blas64.Symmetric{N: k, Stride: k, Uplo: blas.Upper, Data: make([]float64, k*k)}
-	blas64.Syrk(trans, 1, a, 0, c)
-	return mat.NewSymDense(k, c.Data)
+	c := blas64.Symmetric{N: raw.Rows, Stride: raw.Rows, Uplo: blas.Upper, Data: make([]float64, raw.Rows*raw.Rows)}
+	gramUpper(c, a)
+	return mat.NewSymDense(raw.Rows, c.Data)
 }

@@ -175,7 +175,7 @@ func (l *looSetup) prepare() {
 		mirror(l.cross, p)
 	} else if l.scaling == ScaleNone {
 		l.cross = make([]float64, n*n)
-		blas64.Syrk(blas.NoTrans, 1, zg, 0, blas64.Symmetric{N: n, Stride: n, Uplo: blas.Upper, Data: l.cross})
+		gramUpper(blas64.Symmetric{N: n, Stride: n, Uplo: blas.Upper, Data: l.cross}, zg)
 		mirror(l.cross, n)
 	}
 	l.colSS = make([]float64, p)
@@ -402,7 +402,7 @@ func (l *looSetup) wideSample(w *looWorkspace, i int) looResult {
 		}
 	} else {
 		rows := blas64.General{Rows: d, Cols: p, Stride: p, Data: w.rows}
-		blas64.Syrk(blas.NoTrans, 1, rows, 0, blas64.Symmetric{N: d, Stride: d, Uplo: blas.Upper, Data: w.a})
+		gramUpper(blas64.Symmetric{N: d, Stride: d, Uplo: blas.Upper, Data: w.a}, rows)
 	}
 	total := 0.0
 	for r := 0; r < d; r++ {

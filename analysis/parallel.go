@@ -222,7 +222,7 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 		long := max(n, p)
 		a := blas64.General{Rows: short, Cols: long, Stride: long, Data: w.buf}
 		c := blas64.Symmetric{N: short, Stride: short, Uplo: blas.Upper, Data: w.gram}
-		blas64.Syrk(blas.NoTrans, 1, a, 0, c)
+		gramUpper(c, a)
 		if !w.sym.Factorize(mat.NewSymDense(short, w.gram), false) {
 			panic("analysis: symmetric eigendecomposition failed in parallel analysis")
 		}

@@ -54,7 +54,7 @@ type tableReader struct {
 	varCols         []int
 
 	// The first rows, kept as text to classify the columns.
-	sample      [][]string
+	sample      []textRow
 	sampleLines []int
 
 	rp   *rowParser
@@ -275,11 +275,7 @@ func (r *tableReader) sampleRows() error {
 		if err != nil {
 			return err
 		}
-		row := make([]string, len(rec))
-		for j, c := range rec {
-			row[j] = string(c)
-		}
-		r.sample = append(r.sample, row)
+		r.sample = append(r.sample, newTextRow(rec))
 		r.sampleLines = append(r.sampleLines, r.rr.position())
 	}
 	if len(r.sample) == 0 {
@@ -317,7 +313,7 @@ func (r *tableReader) firstText(probe *rowParser, j int) (int, string) {
 	scratch := &rowSink{}
 	first, texts, numbers := -1, 0, 0
 	for i, row := range r.sample {
-		switch _, kind := probe.cell([]byte(row[j]), scratch); kind {
+		switch _, kind := probe.cell(row.cell(j), scratch); kind {
 		case cellText:
 			texts++
 			if first < 0 {
@@ -331,7 +327,7 @@ func (r *tableReader) firstText(probe *rowParser, j int) (int, string) {
 	if texts == 0 || numbers > texts {
 		return -1, ""
 	}
-	return first, r.sample[first][j]
+	return first, r.sample[first].text(j)
 }
 
 // classifyColumns decides the id column (the first column, when it is text
@@ -394,11 +390,9 @@ func (r *tableReader) newRowParser() *rowParser {
 // another: first the rows sampled to classify the columns (which are then
 // let go), then the rest of the file.
 func (r *tableReader) eachRecord(fn func(rec [][]byte, line int) error) error {
-	for i, text := range r.sample {
-		rec := make([][]byte, len(text))
-		for j, c := range text {
-			rec[j] = []byte(c)
-		}
+	var rec [][]byte
+	for i, row := range r.sample {
+		rec = row.record(rec)
 		if err := fn(rec, r.sampleLines[i]); err != nil {
 			return err
 		}

@@ -58,7 +58,7 @@ func (r *tableReader) checkUnitsRow(probe *rowParser) error {
 	var found []int
 	filled, unitLike := 0, true
 	for _, j := range r.varCols {
-		_, kind := probe.cell([]byte(r.sample[0][j]), scratch)
+		_, kind := probe.cell(r.sample[0].cell(j), scratch)
 		if kind != cellMissing {
 			filled++
 		}
@@ -66,23 +66,23 @@ func (r *tableReader) checkUnitsRow(probe *rowParser) error {
 			continue
 		}
 		found = append(found, j)
-		unitLike = unitLike && looksLikeUnit(r.sample[0][j])
+		unitLike = unitLike && looksLikeUnit(r.sample[0].text(j))
 	}
 	if len(found) == 0 || !(unitLike || len(found) >= 2 && 5*len(found) >= 4*filled) {
 		return nil
 	}
 	j := found[0]
-	return r.fail(r.sampleLines[0], j+1, r.names[j], r.sample[0][j],
+	return r.fail(r.sampleLines[0], j+1, r.names[j], r.sample[0].text(j),
 		fmt.Sprintf("this row looks like units under the header, not data (text above numbers in %d of %d variable columns); give --units-row to read it as units; first such cell:", len(found), len(r.varCols)))
 }
 
 // numbersBelow reports whether column j of rows holds at least one number
 // and no text.
-func numbersBelow(probe *rowParser, rows [][]string, j int) bool {
+func numbersBelow(probe *rowParser, rows []textRow, j int) bool {
 	scratch := &rowSink{}
 	numbers := 0
 	for _, row := range rows {
-		switch _, kind := probe.cell([]byte(row[j]), scratch); kind {
+		switch _, kind := probe.cell(row.cell(j), scratch); kind {
 		case cellText:
 			return false
 		case cellNumber:
