@@ -314,17 +314,23 @@ type bootWorkspace struct {
 	cross         []float64
 	rows          []float64
 	gram          []float64
-	eig           mat.EigenSym
-	values        []float64
-	vecs          mat.Dense
-	top           topEigen
+	leadingSolver
+}
+
+// leadingSolver finds the leading eigenvectors of symmetric matrices,
+// keeping its workspace from call to call.
+type leadingSolver struct {
+	eig    mat.EigenSym
+	values []float64
+	vecs   mat.Dense
+	top    topEigen
 }
 
 // leading sets w.values to all the eigenvalues of the symmetric d×d matrix
 // whose upper triangle is a (ascending) and returns the eigenvectors of the
 // k largest as columns, largest first: by the shortcut of leadingEigen, or
 // by the full decomposition where the shortcut declines.
-func (w *bootWorkspace) leading(a []float64, d, k int) (*mat.Dense, bool) {
+func (w *leadingSolver) leading(a []float64, d, k int) (*mat.Dense, bool) {
 	if w.top.leadingEigen(a, d, k) {
 		w.values = w.top.vals
 		return &w.top.vecs, true
@@ -622,7 +628,7 @@ func (b *bootstrapper) wideResample(w *bootWorkspace, counts []int32) resampleRe
 			}
 		}
 		v = mat.NewDense(p, k, nil)
-		v.Mul(b.loadAll, h)
+		mulNarrow(v.RawMatrix(), b.loadAll.RawMatrix(), h.RawMatrix())
 	} else {
 		v = b.wideLoadings(w.means, w.g, coef, 0, p)
 	}
@@ -643,8 +649,7 @@ func (b *bootstrapper) wideLoadings(means, g, coef []float64, from, to int) *mat
 	}
 	v := mat.NewDense(to-from, k, nil)
 	zt := blas64.General{Rows: to - from, Cols: n, Stride: n, Data: b.zt[from*n : to*n]}
-	c := blas64.General{Rows: n, Cols: k, Stride: k, Data: coef}
-	blas64.Gemm(blas.NoTrans, blas.NoTrans, 1, zt, c, 0, v.RawMatrix())
+	mulNarrow(v.RawMatrix(), zt, blas64.General{Rows: n, Cols: k, Stride: k, Data: coef})
 	raw := v.RawMatrix().Data
 	for j := from; j < to; j++ {
 		row := raw[(j-from)*k : (j-from+1)*k]

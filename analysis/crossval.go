@@ -408,6 +408,7 @@ type imputeWorkspace struct {
 	mu   []float64
 	sym  mat.EigenSym
 	v, t mat.Dense
+	lead leadingSolver
 }
 
 // imputePCA fits an a-component PCA model with column offsets to w, whose
@@ -497,11 +498,12 @@ func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) func(o int) float64 {
 			return s
 		}
 	}
-	if !ws.sym.Factorize(crossProduct(wc, false), true) {
+	// Only the a leading eigenvectors of the n×n Gram matrix are needed
+	// (their order does not matter to the reconstruction).
+	ua, ok := ws.lead.leading(crossProduct(wc, false).RawSymmetric().Data, n, a)
+	if !ok {
 		panic("analysis: symmetric eigendecomposition failed in cross-validation")
 	}
-	ws.sym.VectorsTo(&ws.v)
-	ua := ws.v.Slice(0, n, n-a, n)
 	ws.t.Mul(ua.T(), wc) // a × p
 	return func(o int) float64 {
 		i, j := o/p, o%p

@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/mat"
 
 	"pcqc/internal/synth"
 )
@@ -80,3 +81,19 @@ func BenchmarkGramTallOurs(b *testing.B)  { benchmarkGram(b, 50, 6321, true) }
 func BenchmarkGramTallSyrk(b *testing.B)  { benchmarkGram(b, 50, 6321, false) }
 func BenchmarkGramWideOurs(b *testing.B)  { benchmarkGram(b, 100, 5000, true) }
 func BenchmarkGramWideSyrk(b *testing.B)  { benchmarkGram(b, 100, 5000, false) }
+
+// TestMulNarrow holds mulNarrow against gonum's Gemm.
+func TestMulNarrow(t *testing.T) {
+	for _, sh := range [][3]int{{1, 1, 1}, {5, 7, 3}, {5000, 100, 3}, {40, 9, 1}} {
+		r, m, k := sh[0], sh[1], sh[2]
+		x, _ := synth.LowRank(synth.RNG(4, uint64(r)), r, m, []float64{2}, 1)
+		y, _ := synth.LowRank(synth.RNG(5, uint64(k)), m, k, []float64{1}, 1)
+		got := mat.NewDense(r, k, nil)
+		mulNarrow(got.RawMatrix(), x.RawMatrix(), y.RawMatrix())
+		var want mat.Dense
+		want.Mul(x, y)
+		if !mat.EqualApprox(got, &want, 1e-12) {
+			t.Fatalf("%v: mulNarrow differs from Gemm", sh)
+		}
+	}
+}
