@@ -77,10 +77,10 @@ func benchmarkGram(b *testing.B, r, m int, ours bool) {
 
 // The shapes of the tall bootstrap (50 variables × 6,321 distinct rows) and
 // of wide cross-validation (100 rows × 5,000 variables).
-func BenchmarkGramTallOurs(b *testing.B)  { benchmarkGram(b, 50, 6321, true) }
-func BenchmarkGramTallSyrk(b *testing.B)  { benchmarkGram(b, 50, 6321, false) }
-func BenchmarkGramWideOurs(b *testing.B)  { benchmarkGram(b, 100, 5000, true) }
-func BenchmarkGramWideSyrk(b *testing.B)  { benchmarkGram(b, 100, 5000, false) }
+func BenchmarkGramTallOurs(b *testing.B) { benchmarkGram(b, 50, 6321, true) }
+func BenchmarkGramTallSyrk(b *testing.B) { benchmarkGram(b, 50, 6321, false) }
+func BenchmarkGramWideOurs(b *testing.B) { benchmarkGram(b, 100, 5000, true) }
+func BenchmarkGramWideSyrk(b *testing.B) { benchmarkGram(b, 100, 5000, false) }
 
 // TestMulNarrow holds mulNarrow against gonum's Gemm.
 func TestMulNarrow(t *testing.T) {
