@@ -74,16 +74,57 @@ type CrossValidation struct {
 // or column (Bro et al. 2008 recommend such patterns for element-wise
 // cross-validation).
 func CVFoldAssignment(n, p, k int, seed uint64) [][]int {
-	rng := taskRNG(seed, streamCrossValidation, 0)
-	r := rng.Perm(n)
+	folds := diagonalFolds(n, k, seed)
 	fold := make([][]int, n)
 	for i := range fold {
 		fold[i] = make([]int, p)
 		for j := range fold[i] {
-			fold[i][j] = (r[i] + j) % k
+			fold[i][j] = folds.of(i, j)
 		}
 	}
 	return fold
+}
+
+// foldPattern assigns every element of an n × p table to one of k folds:
+// the diagonal pattern of CVFoldAssignment, held as one shift per row
+// rather than n·p labels, or a given assignment (a reference's pattern, in
+// tests).
+type foldPattern struct {
+	k     int
+	shift []int   // diagonal: element (i, j) is in fold (shift[i] + j) mod k
+	given [][]int // otherwise the fold of every element
+}
+
+// diagonalFolds is the pattern of CVFoldAssignment.
+func diagonalFolds(n, k int, seed uint64) foldPattern {
+	return foldPattern{k: k, shift: taskRNG(seed, streamCrossValidation, 0).Perm(n)}
+}
+
+// of returns the fold of element (i, j).
+func (fp foldPattern) of(i, j int) int {
+	if fp.given != nil {
+		return fp.given[i][j]
+	}
+	return (fp.shift[i] + j) % fp.k
+}
+
+// cells appends to dst the row-major offsets of fold f's elements in an
+// n × p table, in increasing order.
+func (fp foldPattern) cells(dst []int32, f, n, p int) []int32 {
+	for i := 0; i < n; i++ {
+		if fp.given != nil {
+			for j := 0; j < p; j++ {
+				if fp.given[i][j] == f {
+					dst = append(dst, int32(i*p+j))
+				}
+			}
+			continue
+		}
+		for j := ((f-fp.shift[i])%fp.k + fp.k) % fp.k; j < p; j += fp.k {
+			dst = append(dst, int32(i*p+j))
+		}
+	}
+	return dst
 }
 
 // CrossValidate runs element-wise k-fold cross-validation ("ekf") of the
@@ -134,8 +175,7 @@ func CrossValidate(z *mat.Dense, pp Preprocessing, seed uint64, threads int, pro
 	// determined by the other p−1 values and p−1 scores: its imputation
 	// drifts without bound, so PRESS is followed to p−2 at most.
 	maxA := min(p-2, len(rows)-2, CVMaxComponents)
-	fold := CVFoldAssignment(len(rows), p, CVFolds, seed)
-	cv := ekf(sub, scaling, unit, fold, CVFolds, maxA, CVPatience, CVTolerance, CVMaxIterations, threads, progress)
+	cv := ekf(sub, scaling, unit, diagonalFolds(len(rows), CVFolds, seed), CVFolds, maxA, CVPatience, CVTolerance, CVMaxIterations, threads, progress)
 	cv.RowsTotal = n
 	return cv
 }
@@ -212,7 +252,7 @@ func scaleOf(s Scaling, v []float64) float64 {
 // ekf computes PRESS for a = 0 … maxA (or until patience counts bring no
 // new minimum) with the given fold pattern; errors are divided by unit
 // (per variable) so that PRESS is in the units of the preprocessed table.
-func ekf(x cvTable, scaling Scaling, unit []float64, fold [][]int, k, maxA, patience int, tol float64, maxIter, threads int, progress Progress) CrossValidation {
+func ekf(x cvTable, scaling Scaling, unit []float64, folds foldPattern, k, maxA, patience int, tol float64, maxIter, threads int, progress Progress) CrossValidation {
 	n, p := x.dims()
 	cv := CrossValidation{Folds: k, Rows: n, FoldPRESS: make([][]float64, k)}
 	v := make([]float64, n)
@@ -228,33 +268,47 @@ func ekf(x cvTable, scaling Scaling, unit []float64, fold [][]int, k, maxA, pati
 			cv.SS += d * d
 		}
 	}
-	states := foldStates(x, scaling, unit, fold, k)
-	fold = nil // the states hold what is needed: let the n × p labels go
-	press := func(f int, w []float64) float64 {
+	states := foldStates(x, scaling, unit, folds, k)
+	// press sums fold f's squared prediction errors; w nil stands for a
+	// prediction of 0 everywhere (the training mean).
+	press := func(f int, w []float64, miss []int32) float64 {
 		st := states[f]
 		e := 0.0
-		for _, o := range st.miss {
+		for _, o := range miss {
 			i, j := int(o)/p, int(o)%p
-			d := (x.at(i, j) - (st.mean[j] + st.scale[j]*w[o])) / unit[j]
+			pred := 0.0
+			if w != nil {
+				pred = w[o]
+			}
+			d := (x.at(i, j) - (st.mean[j] + st.scale[j]*pred)) / unit[j]
 			e += d * d
 		}
 		return e
 	}
+	var miss []int32
 	for f := 0; f < k; f++ {
 		// Left-out elements start at the training mean, 0.
-		cv.FoldPRESS[f] = []float64{press(f, make([]float64, n*p))}
+		miss = folds.cells(miss[:0], f, n, p)
+		cv.FoldPRESS[f] = []float64{press(f, nil, miss)}
 	}
 	cv.PRESS = []float64{sumFold(cv.FoldPRESS, 0)}
 	best, since := 0, 0
+	// The workers' workspaces (a filled n × p matrix each) are kept from
+	// one count to the next: made afresh, the old ones were garbage the
+	// size of the table, twice over, at every count.
+	var pool workspacePool[*imputeWorkspace]
+	pool.make = func() *imputeWorkspace { return &imputeWorkspace{} }
 	for a := 1; a <= maxA && since < patience; a++ {
-		parallelFor(k, threads, func() *imputeWorkspace { return &imputeWorkspace{} }, func(ws *imputeWorkspace, f int) {
+		pool.reset()
+		parallelFor(k, threads, pool.get, func(ws *imputeWorkspace, f int) {
 			st := states[f]
-			w := st.fill(x, ws)
-			it, ok := imputePCA(w, st.miss, st.ssObs, st.nObs, a, tol, maxIter, ws)
-			st.keep(w)
+			ws.miss = folds.cells(ws.miss[:0], f, n, p)
+			w := st.fill(x, ws.miss, ws)
+			it, ok := imputePCA(w, ws.miss, st.ssObs, st.nObs, a, tol, maxIter, ws)
+			st.keep(w, ws.miss)
 			st.iters = max(st.iters, it)
 			st.unconverged = !ok
-			cv.FoldPRESS[f] = append(cv.FoldPRESS[f], press(f, w.RawMatrix().Data))
+			cv.FoldPRESS[f] = append(cv.FoldPRESS[f], press(f, w.RawMatrix().Data, ws.miss))
 		}, "cross-validation", nil)
 		if progress != nil {
 			progress("cross-validation", a, maxA)
@@ -303,11 +357,16 @@ func sumFold(fp [][]float64, a int) float64 {
 // imputation. The filled matrix itself is rebuilt from x in the worker's
 // workspace (fill), so that k folds hold k·(n·p/k) imputed values rather
 // than k copies of the matrix: on wide tables those copies were most of
-// the audit's memory.
+// the audit's memory. The left-out elements' offsets are listed again from
+// the fold pattern for each fit (foldPattern.cells), in the worker's
+// workspace, rather than held for every fold.
 type foldState struct {
 	mean, scale []float64
-	miss        []int32   // row-major offsets of the left-out elements
-	imp         []float64 // their current values, preprocessed
+	// imp holds the left-out elements' current values, preprocessed, in
+	// row-major order, in single precision: they are only where the next
+	// count's imputation starts, which then iterates to its own tolerance,
+	// and on wide tables they were a fifth of the audit's memory.
+	imp         []float32
 	ssObs       float64
 	nObs        int
 	iters       int
@@ -317,7 +376,7 @@ type foldState struct {
 // foldStates sets up every fold: training means and scales per column, the
 // sum of squares of the preprocessed training elements, and the left-out
 // elements, which start at the training mean (0).
-func foldStates(x cvTable, scaling Scaling, unit []float64, fold [][]int, k int) []*foldState {
+func foldStates(x cvTable, scaling Scaling, unit []float64, folds foldPattern, k int) []*foldState {
 	n, p := x.dims()
 	states := make([]*foldState, k)
 	train := make([]float64, 0, n)
@@ -326,7 +385,7 @@ func foldStates(x cvTable, scaling Scaling, unit []float64, fold [][]int, k int)
 		for j := 0; j < p; j++ {
 			train = train[:0]
 			for i := 0; i < n; i++ {
-				if fold[i][j] != f {
+				if folds.of(i, j) != f {
 					train = append(train, x.at(i, j))
 				}
 			}
@@ -348,14 +407,7 @@ func foldStates(x cvTable, scaling Scaling, unit []float64, fold [][]int, k int)
 			}
 			st.nObs += len(train)
 		}
-		for i := 0; i < n; i++ {
-			for j := 0; j < p; j++ {
-				if fold[i][j] == f {
-					st.miss = append(st.miss, int32(i*p+j))
-				}
-			}
-		}
-		st.imp = make([]float64, len(st.miss))
+		st.imp = make([]float32, n*p-st.nObs)
 		states[f] = st
 	}
 	return states
@@ -364,7 +416,7 @@ func foldStates(x cvTable, scaling Scaling, unit []float64, fold [][]int, k int)
 // fill writes the fold's filled matrix into the workspace: the training
 // elements preprocessed with the fold's centring and scaling, the left-out
 // ones at their current imputed values.
-func (st *foldState) fill(x cvTable, ws *imputeWorkspace) *mat.Dense {
+func (st *foldState) fill(x cvTable, miss []int32, ws *imputeWorkspace) *mat.Dense {
 	n, p := x.dims()
 	if ws.w == nil {
 		ws.w = mat.NewDense(n, p, nil)
@@ -377,18 +429,18 @@ func (st *foldState) fill(x cvTable, ws *imputeWorkspace) *mat.Dense {
 			row[j] = (v - st.mean[j]) / st.scale[j]
 		}
 	}
-	for c, o := range st.miss {
-		wd[o] = st.imp[c]
+	for c, o := range miss {
+		wd[o] = float64(st.imp[c])
 	}
 	return ws.w
 }
 
 // keep stores the imputed values of w's left-out elements for the next
 // count.
-func (st *foldState) keep(w *mat.Dense) {
+func (st *foldState) keep(w *mat.Dense, miss []int32) {
 	wd := w.RawMatrix().Data
-	for c, o := range st.miss {
-		st.imp[c] = wd[o]
+	for c, o := range miss {
+		st.imp[c] = float32(wd[o])
 	}
 }
 
@@ -405,6 +457,8 @@ func sampleSD(v []float64) float64 {
 // filled matrix of the fold it works on, and the scratch of imputePCA.
 type imputeWorkspace struct {
 	w    *mat.Dense
+	miss []int32 // the offsets of the fold being fitted
+	gram []float64
 	mu   []float64
 	sym  mat.EigenSym
 	v, t mat.Dense
@@ -483,7 +537,7 @@ func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) func(o int) float64 {
 	ws.v.Reset()
 	ws.t.Reset()
 	if n >= p {
-		if !ws.sym.Factorize(crossProduct(wc, true), true) {
+		if !ws.sym.Factorize(crossProduct(wc, true, &ws.gram), true) {
 			panic("analysis: symmetric eigendecomposition failed in cross-validation")
 		}
 		ws.sym.VectorsTo(&ws.v)
@@ -500,7 +554,7 @@ func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) func(o int) float64 {
 	}
 	// Only the a leading eigenvectors of the n×n Gram matrix are needed
 	// (their order does not matter to the reconstruction).
-	ua, ok := ws.lead.leading(crossProduct(wc, false).RawSymmetric().Data, n, a)
+	ua, ok := ws.lead.leading(crossProduct(wc, false, &ws.gram).RawSymmetric().Data, n, a)
 	if !ok {
 		panic("analysis: symmetric eigendecomposition failed in cross-validation")
 	}
@@ -515,16 +569,19 @@ func lowRank(wc *mat.Dense, a int, ws *imputeWorkspace) func(o int) float64 {
 	}
 }
 
-// crossProduct returns wcᵀwc (tall) or wc·wcᵀ (wide) as a symmetric matrix.
-func crossProduct(wc *mat.Dense, tall bool) *mat.SymDense {
+// crossProduct returns wcᵀwc (tall) or wc·wcᵀ (wide) as a symmetric matrix
+// held in *buf, which it grows as needed.
+func crossProduct(wc *mat.Dense, tall bool, buf *[]float64) *mat.SymDense {
 	raw := wc.RawMatrix()
 	a := blas64.General{Rows: raw.Rows, Cols: raw.Cols, Stride: raw.Stride, Data: raw.Data}
 	if tall {
-		c := blas64.Symmetric{N: raw.Cols, Stride: raw.Cols, Uplo: blas.Upper, Data: make([]float64, raw.Cols*raw.Cols)}
+		*buf = grow(*buf, raw.Cols*raw.Cols)
+		c := blas64.Symmetric{N: raw.Cols, Stride: raw.Cols, Uplo: blas.Upper, Data: *buf}
 		blas64.Syrk(blas.Trans, 1, a, 0, c)
 		return mat.NewSymDense(raw.Cols, c.Data)
 	}
-	c := blas64.Symmetric{N: raw.Rows, Stride: raw.Rows, Uplo: blas.Upper, Data: make([]float64, raw.Rows*raw.Rows)}
+	*buf = grow(*buf, raw.Rows*raw.Rows)
+	c := blas64.Symmetric{N: raw.Rows, Stride: raw.Rows, Uplo: blas.Upper, Data: *buf}
 	gramUpper(c, a)
 	return mat.NewSymDense(raw.Rows, c.Data)
 }

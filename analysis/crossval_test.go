@@ -4,6 +4,7 @@ import (
 	"encoding/csv"
 	"math"
 	"os"
+	"slices"
 	"strconv"
 	"testing"
 
@@ -69,7 +70,7 @@ func TestCrossValidationMatchesNumpyReference(t *testing.T) {
 	want := readCSVFloats(t, "../testdata/crossval/usarrests_press.csv", 1, 0)
 	maxA := len(want) - 1
 	for _, threads := range []int{1, 3} {
-		cv := ekf(tableOf(x), ScaleUnit, unit, fold, CVFolds, maxA, maxA+1, 1e-13, 100000, threads, nil)
+		cv := ekf(tableOf(x), ScaleUnit, unit, foldPattern{k: CVFolds, given: fold}, CVFolds, maxA, maxA+1, 1e-13, 100000, threads, nil)
 		if len(cv.PRESS) != len(want) {
 			t.Fatalf("PRESS for %d counts, want %d", len(cv.PRESS), len(want))
 		}
@@ -163,6 +164,29 @@ func TestCrossValidationRecoversPlantedRank(t *testing.T) {
 		}
 		if hits < 2 {
 			t.Errorf("%dx%d planted %d: cross-validation found it on %d of 3 seeds", c.n, c.p, len(c.sd), hits)
+		}
+	}
+}
+
+// foldPattern.cells lists exactly the elements CVFoldAssignment gives each
+// fold, in row-major order, for the diagonal and for a given pattern.
+func TestFoldPatternCells(t *testing.T) {
+	for _, c := range []struct{ n, p int }{{50, 4}, {30, 7}, {9, 20}, {8, 3}} {
+		fold := CVFoldAssignment(c.n, c.p, CVFolds, 5)
+		for _, fp := range []foldPattern{diagonalFolds(c.n, CVFolds, 5), {k: CVFolds, given: fold}} {
+			for f := 0; f < CVFolds; f++ {
+				var want []int32
+				for i := 0; i < c.n; i++ {
+					for j := 0; j < c.p; j++ {
+						if fold[i][j] == f {
+							want = append(want, int32(i*c.p+j))
+						}
+					}
+				}
+				if got := fp.cells(nil, f, c.n, c.p); !slices.Equal(got, want) {
+					t.Fatalf("%dx%d fold %d (given %v): cells %v, want %v", c.n, c.p, f, fp.given != nil, got, want)
+				}
+			}
 		}
 	}
 }

@@ -63,6 +63,34 @@ func parallelFor[W any](count, threads int, newWorkspace func() W, task func(w W
 	failed.Raise()
 }
 
+// workspacePool hands out workspaces to successive parallelFor calls so
+// that each call's workers reuse the previous call's: get is the
+// newWorkspace argument, reset is called between the calls.
+type workspacePool[W any] struct {
+	mu    sync.Mutex
+	make  func() W
+	all   []W
+	given int
+}
+
+// get returns a workspace not yet given out since the last reset.
+func (p *workspacePool[W]) get() W {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if p.given == len(p.all) {
+		p.all = append(p.all, p.make())
+	}
+	p.given++
+	return p.all[p.given-1]
+}
+
+// reset makes every workspace available again; no worker may be using one.
+func (p *workspacePool[W]) reset() {
+	p.mu.Lock()
+	p.given = 0
+	p.mu.Unlock()
+}
+
 // percentile returns the q-th percentile (0 ≤ q ≤ 100) of sorted values by
 // linear interpolation between order statistics (Hyndman & Fan 1996, Amer.
 // Statist. 50:361–365, definition 7, the default of R and NumPy).

@@ -56,7 +56,8 @@ run() {
   rm -rf "$work/out"
   /usr/bin/time -v -o "$work/time.txt" "$work/pcqc" run "$file" --out "$work/out" --quiet --fail-on never "$@" >/dev/null
   secs=$(awk -F': ' '/Elapsed \(wall clock\)/ {n = split($2, t, ":"); s = 0; for (i = 1; i <= n; i++) s = s * 60 + t[i]; print s}' "$work/time.txt")
-  rss_mb=$(awk -F': ' '/Maximum resident set size/ {printf "%.0f", $2 / 1024}' "$work/time.txt")
+  # GNU time reports KiB; MB here is 10^6 bytes, like the bound.
+  rss_mb=$(awk -F': ' '/Maximum resident set size/ {printf "%.0f", $2 * 1024 / 1e6}' "$work/time.txt")
 }
 
 printf '%-14s %-8s %9s %9s %8s %10s %8s\n' size case seconds "RSS MB" "×matrix" "bound MB" "×bare"
