@@ -5,10 +5,14 @@
 #
 #   bench/compare.sh [--full] [--runs N]
 #
-# pcqc is timed as a whole process (reading the CSV, the decomposition,
-# parallel analysis, the bootstrap, every check, the tables). numpy is timed
-# twice: the computation it reports itself (seconds=, CSV load excluded: the
-# stricter baseline) and its whole process. Workloads (k = 3 throughout):
+# pcqc is timed twice: as a whole process (reading the CSV, the
+# decomposition, parallel analysis, the bootstrap, leave-one-out influence,
+# cross-validation, the robust fit, every check, the tables), and on the
+# same workload as numpy (BenchmarkReferenceWorkload in analysis/: the
+# decomposition, T² and Q, B resamples, P permutations, CSV load excluded).
+# numpy is timed twice: the computation it reports itself (seconds=, CSV
+# load excluded: the stricter baseline) and its whole process. Workloads
+# (k = 3 throughout):
 #   tall  10,000 × 50,   B = 200,  P = 50
 #   wide     100 × 5,000, B = 200,  P = 50
 # and with --full:
@@ -46,6 +50,7 @@ py=/usr/bin/python3
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 go build -o "$work/pcqc" ./cmd/pcqc
+go test -c -o "$work/analysis.test" ./analysis/
 pcqc_help=$("$work/pcqc" help run)
 format_flag=()
 if grep -q -- '--format' <<<"$pcqc_help"; then format_flag=(--format none); fi
@@ -61,12 +66,12 @@ fi
 timer=()
 if [ -x /usr/bin/time ]; then timer=(/usr/bin/time -f %M -o "$work/rss"); fi
 
-printf '%-10s %-12s %5s %5s %10s %12s %12s %10s %10s %12s\n' workload size B P pcqc_s numpy_comp_s numpy_proc_s ratio_comp ratio_proc pcqc_rss_MB
+printf '%-10s %-12s %5s %5s %10s %10s %12s %12s %10s %10s %10s %12s\n' workload size B P pcqc_s same_s numpy_comp_s numpy_proc_s ratio_comp ratio_proc ratio_same pcqc_rss_MB
 for w in "${workloads[@]}"; do
   read -r name n p b perm <<<"$w"
   csv="$work/$name.csv"
   "$py" "$ref" gen "$n" "$p" 3 42 "$csv"
-  : >"$work/r_comp"; : >"$work/r_proc"; : >"$work/t_pcqc"; : >"$work/t_np"; : >"$work/t_npp"
+  : >"$work/r_comp"; : >"$work/r_proc"; : >"$work/t_pcqc"; : >"$work/t_np"; : >"$work/t_npp"; : >"$work/t_same"; : >"$work/r_same"
   for ((r = 1; r <= runs; r++)); do
     t0=$(now)
     "${timer[@]}" "$work/pcqc" run "$csv" --components 3 --bootstrap "$b" --permutations "$perm" "${format_flag[@]}" \
@@ -80,13 +85,18 @@ for w in "${workloads[@]}"; do
     echo "$tp" >>"$work/t_pcqc"; echo "$tn" >>"$work/t_np"; echo "$tnp" >>"$work/t_npp"
     awk -v a="$tp" -v b="$tn" 'BEGIN {print a / b}' >>"$work/r_comp"
     awk -v a="$tp" -v b="$tnp" 'BEGIN {print a / b}' >>"$work/r_proc"
+    ts=$(PCQC_REF_CSV="$csv" PCQC_REF_B="$b" PCQC_REF_P="$perm" "$work/analysis.test" -test.run '^$' \
+      -test.bench 'ReferenceWorkload$' -test.benchtime 1x | awk '/^BenchmarkReferenceWorkload/ {print $3 / 1e9}')
+    echo "$ts" >>"$work/t_same"
+    awk -v a="$ts" -v b="$tn" 'BEGIN {print a / b}' >>"$work/r_same"
   done
   rss="n/a"
   if [ -s "$work/rss" ]; then rss=$(awk '{printf "%.0f", $1 / 1024}' "$work/rss"); fi
-  printf '%-10s %-12s %5s %5s %10.2f %12.2f %12.2f %10.3f %10.3f %12s\n' "$name" "${n}x${p}" "$b" "$perm" \
-    "$(median <"$work/t_pcqc")" "$(median <"$work/t_np")" "$(median <"$work/t_npp")" \
-    "$(median <"$work/r_comp")" "$(median <"$work/r_proc")" "$rss"
+  printf '%-10s %-12s %5s %5s %10.2f %10.2f %12.2f %12.2f %10.3f %10.3f %10.3f %12s\n' "$name" "${n}x${p}" "$b" "$perm" \
+    "$(median <"$work/t_pcqc")" "$(median <"$work/t_same")" "$(median <"$work/t_np")" "$(median <"$work/t_npp")" \
+    "$(median <"$work/r_comp")" "$(median <"$work/r_proc")" "$(median <"$work/r_same")" "$rss"
 done
-echo "ratio_comp = median of pcqc whole-process time / numpy computation time (the target: ≤ 0.25)"
+echo "ratio_comp = median of pcqc whole-process time / numpy computation time"
+echo "ratio_same = median of pcqc's time on numpy's workload (same_s, in-process) / numpy computation time (issue 16's target: ≤ 0.10)"
 echo "pcqc_rss_MB = peak resident memory of the last pcqc run (GNU time), data matrix = 8·n·p bytes"
 echo "numpy BLAS: $("$py" -c 'import numpy, numpy.__config__ as c; print(numpy.__version__)') with $(readlink -f /usr/lib/x86_64-linux-gnu/libblas.so.3 2>/dev/null || echo unknown)"

@@ -60,9 +60,10 @@ func (s *StreamSamples) Close() error {
 	return s.f.Close()
 }
 
-// WriteStream writes the tables, summary.json and (unless md is false)
-// report.md of a streamed audit into dir.
-func WriteStream(dir string, res *analysis.StreamResult, meta Meta, ropt ReportOptions, md bool) error {
+// WriteStream writes the tables, summary.json and the report of a streamed
+// audit into dir, in the formats asked for: the same Markdown source
+// rendered to PDF and HTML as the in-memory report is.
+func WriteStream(dir string, res *analysis.StreamResult, meta Meta, ropt ReportOptions, formats Formats) error {
 	if err := writeCSV(filepath.Join(dir, "variance.csv"), streamVarianceRows(res)); err != nil {
 		return err
 	}
@@ -79,7 +80,7 @@ func WriteStream(dir string, res *analysis.StreamResult, meta Meta, ropt ReportO
 	if err := os.WriteFile(filepath.Join(dir, "summary.json"), append(sum, '\n'), 0o644); err != nil {
 		return err
 	}
-	if !md {
+	if !formats.Any() {
 		return nil
 	}
 	caption, drawn, err := streamScoreFigure(res, dir)
@@ -95,8 +96,16 @@ func WriteStream(dir string, res *analysis.StreamResult, meta Meta, ropt ReportO
 	for _, r := range referencesIn(text) {
 		text += "- " + r.Citation + "\n"
 	}
-	return os.WriteFile(filepath.Join(dir, "report.md"), []byte(text), 0o644)
+	title := ropt.Title
+	if title == "" {
+		title = streamTitle(res)
+	}
+	page := Page{Title: title, Author: ropt.Author, Date: ropt.Date, Version: meta.Version, File: res.Info.File, SHA256: res.Info.SHA256}
+	return writeRenderings(dir, []byte(text), nil, page, formats)
 }
+
+// streamTitle is the default title of a streamed audit's report.
+func streamTitle(res *analysis.StreamResult) string { return "PCA audit of " + res.Info.File }
 
 func streamVarianceRows(res *analysis.StreamResult) [][]string {
 	rows := [][]string{{"component", "eigenvalue", "percent", "eigenvalue_low95", "eigenvalue_high95", "retained"}}

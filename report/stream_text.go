@@ -39,7 +39,7 @@ var streamNotRun = []string{
 	"cross-validation (PRESS): needs every row",
 	"leave-one-out influence, robust fit, refit without flagged samples: need every row",
 	"tail-adapted and Phase I control limits: need every sample's scores; the limits are normal theory",
-	"PDF and HTML renderings and the figures other than one score plot: the report is Markdown",
+	"the figures other than one score plot: they draw every sample or need the left-out analyses",
 }
 
 func streamSummary(res *analysis.StreamResult, meta Meta) streamSummaryJSON {
@@ -73,7 +73,7 @@ func streamMarkdown(res *analysis.StreamResult, meta Meta, ropt ReportOptions) s
 	var b strings.Builder
 	title := ropt.Title
 	if title == "" {
-		title = "PCA audit of " + res.Info.File
+		title = streamTitle(res)
 	}
 	fmt.Fprintf(&b, "# %s\n\n", escapeMarkdown(title))
 	if ropt.Author != "" {
@@ -127,6 +127,8 @@ func streamMarkdown(res *analysis.StreamResult, meta Meta, ropt ReportOptions) s
 		fmt.Fprintf(&b, "- %s (line %d): T² %.4g, Q %.4g\n", escapeMarkdown(s.ID), s.Line, s.T2, s.Q)
 	}
 	b.WriteString("\n## Cautions\n\nA PCA describes the correlation structure of these samples; it does not show cause, and components are not guaranteed to mean anything physical. " +
-		"Limits assume the samples are independent draws from one population. The cross-product route loses accuracy for components whose eigenvalue is below about 1e-8 of the largest.\n")
+		"Limits assume the samples are independent draws from one population. The cross-product route loses accuracy for components whose eigenvalue is below about 1e-8 of the largest. " +
+		"A sample beyond a limit is a sample to look at, not a sample to delete; these measurements support expert judgement and do not replace it. " +
+		regulationCaution + "\n")
 	return b.String()
 }

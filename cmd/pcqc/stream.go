@@ -21,7 +21,7 @@ Tables larger than memory:
                       10,000 rows; the bootstrap weights rows by Poisson(1)
                       counts; cross-validation, influence, the robust fit,
                       tail-adapted limits, the checks and all figures but one
-                      score plot are left out; the report is Markdown.
+                      score plot are left out.
                       Refused with --exclude, --exclude-file, --components cv
 `
 
@@ -83,7 +83,7 @@ func runStream(f *auditFlags, read intake.ReadOptions, data string, command []st
 	}
 	tab := &intake.Table{IDColumn: res.Info.IDColumn, GroupColumn: res.Info.GroupColumn, Delimiter: res.Info.Delimiter}
 	meta := report.Meta{Version: Version, Command: command, Options: append(f.effective(read, tab), report.Option{Name: "stream", Value: true})}
-	if err := report.WriteStream(out.Dir(), res, meta, ropt, formats.Any()); err != nil {
+	if err := report.WriteStream(out.Dir(), res, meta, ropt, formats); err != nil {
 		out.Abort()
 		return 0, writeFailure(err)
 	}

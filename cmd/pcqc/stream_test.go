@@ -92,10 +92,20 @@ func TestStreamRunWritesOutputs(t *testing.T) {
 	}
 	md, _ := os.ReadFile(filepath.Join(out, "report.md"))
 	for _, want := range []string{"streamed", "reservoir", "Poisson", "Left out", "cross-validation", "figures/stream-scores.png",
-		"Chan, T. F., Golub, G. H. & LeVeque", "Vitter, J. S. (1985)", "Hanley, J. A. & MacGibbon", "Horn, J. L. (1965)"} {
+		"Chan, T. F., Golub, G. H. & LeVeque", "Vitter, J. S. (1985)", "expert judgement", "accredited practice", "Hanley, J. A. & MacGibbon", "Horn, J. L. (1965)"} {
 		if !strings.Contains(string(md), want) {
 			t.Errorf("report.md does not mention %q", want)
 		}
+	}
+	// The default formats: the same report as PDF and HTML, the score plot
+	// drawn in each (PNG in the PDF, inline SVG in the HTML).
+	pdf, err := os.ReadFile(filepath.Join(out, "report.pdf"))
+	if err != nil || !bytes.HasPrefix(pdf, []byte("%PDF-")) || !bytes.Contains(pdf, []byte("/Subtype /Image")) {
+		t.Errorf("report.pdf: %v, %d bytes, an image: %v", err, len(pdf), bytes.Contains(pdf, []byte("/Subtype /Image")))
+	}
+	page, err := os.ReadFile(filepath.Join(out, "report.html"))
+	if err != nil || !bytes.Contains(page, []byte(`<svg class="figure"`)) || !bytes.Contains(page, []byte("Streamed audit")) {
+		t.Errorf("report.html: %v, %d bytes", err, len(page))
 	}
 
 	fifo := filepath.Join(dir, "pipe.csv")
