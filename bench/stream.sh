@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Tables larger than memory: a ROWS × COLUMNS CSV (default 20,000,000 × 20,
 # about 3.6 GB; it is deleted afterwards) through
-#   pcqc run --stream --bootstrap B --format md
+#   pcqc run --stream --bootstrap B (every format)
 # against one plain read of the same file by pcqc's streaming reader
 # (bench/streamread: the same parser, no sums). Each is run RUNS times,
 # alternating, with GNU time; the medians are printed, with the peak RSS
@@ -29,7 +29,7 @@ for i in $(seq "$runs"); do
   read -r secs _ <"$work/t"; echo "$secs" >>"$work/read"
   rm -rf "$work/out"
   /usr/bin/time -f "%e %M" -o "$work/t" "$work/pcqc" run "$work/big.csv" --stream --bootstrap "$b" \
-    --format md --out "$work/out" --quiet --fail-on never >/dev/null
+    --out "$work/out" --quiet --fail-on never >/dev/null
   read -r secs rss_kb <"$work/t"; echo "$secs" >>"$work/stream"; echo "$rss_kb" >>"$work/rss"
   echo "run $i: read $(tail -1 "$work/read") s, stream $secs s, peak RSS $((rss_kb / 1024)) MiB"
 done

@@ -418,6 +418,11 @@ func workbookHeader(path string, opt ReadOptions) ([]string, error) {
 		return nil, err
 	}
 	defer src.book.Close()
+	// The same leading rows are left out as when the table is read.
+	src.comment = opt.Comment
+	if err := src.skipRows(path, opt.Skip); err != nil {
+		return nil, err
+	}
 	header, err := src.read()
 	if err == io.EOF {
 		return nil, &InputError{File: path, Sheet: src.name, Reason: "empty sheet: a header row and at least 3 data rows are needed"}

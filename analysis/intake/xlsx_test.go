@@ -239,6 +239,12 @@ func TestWorkbookLayoutOptions(t *testing.T) {
 	if tab.CommentLines != 2 || tab.SkippedLines != 1 {
 		t.Errorf("comment rows %d, skipped %d; want 2 and 1", tab.CommentLines, tab.SkippedLines)
 	}
+	// The header alone (apply reads it to match the model's variables)
+	// leaves out the same rows.
+	names, err := ReadHeader(filepath.Join("..", "..", "testdata", "xlsx", "layout.xlsx"), ReadOptions{Skip: 1, Comment: '#'})
+	if want := append([]string{tab.IDColumn}, tab.Variables...); err != nil || !slices.Equal(names, want) {
+		t.Errorf("ReadHeader: %q (%v), want %q", names, err, want)
+	}
 	_, err = ReadTable(filepath.Join("..", "..", "testdata", "xlsx", "layout.xlsx"), ReadOptions{Skip: 40})
 	var ie *InputError
 	if !errors.As(err, &ie) || ie.Sheet != "Sheet1" || !strings.Contains(ie.Reason, "--skip 40 passes the end of the sheet") {
