@@ -91,12 +91,12 @@ for w in "${workloads[@]}"; do
     awk -v a="$ts" -v b="$tn" 'BEGIN {print a / b}' >>"$work/r_same"
   done
   rss="n/a"
-  if [ -s "$work/rss" ]; then rss=$(awk '{printf "%.0f", $1 / 1024}' "$work/rss"); fi
+  if [ -s "$work/rss" ]; then rss=$(awk '{printf "%.0f", $1 * 1024 / 1e6}' "$work/rss"); fi
   printf '%-10s %-12s %5s %5s %10.2f %10.2f %12.2f %12.2f %10.3f %10.3f %10.3f %12s\n' "$name" "${n}x${p}" "$b" "$perm" \
     "$(median <"$work/t_pcqc")" "$(median <"$work/t_same")" "$(median <"$work/t_np")" "$(median <"$work/t_npp")" \
     "$(median <"$work/r_comp")" "$(median <"$work/r_proc")" "$(median <"$work/r_same")" "$rss"
 done
 echo "ratio_comp = median of pcqc whole-process time / numpy computation time"
 echo "ratio_same = median of pcqc's time on numpy's workload (same_s, in-process) / numpy computation time (issue 16's target: ≤ 0.10)"
-echo "pcqc_rss_MB = peak resident memory of the last pcqc run (GNU time), data matrix = 8·n·p bytes"
+echo "pcqc_rss_MB = peak resident memory of the last pcqc run (GNU time; MB = 10^6 bytes), data matrix = 8·n·p bytes"
 echo "numpy BLAS: $("$py" -c 'import numpy, numpy.__config__ as c; print(numpy.__version__)') with $(readlink -f /usr/lib/x86_64-linux-gnu/libblas.so.3 2>/dev/null || echo unknown)"
