@@ -170,8 +170,10 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 		gram    []float64
 		values  []float64
 		sym     mat.EigenSym
-		column  []float64
-		shuffle shuffleWorkspace
+		seeds   []uint64
+		// shufflers shuffle the columns of one permutation, several at a
+		// time when a single worker runs (see inner below).
+		shufflers workspacePool[*columnShuffler]
 	}
 	// Workspaces are kept between batches: each holds a copy of the data.
 	var free, used []*workspace
@@ -184,12 +186,19 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 			w, free = free[k-1], free[:k-1]
 		} else {
 			w = &workspace{buf: make([]float64, n*p), gram: make([]float64, short*short), values: make([]float64, short)}
-			if tall {
-				w.column = make([]float64, n)
-			}
+			w.shufflers.make = func() *columnShuffler { return &columnShuffler{column: make([]float64, n)} }
 		}
 		used = append(used, w)
 		return w
+	}
+	workers := workersFor(threads, int64(8*n*p))
+	// When memory allows a single worker (one copy of the data each), its
+	// permutations' columns are shuffled by all threads instead: on a
+	// 1,000,000 × 20 table the shuffle is most of a permutation. A
+	// shuffler holds one column and its bucket labels (10 bytes a row).
+	inner := 1
+	if workers == 1 {
+		inner = workersFor(threads, int64(10*n))
 	}
 	var eig [][]float64
 	task := func(w *workspace, b int) {
@@ -197,17 +206,25 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 		if tall {
 			// Rows of buf are the columns of z, each shuffled. The columns
 			// are gathered in one pass down the rows of z (reading it in
-			// order), then shuffled one by one.
+			// order), then shuffled, each by its own generator seeded in
+			// column order from the permutation's, so that the result does
+			// not depend on how many goroutines share the columns.
 			for i := 0; i < n; i++ {
 				for j, v := range raw.Data[i*raw.Stride : i*raw.Stride+p] {
 					w.buf[j*n+i] = v
 				}
 			}
+			w.seeds = slices.Grow(w.seeds[:0], p)[:p]
 			for j := 1; j < p; j++ {
-				row := w.buf[j*n : (j+1)*n]
-				shuffleInto(w.column, row, rng, &w.shuffle)
-				copy(row, w.column)
+				w.seeds[j] = rng.Uint64()
 			}
+			w.shufflers.reset()
+			parallelFor(p-1, inner, w.shufflers.get, func(sh *columnShuffler, c int) {
+				j := c + 1
+				row := w.buf[j*n : (j+1)*n]
+				shuffleInto(sh.column, row, rand.New(rand.NewPCG(w.seeds[j], uint64(j))), &sh.ws)
+				copy(row, sh.column)
+			}, "", nil)
 		} else {
 			for i := 0; i < n; i++ {
 				copy(w.buf[i*p:(i+1)*p], raw.Data[i*raw.Stride:i*raw.Stride+p])
@@ -233,7 +250,6 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 		}
 		eig[b] = out
 	}
-	workers := workersFor(threads, int64(8*n*p))
 	exceed := make([]int, m)
 	for done := 0; done < maxPermutations; {
 		batch := min(ParallelBatch, maxPermutations-done)
@@ -274,6 +290,13 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 		res.Exceedance[a] = float64(exceed[a]) / float64(res.Permutations)
 	}
 	return res
+}
+
+// columnShuffler is the memory one goroutine needs to shuffle columns of
+// a tall table: the shuffled column and shuffleInto's workspace.
+type columnShuffler struct {
+	column []float64
+	ws     shuffleWorkspace
 }
 
 // shuffleWorkspace is the reusable memory of shuffleInto.

@@ -492,15 +492,7 @@ func univariateMCD(sorted []float64, h int) (loc, scale float64) {
 // centred rows.
 func subsetPCA(t *mat.Dense, idx []int, k int) ([]float64, *mat.Dense, []float64) {
 	_, m := t.Dims()
-	c := make([]float64, m)
-	for _, i := range idx {
-		for j, v := range t.RawRowView(i) {
-			c[j] += v
-		}
-	}
-	for j := range c {
-		c[j] /= float64(len(idx))
-	}
+	c := rowMean(t, idx)
 	x := mat.NewDense(len(idx), m, nil)
 	for r, i := range idx {
 		row := x.RawRowView(r)
@@ -627,18 +619,25 @@ func mcd(s *mat.Dense, h int, starts [][]int, seed uint64) ([]float64, *mat.SymD
 	return mu, cov, true
 }
 
+// rowMean returns the mean of rows idx of t.
+func rowMean(t *mat.Dense, idx []int) []float64 {
+	_, m := t.Dims()
+	mean := make([]float64, m)
+	for _, i := range idx {
+		for j, v := range t.RawRowView(i) {
+			mean[j] += v
+		}
+	}
+	for j := range mean {
+		mean[j] /= float64(len(idx))
+	}
+	return mean
+}
+
 // meanCov returns the mean and covariance (divisor |idx| − 1) of rows idx.
 func meanCov(s *mat.Dense, idx []int) ([]float64, *mat.SymDense) {
 	_, k := s.Dims()
-	mu := make([]float64, k)
-	for _, i := range idx {
-		for a, v := range s.RawRowView(i) {
-			mu[a] += v
-		}
-	}
-	for a := range mu {
-		mu[a] /= float64(len(idx))
-	}
+	mu := rowMean(s, idx)
 	cov := mat.NewSymDense(k, nil)
 	c := make([]float64, k)
 	for _, i := range idx {

@@ -2,7 +2,11 @@ package analysis
 
 import (
 	"math"
+	"slices"
 	"testing"
+
+	"pcqc/analysis/intake"
+	"pcqc/internal/synth"
 )
 
 // Every element must be equally likely to land in every position: with
@@ -67,5 +71,40 @@ func TestParallelForRaisesWorkerPanicInCaller(t *testing.T) {
 	}()
 	if got != "task 17 failed" {
 		t.Errorf("recovered %v", got)
+	}
+}
+
+// With memory for a single worker, the columns of each permutation are
+// shuffled by several goroutines (20,000 rows: the bucket path of
+// shuffleInto); the result must not depend on how many.
+func TestParallelAnalysisSingleWorkerThreadsAgree(t *testing.T) {
+	x, _ := synth.LowRank(synth.RNG(9, 1), 20000, 6, []float64{3, 2}, 1)
+	pp, err := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
+	if err != nil {
+		t.Fatal(err)
+	}
+	z := pp.Apply(nil, x)
+	d, err := Decompose(z)
+	if err != nil {
+		t.Fatal(err)
+	}
+	saved := WorkspaceBudget
+	defer func() { WorkspaceBudget = saved }()
+	// Less than one copy of the data (8·n·p bytes) but room for several
+	// column shufflers (10·n bytes each): one worker, several shufflers.
+	WorkspaceBudget = int64(8*20000*6 - 1)
+	var first Parallel
+	for i, threads := range []int{1, 2, 3} {
+		pa := ParallelAnalysis(z, d.Eigenvalues, 200, 4, threads, nil)
+		if i == 0 {
+			first = pa
+			continue
+		}
+		if pa.Permutations != first.Permutations || !slices.Equal(pa.P95, first.P95) || !slices.Equal(pa.Exceedance, first.Exceedance) {
+			t.Fatalf("threads %d: %d permutations, P95 %v; threads 1: %d, %v", threads, pa.Permutations, pa.P95, first.Permutations, first.P95)
+		}
+	}
+	if first.Count != 2 {
+		t.Errorf("count %d, want the 2 planted components", first.Count)
 	}
 }

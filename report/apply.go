@@ -49,19 +49,12 @@ type ApplySummary struct {
 }
 
 type ApplyInput struct {
-	File         string                   `json:"file"`
-	SHA256       string                   `json:"sha256"`
-	Sheet        string                   `json:"sheet,omitempty"` // the worksheet read, for a workbook
-	Rows         int                      `json:"rows"`
-	RowsRead     int                      `json:"rows_read"`
-	RowsDropped  int                      `json:"rows_dropped"`
-	MissingCells int                      `json:"missing_cells"`
-	ImputedCells int                      `json:"imputed_cells"`
-	IDColumn     *string                  `json:"id_column"`
-	GroupColumn  *string                  `json:"group_column"`
-	Ignored      []string                 `json:"columns_ignored"`
-	Dropped      []intake.DroppedVariable `json:"variables_dropped"`
-	Missing      MissingInfo              `json:"missing"` // see missing.go
+	TableSource
+	IDColumn    *string                  `json:"id_column"`
+	GroupColumn *string                  `json:"group_column"`
+	Ignored     []string                 `json:"columns_ignored"`
+	Dropped     []intake.DroppedVariable `json:"variables_dropped"`
+	Missing     MissingInfo              `json:"missing"` // see missing.go
 }
 
 type ApplyModelInfo struct {
@@ -93,8 +86,7 @@ func buildApplySummary(run ApplyRun, meta Meta) ApplySummary {
 	t, m := app.Table, app.Model
 	s := ApplySummary{
 		Tool: ToolInfo{Name: "pcqc", Version: meta.Version},
-		Input: ApplyInput{File: t.File, SHA256: t.SHA256, Sheet: t.Sheet, Rows: t.Rows(), RowsRead: t.RowsRead, RowsDropped: t.RowsDropped,
-			MissingCells: t.MissingCells, ImputedCells: t.ImputedCells, Missing: missingInfo(t, batchImputedCells(t)),
+		Input: ApplyInput{TableSource: tableSource(t), Missing: missingInfo(t, batchImputedCells(t)),
 			IDColumn: optional(t.IDColumn), GroupColumn: optional(t.GroupColumn), Ignored: app.Extra, Dropped: t.DroppedVariables},
 		Model: ApplyModelInfo{AuditDir: run.AuditDir, File: m.Input.File, SHA256: m.Input.SHA256, Rows: m.Input.Rows, Retained: m.Retained,
 			Variables: m.Variables, Transform: string(m.Transform), Scaling: string(m.Scaling), PCQCVersion: m.Tool.Version},

@@ -77,15 +77,28 @@ type ToolInfo struct {
 	Version string `json:"version"`
 }
 
+// TableSource is where a table came from and how many of its rows and
+// cells were used: the head of the input section of an audit's and of an
+// apply run's summary.json.
+type TableSource struct {
+	File         string `json:"file"`
+	SHA256       string `json:"sha256"`
+	Sheet        string `json:"sheet,omitempty"` // the worksheet read, for a workbook
+	Rows         int    `json:"rows"`
+	RowsRead     int    `json:"rows_read"`
+	RowsDropped  int    `json:"rows_dropped"`
+	MissingCells int    `json:"missing_cells"`
+	ImputedCells int    `json:"imputed_cells"`
+}
+
+// tableSource is t's TableSource.
+func tableSource(t *intake.Table) TableSource {
+	return TableSource{File: t.File, SHA256: t.SHA256, Sheet: t.Sheet, Rows: t.Rows(), RowsRead: t.RowsRead,
+		RowsDropped: t.RowsDropped, MissingCells: t.MissingCells, ImputedCells: t.ImputedCells}
+}
+
 type InputInfo struct {
-	File             string                   `json:"file"`
-	SHA256           string                   `json:"sha256"`
-	Sheet            string                   `json:"sheet,omitempty"` // the worksheet read, for a workbook
-	Rows             int                      `json:"rows"`
-	RowsRead         int                      `json:"rows_read"`
-	RowsDropped      int                      `json:"rows_dropped"`
-	MissingCells     int                      `json:"missing_cells"`
-	ImputedCells     int                      `json:"imputed_cells"`
+	TableSource
 	Variables        []string                 `json:"variables"`
 	Units            []string                 `json:"units,omitempty"` // per variable, from --units-row
 	SkippedLines     int                      `json:"skipped_lines,omitempty"`
@@ -427,14 +440,7 @@ func BuildSummary(audit Audit, meta Meta) Summary {
 	return Summary{
 		Tool: ToolInfo{Name: "pcqc", Version: meta.Version},
 		Input: InputInfo{
-			File:             t.File,
-			SHA256:           t.SHA256,
-			Sheet:            t.Sheet,
-			Rows:             t.Rows(),
-			RowsRead:         t.RowsRead,
-			RowsDropped:      t.RowsDropped,
-			MissingCells:     t.MissingCells,
-			ImputedCells:     t.ImputedCells,
+			TableSource:      tableSource(t),
 			Variables:        t.Variables,
 			Units:            t.Units,
 			SkippedLines:     t.SkippedLines,
