@@ -166,11 +166,11 @@ func ParallelAnalysis(z *mat.Dense, observed []float64, maxPermutations int, see
 	tall := n >= p
 	short := min(n, p)
 	type workspace struct {
-		buf     []float64 // short × long, row-major: Zᵀ (tall) or Z (wide)
-		gram    []float64
-		values  []float64
-		sym     mat.EigenSym
-		seeds   []uint64
+		buf    []float64 // short × long, row-major: Zᵀ (tall) or Z (wide)
+		gram   []float64
+		values []float64
+		sym    mat.EigenSym
+		seeds  []uint64
 		// shufflers shuffle the columns of one permutation, several at a
 		// time when a single worker runs (see inner below).
 		shufflers workspacePool[*columnShuffler]
