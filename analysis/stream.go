@@ -53,6 +53,7 @@ type StreamResult struct {
 	Info             intake.StreamInfo
 	Options          StreamOptions
 	Variables        []string
+	Units            []string // unit of each variable analysed (--units-row), or nil
 	Columns          []int
 	DroppedVariables []intake.DroppedVariable
 	Rows             int // used in the fit
@@ -196,6 +197,9 @@ func (r *StreamResult) keepVariables(fp *firstPass, read intake.ReadOptions) ([]
 	for _, k := range keep {
 		r.Variables = append(r.Variables, in.Variables[k])
 		r.Columns = append(r.Columns, in.Columns[k])
+		if in.Units != nil {
+			r.Units = append(r.Units, in.Units[k])
+		}
 	}
 	r.Rows = n
 	return keep, nil

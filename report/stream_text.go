@@ -19,6 +19,7 @@ type streamSummaryJSON struct {
 	RowsDropped  int                `json:"rows_dropped"`
 	ImputedCells int                `json:"imputed_cells"`
 	Variables    []string           `json:"variables"`
+	Units        []string           `json:"units,omitempty"` // per variable, from --units-row
 	Dropped      any                `json:"dropped_variables"`
 	Method       string             `json:"method"`
 	Eigenvalues  []float64          `json:"eigenvalues"`
@@ -58,7 +59,7 @@ func streamSummary(res *analysis.StreamResult, meta Meta) streamSummaryJSON {
 	}
 	return streamSummaryJSON{Tool: "pcqc", Version: meta.Version, Mode: "stream", File: res.Info.File, SHA256: res.Info.SHA256,
 		Rows: res.Rows, RowsRead: res.Info.RowsRead, RowsDropped: res.RowsDropped, ImputedCells: res.ImputedCells,
-		Variables: res.Variables, Dropped: dropped, Method: res.Decomp.Method, Eigenvalues: res.Decomp.Eigenvalues,
+		Variables: res.Variables, Units: res.Units, Dropped: dropped, Method: res.Decomp.Method, Eigenvalues: res.Decomp.Eigenvalues,
 		Retained: res.Retained, NoStructure: res.NoStructure, Counts: counts,
 		Limits: map[string]float64{"t2_95": l.T2_95, "t2_99": l.T2_99, "q_95": l.Q95, "q_99": l.Q99,
 			"t2_family": l.T2Family, "q_family": l.QFamily, "leverage": l.Leverage},
@@ -86,6 +87,13 @@ func streamMarkdown(res *analysis.StreamResult, meta Meta, ropt ReportOptions) s
 		codeSpan(res.Info.File), res.Info.SHA256, len(res.Variables), len(res.Variables))
 	fmt.Fprintf(&b, "%d rows read, %d used, %d dropped for missing cells, %d cells filled with column means; %d variables analysed (%s scaling).\n\n",
 		res.Info.RowsRead, res.Rows, res.RowsDropped, res.ImputedCells, len(res.Variables), escapeMarkdown(string(res.Prep.Scaling)))
+	if res.Units != nil {
+		labels := make([]string, len(res.Variables))
+		for j, v := range res.Variables {
+			labels[j] = withUnit(v, res.Units[j])
+		}
+		fmt.Fprintf(&b, "Units, from the row under the header (--units-row): %s.\n\n", escapeMarkdown(strings.Join(labels, ", ")))
+	}
 	for _, d := range res.DroppedVariables {
 		fmt.Fprintf(&b, "- left out: %s (%s)\n", escapeMarkdown(d.Name), escapeMarkdown(d.Reason))
 	}

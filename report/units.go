@@ -11,15 +11,17 @@ import (
 // file had a units row; a unit already in brackets or parentheses is not
 // bracketed again. It is the label of a variable wherever it names an axis
 // entry or a point.
-func varLabel(t *intake.Table, j int) string {
-	u := unitOf(t, j)
+func varLabel(t *intake.Table, j int) string { return withUnit(t.Variables[j], unitOf(t, j)) }
+
+// withUnit is name labelled with unit u (see varLabel).
+func withUnit(name, u string) string {
 	if u == "" {
-		return t.Variables[j]
+		return name
 	}
 	if strings.HasPrefix(u, "(") || strings.HasPrefix(u, "[") {
-		return t.Variables[j] + " " + u
+		return name + " " + u
 	}
-	return t.Variables[j] + " [" + u + "]"
+	return name + " [" + u + "]"
 }
 
 // unitOf returns the unit of variable j, or "".

@@ -27,6 +27,7 @@ type StreamInfo struct {
 	GroupColumn  string
 	Variables    []string // the candidate variables, in file order
 	Columns      []int    // 1-based column of each candidate variable
+	Units        []string // unit of each candidate variable (--units-row), or nil
 	Drop         []string // columns left out with --drop
 	RowsRead     int
 	MissingCells int
@@ -182,6 +183,9 @@ func (r *tableReader) streamInfo(rows int) StreamInfo {
 	for _, j := range r.varCols {
 		in.Variables = append(in.Variables, r.names[j])
 		in.Columns = append(in.Columns, j+1)
+		if r.units != nil {
+			in.Units = append(in.Units, r.units[j])
+		}
 	}
 	for j, d := range r.dropped {
 		if d {

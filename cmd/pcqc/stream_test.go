@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"syscall"
 	"testing"
@@ -147,5 +148,33 @@ func TestStreamRunWritesOutputs(t *testing.T) {
 				t.Errorf("stderr %q, want one line naming %q", msg, tc.want)
 			}
 		})
+	}
+}
+
+// A units row read in stream mode labels the variables in summary.json and
+// the report, as in an ordinary run.
+func TestStreamShowsUnits(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "units.csv")
+	text := "id,a,b,c\n,mg/L,[°C],\n"
+	for i := 0; i < 12; i++ {
+		text += fmt.Sprintf("r%d,%d,%d,%d\n", i, i%5+i/3, (i*7)%11, (i*i)%13)
+	}
+	if err := os.WriteFile(in, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	var stdout, stderr bytes.Buffer
+	if status := mainWithArgs([]string{"run", in, "--stream", "--units-row", "--format", "md", "--out", out, "--bootstrap", "0", "--permutations", "50"}, &stdout, &stderr); status != exitOK {
+		t.Fatalf("status %d: %s", status, stderr.String())
+	}
+	var sum struct{ Units []string }
+	raw, _ := os.ReadFile(filepath.Join(out, "summary.json"))
+	if err := json.Unmarshal(raw, &sum); err != nil || !slices.Equal(sum.Units, []string{"mg/L", "[°C]", ""}) {
+		t.Errorf("summary.json units %q (%v)", sum.Units, err)
+	}
+	md, _ := os.ReadFile(filepath.Join(out, "report.md"))
+	if !strings.Contains(string(md), "a \\[mg/L\\], b \\[°C\\], c") && !strings.Contains(string(md), "a [mg/L], b [°C], c") {
+		t.Errorf("report.md does not label the variables with their units:\n%s", md)
 	}
 }
