@@ -126,13 +126,16 @@ func runAudit(job auditJob, stdout, stderr io.Writer) (int, error) {
 }
 
 // limitMemory sets a soft limit on the heap from the size of the data
-// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 64 MiB,
+// matrix, unless GOMEMLIMIT is set: 2.25 copies of the matrix plus 40 MiB,
 // or for a wide table 3 copies plus 100 MB less 24 MiB, the resident size
 // of the program's code and data outside the heap (about 19 MiB measured
 // for pcqc help), so that the whole process stays within 3 copies plus
 // 100 MB.
 // The analysis itself needs about two copies (the preprocessed matrix and
-// one resampling or permutation workspace); without a limit the garbage
+// one resampling or permutation workspace) and, with one permutation worker,
+// a column and its labels per thread (10 bytes a row each); the 40 MiB
+// leave room for that and for the program outside the heap within issue
+// 16's bound of 2.5 copies plus 100 MB. Without a limit the garbage
 // collector lets the heap grow to twice what is live before it collects,
 // which for large tables means hundreds of megabytes of garbage. The limit
 // is soft: when more is live, the collector runs more often and the heap
@@ -143,7 +146,7 @@ func limitMemory(t *intake.Table) {
 	}
 	n, p := t.X.Dims()
 	data := int64(8 * n * p)
-	limit := data*9/4 + 64<<20
+	limit := data*9/4 + 40<<20
 	if p > n {
 		// Wide tables: element-wise cross-validation holds the matrix, the
 		// loadings of every component (as large as the matrix when p > n),
