@@ -317,3 +317,15 @@ func skipRenderingWhenShort(t *testing.T) {
 		t.Skip("renders whole reports; run without -short")
 	}
 }
+
+// shortFormat is the --format of the tests that read the tables and also
+// check report.md: md, or none under -short. The race run (go test -race
+// -short in .ci/run) then skips drawing the figures, which takes half a
+// minute a report under the race detector; the report's text is checked
+// by the run without -short.
+func shortFormat() string {
+	if testing.Short() {
+		return "none"
+	}
+	return "md"
+}
