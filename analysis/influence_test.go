@@ -54,15 +54,7 @@ func TestLeaveOneOutMatchesRefitting(t *testing.T) {
 		x.Set(3, 1, x.At(3, 1)+25)
 		for _, scaling := range Scalings {
 			t.Run(fmt.Sprintf("%s/%s", shape.name, scaling), func(t *testing.T) {
-				pp, err := FitPreprocessing(x, intake.TransformNone, scaling)
-				if err != nil {
-					t.Fatal(err)
-				}
-				z := pp.Apply(nil, x)
-				d, err := Decompose(z)
-				if err != nil {
-					t.Fatal(err)
-				}
+				pp, z, d := fitAndDecompose(t, x, scaling)
 				v := d.Loadings.Slice(0, shape.p, 0, shape.k)
 				inf := LeaveOneOut(z, pp, v, d.Eigenvalues, 2)
 				if inf.Skipped != "" {

@@ -5,7 +5,6 @@ import (
 	"slices"
 	"testing"
 
-	"pcqc/analysis/intake"
 	"pcqc/internal/synth"
 )
 
@@ -79,15 +78,7 @@ func TestParallelForRaisesWorkerPanicInCaller(t *testing.T) {
 // shuffleInto); the result must not depend on how many.
 func TestParallelAnalysisSingleWorkerThreadsAgree(t *testing.T) {
 	x, _ := synth.LowRank(synth.RNG(9, 1), 20000, 6, []float64{3, 2}, 1)
-	pp, err := FitPreprocessing(x, intake.TransformNone, ScaleUnit)
-	if err != nil {
-		t.Fatal(err)
-	}
-	z := pp.Apply(nil, x)
-	d, err := Decompose(z)
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, z, d := fitAndDecompose(t, x, ScaleUnit)
 	saved := WorkspaceBudget
 	defer func() { WorkspaceBudget = saved }()
 	// Less than one copy of the data (8·n·p bytes) but room for several
